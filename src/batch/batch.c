@@ -1,0 +1,161 @@
+/* batch.c - the per-entry pipeline: read -> check -> duplicate id -> roots.
+ * One scratch entry and one root workspace are reused for every plant. */
+#include "batch/batch.h"
+
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "catalog/catalog.h"
+
+/* Open-addressing set of the ids seen so far (duplicate detection across
+ * every catalog of the batch). Keys are owned copies. */
+typedef struct idset {
+    char **slot;
+    size_t cap, n;
+} idset;
+
+static uint64_t hash_str(const char *s)
+{
+    uint64_t h = 1469598103934665603ull; /* FNV-1a */
+    for (; *s; s++)
+        h = (h ^ (unsigned char)*s) * 1099511628211ull;
+    return h;
+}
+
+static int idset_grow(idset *set)
+{
+    size_t cap = set->cap ? set->cap * 2 : 1024;
+    char **slot = calloc(cap, sizeof *slot);
+    if (!slot)
+        return -1;
+    for (size_t i = 0; i < set->cap; i++) {
+        if (!set->slot[i])
+            continue;
+        size_t k = hash_str(set->slot[i]) & (cap - 1);
+        while (slot[k])
+            k = (k + 1) & (cap - 1);
+        slot[k] = set->slot[i];
+    }
+    free(set->slot);
+    set->slot = slot;
+    set->cap = cap;
+    return 0;
+}
+
+/* 1 when id was new (now added), 0 when already present, -1 on no memory. */
+static int idset_add(idset *set, const char *id)
+{
+    if (2 * (set->n + 1) > set->cap && idset_grow(set))
+        return -1;
+    size_t k = hash_str(id) & (set->cap - 1);
+    while (set->slot[k]) {
+        if (strcmp(set->slot[k], id) == 0)
+            return 0;
+        k = (k + 1) & (set->cap - 1);
+    }
+    size_t len = strlen(id) + 1;
+    char *copy = malloc(len);
+    if (!copy)
+        return -1;
+    memcpy(copy, id, len);
+    set->slot[k] = copy;
+    set->n++;
+    return 1;
+}
+
+static void idset_free(idset *set)
+{
+    for (size_t i = 0; i < set->cap; i++)
+        free(set->slot[i]);
+    free(set->slot);
+}
+
+struct ps_batch {
+    ps_outcome_fn fn;
+    void *ctx;
+    ps_plant *scratch;
+    ps_roots_ws *ws;
+    ps_analysis an;
+    idset ids;
+    ps_batch_counts counts;
+    const char *file;
+};
+
+ps_batch *ps_batch_new(ps_outcome_fn fn, void *ctx)
+{
+    ps_batch *b = calloc(1, sizeof *b);
+    if (!b)
+        return NULL;
+    b->fn = fn;
+    b->ctx = ctx;
+    b->scratch = malloc(sizeof *b->scratch);
+    b->ws = ps_roots_ws_new();
+    if (!b->scratch || !b->ws) {
+        ps_batch_free(b);
+        return NULL;
+    }
+    return b;
+}
+
+void ps_batch_free(ps_batch *b)
+{
+    if (!b)
+        return;
+    free(b->scratch);
+    ps_roots_ws_free(b->ws);
+    idset_free(&b->ids);
+    free(b);
+}
+
+static void deliver_error(ps_batch *b, ps_plant *p, const ps_diag *err)
+{
+    b->counts.errors++;
+    ps_outcome o = {b->file, p, NULL, err};
+    b->fn(b->ctx, &o);
+}
+
+static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
+{
+    ps_batch *b = ctx;
+    b->counts.entries++;
+    if (err) {
+        deliver_error(b, p, err);
+        return 0;
+    }
+    ps_diag d = {0};
+    if (ps_plant_check(p, &d) != PS_OK) {
+        deliver_error(b, p, &d);
+        return 0;
+    }
+    int fresh = idset_add(&b->ids, p->id);
+    if (fresh <= 0) {
+        ps_diag_set(&d, fresh < 0 ? PS_ERR_NOMEM : PS_ERR_INPUT, p->field_line[PS_F_ID],
+                    p->field_col[PS_F_ID], "id",
+                    fresh < 0 ? "out of memory" : "duplicate id '%s': ids must be unique in a run", p->id);
+        deliver_error(b, p, &d);
+        return 0;
+    }
+    if (ps_roots_analyse(b->ws, p, &b->an, &d) != PS_OK) {
+        deliver_error(b, p, &d);
+        return 0;
+    }
+    b->counts.models++;
+    ps_outcome o = {b->file, p, &b->an, NULL};
+    b->fn(b->ctx, &o);
+    return 0;
+}
+
+ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag)
+{
+    b->file = path;
+    ps_status st = ps_catalog_read(path, b->scratch, on_entry, b, fdiag);
+    if (st != PS_OK)
+        b->counts.files_failed++;
+    return st;
+}
+
+const ps_batch_counts *ps_batch_counts_get(const ps_batch *b)
+{
+    return &b->counts;
+}

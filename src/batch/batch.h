@@ -1,0 +1,41 @@
+/* batch.h - runs catalogs through reading, checking and root analysis, one
+ * entry at a time, and hands every outcome (model or error) to a sink. */
+#ifndef PS_BATCH_H
+#define PS_BATCH_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "core/diag.h"
+#include "model/plant.h"
+#include "roots/roots.h"
+
+/* One entry's outcome. When err is NULL the plant was checked and analysed;
+ * otherwise err says why it was rejected (p holds what was read). */
+typedef struct ps_outcome {
+    const char *file;
+    ps_plant *p;
+    const ps_analysis *an;   /* NULL when err is set */
+    const ps_diag *err;
+} ps_outcome;
+
+typedef void (*ps_outcome_fn)(void *ctx, const ps_outcome *o);
+
+typedef struct ps_batch_counts {
+    size_t entries, models, errors;   /* invariant: entries == models + errors */
+    size_t files_failed;              /* catalogs that could not be opened or parsed to the end */
+} ps_batch_counts;
+
+typedef struct ps_batch ps_batch;
+
+/* New batch; fn receives every outcome in catalog order. NULL on no memory. */
+ps_batch *ps_batch_new(ps_outcome_fn fn, void *ctx);
+void ps_batch_free(ps_batch *b);
+
+/* Read one catalog. File-level problems (cannot open, broken structure) are
+ * returned with fdiag set; entries delivered before that still count. */
+ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag);
+
+const ps_batch_counts *ps_batch_counts_get(const ps_batch *b);
+
+#endif

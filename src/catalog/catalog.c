@@ -1,0 +1,30 @@
+/* catalog.c - picks the catalog reader from the file name ending. */
+#include "catalog/catalog.h"
+
+#include <stdbool.h>
+#include <stdio.h>
+#include <string.h>
+#include <strings.h>
+
+/* True when the final name component of path ends in ext (case-insensitive). */
+static bool has_ending(const char *path, const char *ext)
+{
+    const char *base = strrchr(path, '/');
+    base = base ? base + 1 : path;
+    size_t n = strlen(base), k = strlen(ext);
+    return n > k && strcasecmp(base + n - k, ext) == 0;
+}
+
+ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
+                          ps_diag *fdiag)
+{
+    if (has_ending(path, ".yaml") || has_ending(path, ".yml"))
+        return ps_yaml_read(path, scratch, fn, ctx, fdiag);
+    if (has_ending(path, ".csv"))
+        return ps_csv_read(path, scratch, fn, ctx, fdiag);
+    ps_diag_clear(fdiag);
+    if (fdiag)
+        snprintf(fdiag->file, sizeof fdiag->file, "%s", path);
+    return ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL,
+                       "unknown catalog type: expected a .yaml, .yml or .csv file");
+}

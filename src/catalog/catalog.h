@@ -1,0 +1,44 @@
+/* catalog.h - streaming catalog readers (YAML and CSV).
+ * Each entry is handed to a callback as soon as it is read; memory is bounded
+ * by one entry, not by the file. */
+#ifndef PS_CATALOG_H
+#define PS_CATALOG_H
+
+#include "core/diag.h"
+#include "model/plant.h"
+
+/* Called once per catalog entry. When err is NULL, p holds the entry as read
+ * (not yet checked: the caller runs ps_plant_check). When err is not NULL the
+ * entry could not be read; p->id and p->line hold what is known (id may be
+ * empty). p and err are only valid during the call. Return 0 to go on,
+ * non-zero to stop reading. */
+typedef int (*ps_entry_fn)(void *ctx, ps_plant *p, const ps_diag *err);
+
+/* Upper bounds that keep hostile files cheap. */
+enum {
+    PS_YAML_MAX_DEPTH = 32,            /* nesting levels */
+    PS_YAML_MAX_ALIAS_EVENTS = 100000, /* events replayed through aliases per file */
+    PS_CATALOG_MAX_BYTES = 1 << 30,    /* file size limit: 1 GiB */
+    PS_FIELD_MAX_BYTES = 1 << 20       /* one CSV field or YAML scalar */
+};
+
+/* Read a YAML catalog. scratch is the caller's entry buffer (reused for each
+ * entry). Returns PS_OK when the file was read to the end (entry errors are
+ * reported through fn, not here); PS_ERR_IO / PS_ERR_SYNTAX with fdiag set
+ * when the file cannot be opened or its structure breaks (entries read
+ * before that point have been delivered; an entry cut by the break is
+ * delivered as an error). */
+ps_status ps_yaml_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
+                       ps_diag *fdiag);
+
+/* Read an RFC 4180 CSV catalog: header row of field names, one plant per row.
+ * Same contract as ps_yaml_read. */
+ps_status ps_csv_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
+                      ps_diag *fdiag);
+
+/* Pick the reader by file name ending (.yaml/.yml or .csv). PS_ERR_IO with
+ * fdiag set for an unknown ending. */
+ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
+                          ps_diag *fdiag);
+
+#endif

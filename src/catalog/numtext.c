@@ -1,0 +1,196 @@
+/* numtext.c - strict number parsing for catalog text.
+ * strtod alone accepts hex, inf, nan and overflows to inf; all are refused here. */
+#include "catalog/numtext.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* Parse a real starting at s; *end gets the first unparsed byte.
+ * Only decimal forms: [+-]digits[.digits][e[+-]digits]. */
+static int real_prefix(const char *s, double *out, const char **end, const char **why)
+{
+    const char *q = s;
+    if (*q == '+' || *q == '-')
+        q++;
+    if (!isdigit((unsigned char)*q) && !(*q == '.' && isdigit((unsigned char)q[1]))) {
+        *why = "expected a decimal number";
+        return -1;
+    }
+    if (q[0] == '0' && (q[1] == 'x' || q[1] == 'X')) {
+        *why = "hexadecimal numbers are not accepted";
+        return -1;
+    }
+    errno = 0;
+    char *e;
+    double v = strtod(s, &e);
+    if (e == s) {
+        *why = "expected a decimal number";
+        return -1;
+    }
+    if (errno == ERANGE && fabs(v) > 1.0) {
+        *why = "number out of range";
+        return -1;
+    }
+    if (!isfinite(v)) {
+        *why = "number is not finite";
+        return -1;
+    }
+    *out = v;
+    *end = e;
+    return 0;
+}
+
+static const char *skip_blank(const char *s)
+{
+    while (*s == ' ' || *s == '\t')
+        s++;
+    return s;
+}
+
+int ps_text_real(const char *s, double *out, const char **why)
+{
+    const char *e;
+    double v;
+    s = skip_blank(s);
+    if (real_prefix(s, &v, &e, why))
+        return -1;
+    if (*skip_blank(e) != '\0') {
+        *why = "unexpected characters after the number";
+        return -1;
+    }
+    *out = v; /* only on success: a rejected text leaves *out as it was */
+    return 0;
+}
+
+static bool is_imag_unit(char c) { return c == 'j' || c == 'i'; }
+
+int ps_text_complex(const char *s, ps_cplx out[2], const char **why)
+{
+    const char *e;
+    double re, im;
+    s = skip_blank(s);
+    if (real_prefix(s, &re, &e, why))
+        return -1;
+    if (is_imag_unit(*e)) { /* pure imaginary "3j" */
+        if (*skip_blank(e + 1) != '\0') {
+            *why = "unexpected characters after the number";
+            return -1;
+        }
+        out[0] = (ps_cplx){0.0, re};
+        return 1;
+    }
+    e = skip_blank(e);
+    if (*e == '\0') {
+        out[0] = (ps_cplx){re, 0.0};
+        return 1;
+    }
+    bool pair = false;
+    if ((e[0] == '+' && e[1] == '-') || (e[0] == '+' && e[1] == '/' && e[2] == '-')) {
+        pair = true;
+        e += e[1] == '/' ? 3 : 2;
+    } else if ((unsigned char)e[0] == 0xC2 && (unsigned char)e[1] == 0xB1) { /* U+00B1 */
+        pair = true;
+        e += 2;
+    } else if (*e != '+' && *e != '-') {
+        *why = "expected a complex number like -1.5+2j";
+        return -1;
+    }
+    const char *ip = pair ? e : e; /* sign kept for the single form */
+    if (pair && (*ip == '+' || *ip == '-')) {
+        *why = "expected a complex pair like -1.5+-2j";
+        return -1;
+    }
+    if (real_prefix(skip_blank(ip), &im, &e, why))
+        return -1;
+    if (!is_imag_unit(*e) || *skip_blank(e + 1) != '\0') {
+        *why = "imaginary part must end in j";
+        return -1;
+    }
+    if (pair) {
+        out[0] = (ps_cplx){re, fabs(im)};
+        out[1] = (ps_cplx){re, -fabs(im)};
+        return 2;
+    }
+    out[0] = (ps_cplx){re, im};
+    return 1;
+}
+
+/* Copy the next blank-separated token of *s into buf; 0 when none is left. */
+static int next_token(const char **s, char *buf, size_t cap, const char **why)
+{
+    const char *p = *s;
+    while (*p == ' ' || *p == '\t' || *p == ',')
+        p++;
+    if (*p == '\0')
+        return 0;
+    size_t n = 0;
+    while (p[n] && p[n] != ' ' && p[n] != '\t' && p[n] != ',')
+        n++;
+    if (n >= cap) {
+        *why = "number token too long";
+        return -1;
+    }
+    memcpy(buf, p, n);
+    buf[n] = '\0';
+    *s = p + n;
+    return 1;
+}
+
+int ps_text_real_list(const char *s, double *out, size_t cap, size_t *bad_index,
+                      const char **why)
+{
+    char tok[96];
+    size_t n = 0;
+    int r;
+    while ((r = next_token(&s, tok, sizeof tok, why)) == 1) {
+        if (n == cap) {
+            *bad_index = n;
+            *why = "too many values (order limit exceeded)";
+            return -1;
+        }
+        if (ps_text_real(tok, &out[n], why)) {
+            *bad_index = n;
+            return -1;
+        }
+        n++;
+    }
+    if (r < 0) {
+        *bad_index = n;
+        return -1;
+    }
+    return (int)n;
+}
+
+int ps_text_complex_list(const char *s, ps_cplx *out, size_t cap, size_t *bad_index,
+                         const char **why)
+{
+    /* bad_index is the TOKEN position (as the header promises), not the value
+     * count: a pair "a+-bj" is one token but two values. */
+    char tok[128];
+    size_t n = 0, tokens = 0;
+    int r;
+    while ((r = next_token(&s, tok, sizeof tok, why)) == 1) {
+        ps_cplx v[2];
+        int k = ps_text_complex(tok, v, why);
+        if (k < 0) {
+            *bad_index = tokens;
+            return -1;
+        }
+        if (n + (size_t)k > cap) {
+            *bad_index = tokens;
+            *why = "too many values (order limit exceeded)";
+            return -1;
+        }
+        for (int i = 0; i < k; i++)
+            out[n++] = v[i];
+        tokens++;
+    }
+    if (r < 0) {
+        *bad_index = tokens;
+        return -1;
+    }
+    return (int)n;
+}

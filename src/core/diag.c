@@ -1,0 +1,29 @@
+/* diag.c - filling diagnostic records. */
+#include "core/diag.h"
+
+#include <stdarg.h>
+#include <stdio.h>
+#include <string.h>
+
+ps_status ps_diag_set(ps_diag *d, ps_status st, size_t line, size_t col,
+                      const char *field, const char *fmt, ...)
+{
+    if (!d)
+        return st;
+    d->line = line;
+    d->col = col;
+    snprintf(d->field, sizeof d->field, "%s", field ? field : "");
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(d->text, sizeof d->text, fmt, ap);
+    va_end(ap);
+    return st;
+}
+
+void ps_diag_clear(ps_diag *d)
+{
+    if (!d)
+        return;
+    d->line = d->col = 0;
+    d->field[0] = d->text[0] = '\0';
+}

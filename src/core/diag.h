@@ -1,0 +1,36 @@
+/* diag.h - status codes and the diagnostic record every fallible call fills.
+ * The library never prints: callers decide where a diagnostic goes. */
+#ifndef PS_DIAG_H
+#define PS_DIAG_H
+
+#include <stddef.h>
+
+typedef enum ps_status {
+    PS_OK = 0,
+    PS_ERR_INPUT,     /* the catalog is wrong: the entry is rejected, the batch goes on */
+    PS_ERR_SYNTAX,    /* the file cannot be parsed further (YAML/CSV structure broken) */
+    PS_ERR_NUMERIC,   /* a numerical routine failed; recorded on the plant */
+    PS_ERR_IO,        /* a file could not be opened, read or written */
+    PS_ERR_NOMEM
+} ps_status;
+
+enum { PS_DIAG_TEXT = 256, PS_DIAG_FIELD = 48, PS_DIAG_FILE = 512 };
+
+/* Where and why. line and col are 1-based; 0 means "not known". */
+typedef struct ps_diag {
+    char file[PS_DIAG_FILE];
+    size_t line;
+    size_t col;
+    char field[PS_DIAG_FIELD];
+    char text[PS_DIAG_TEXT];
+} ps_diag;
+
+/* Fill d (if not NULL) and return st. text is printf-style. */
+ps_status ps_diag_set(ps_diag *d, ps_status st, size_t line, size_t col,
+                      const char *field, const char *fmt, ...)
+    __attribute__((format(printf, 6, 7)));
+
+/* Clear d to "no diagnostic" but keep its file name. */
+void ps_diag_clear(ps_diag *d);
+
+#endif

@@ -1,0 +1,310 @@
+/* plant.c - catalog entry bookkeeping and validation of the three model forms. */
+#include "model/plant.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <string.h>
+
+static const char *const field_names[PS_F_COUNT] = {
+    [PS_F_ID] = "id",           [PS_F_NOTE] = "note",   [PS_F_NUM] = "numerator",
+    [PS_F_DEN] = "denominator", [PS_F_ZEROS] = "zeros", [PS_F_POLES] = "poles",
+    [PS_F_GAIN] = "gain",       [PS_F_A] = "a",         [PS_F_B] = "b",
+    [PS_F_C] = "c",             [PS_F_D] = "d",         [PS_F_DELAY] = "delay",
+};
+
+const char *ps_field_name(ps_field f)
+{
+    return f < PS_F_COUNT ? field_names[f] : "?";
+}
+
+ps_field ps_field_lookup(const char *key)
+{
+    for (int f = 0; f < PS_F_COUNT; f++)
+        if (strcmp(key, field_names[f]) == 0)
+            return (ps_field)f;
+    return PS_F_COUNT;
+}
+
+const char *ps_form_name(ps_form f)
+{
+    switch (f) {
+    case PS_FORM_POLY: return "polynomial";
+    case PS_FORM_FACTORED: return "factored";
+    case PS_FORM_SS: return "state_space";
+    default: return "none";
+    }
+}
+
+void ps_plant_reset(ps_plant *p)
+{
+    /* Only the bookkeeping is cleared; arrays are valid up to their counts. */
+    p->id[0] = p->note[0] = '\0';
+    p->line = 0;
+    p->present = 0;
+    memset(p->field_line, 0, sizeof p->field_line);
+    memset(p->field_col, 0, sizeof p->field_col);
+    p->form = PS_FORM_NONE;
+    p->n_num = p->n_den = p->n_zeros = p->n_poles = 0;
+    p->a_rows = p->a_cols = p->n_b = p->n_c = 0;
+    p->gain = 1.0;
+    p->d = 0.0;
+    p->delay = 0.0;
+    p->n_warn = 0;
+}
+
+void ps_plant_mark(ps_plant *p, ps_field f, size_t line, size_t col)
+{
+    p->present |= 1u << f;
+    p->field_line[f] = line;
+    p->field_col[f] = col;
+}
+
+void ps_plant_warn(ps_plant *p, const char *fmt, ...)
+{
+    if (p->n_warn >= PS_MAX_WARN)
+        return;
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(p->warn[p->n_warn++], PS_WARN_TEXT, fmt, ap);
+    va_end(ap);
+}
+
+void ps_plant_apply_defaults(ps_plant *p, const ps_plant *df)
+{
+    for (int f = 0; f < PS_F_COUNT; f++) {
+        if (f == PS_F_ID || !ps_plant_has(df, (ps_field)f) || ps_plant_has(p, (ps_field)f))
+            continue;
+        switch ((ps_field)f) {
+        case PS_F_NOTE: memcpy(p->note, df->note, sizeof p->note); break;
+        case PS_F_NUM:
+            p->n_num = df->n_num;
+            memcpy(p->num, df->num, df->n_num * sizeof *p->num);
+            break;
+        case PS_F_DEN:
+            p->n_den = df->n_den;
+            memcpy(p->den, df->den, df->n_den * sizeof *p->den);
+            break;
+        case PS_F_ZEROS:
+            p->n_zeros = df->n_zeros;
+            memcpy(p->zeros, df->zeros, df->n_zeros * sizeof *p->zeros);
+            break;
+        case PS_F_POLES:
+            p->n_poles = df->n_poles;
+            memcpy(p->poles, df->poles, df->n_poles * sizeof *p->poles);
+            break;
+        case PS_F_GAIN: p->gain = df->gain; break;
+        case PS_F_A:
+            p->a_rows = df->a_rows;
+            p->a_cols = df->a_cols;
+            memcpy(p->a, df->a, df->a_rows * df->a_cols * sizeof *p->a);
+            break;
+        case PS_F_B:
+            p->n_b = df->n_b;
+            memcpy(p->b, df->b, df->n_b * sizeof *p->b);
+            break;
+        case PS_F_C:
+            p->n_c = df->n_c;
+            memcpy(p->c, df->c, df->n_c * sizeof *p->c);
+            break;
+        case PS_F_D: p->d = df->d; break;
+        case PS_F_DELAY: p->delay = df->delay; break;
+        default: break;
+        }
+        ps_plant_mark(p, (ps_field)f, df->field_line[f], df->field_col[f]);
+    }
+}
+
+static ps_status field_error(const ps_plant *p, ps_diag *d, ps_field f, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
+
+static ps_status field_error(const ps_plant *p, ps_diag *d, ps_field f, const char *fmt, ...)
+{
+    char text[PS_DIAG_TEXT];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(text, sizeof text, fmt, ap);
+    va_end(ap);
+    size_t line = ps_plant_has(p, f) ? p->field_line[f] : p->line;
+    size_t col = ps_plant_has(p, f) ? p->field_col[f] : 0;
+    return ps_diag_set(d, PS_ERR_INPUT, line, col, ps_field_name(f), "%s", text);
+}
+
+static bool all_finite(const double *x, size_t n)
+{
+    for (size_t i = 0; i < n; i++)
+        if (!isfinite(x[i]))
+            return false;
+    return true;
+}
+
+/* Strip leading (highest-power) zero coefficients; error when nothing is left. */
+static ps_status normalise_poly(ps_plant *p, ps_field f, double *c, size_t *n, ps_diag *d)
+{
+    if (*n == 0)
+        return field_error(p, d, f, "%s is empty: give coefficients in descending powers of s",
+                           ps_field_name(f));
+    if (!all_finite(c, *n))
+        return field_error(p, d, f, "%s has a non-finite coefficient", ps_field_name(f));
+    size_t lead = 0;
+    while (lead < *n && c[lead] == 0.0)
+        lead++;
+    if (lead == *n)
+        return field_error(p, d, f, "%s is all zeros", ps_field_name(f));
+    if (lead > 0) {
+        memmove(c, c + lead, (*n - lead) * sizeof *c);
+        *n -= lead;
+        ps_plant_warn(p, "%s: %zu leading zero coefficient(s) removed", ps_field_name(f), lead);
+    }
+    return PS_OK;
+}
+
+/* Every complex root must appear with its conjugate (same multiplicity).
+ * Matching uses a relative tolerance so a pair typed with rounding passes. */
+static ps_status check_conjugates(const ps_plant *p, ps_field f, const ps_cplx *r, size_t n,
+                                  ps_diag *d)
+{
+    bool used[PS_MAX_ORDER] = {false};
+    for (size_t i = 0; i < n; i++) {
+        if (!isfinite(r[i].re) || !isfinite(r[i].im))
+            return field_error(p, d, f, "%s has a non-finite value", ps_field_name(f));
+        if (r[i].im == 0.0 || used[i])
+            continue;
+        double scale = hypot(r[i].re, r[i].im);
+        size_t k = i + 1;
+        for (; k < n; k++) {
+            if (used[k] || r[k].im == 0.0)
+                continue;
+            if (fabs(r[k].re - r[i].re) <= 1e-9 * scale && fabs(r[k].im + r[i].im) <= 1e-9 * scale)
+                break;
+        }
+        if (k == n)
+            return field_error(p, d, f,
+                               "%s: complex value with imaginary part %g has no conjugate "
+                               "(list both, or write the pair once as re+-imj)",
+                               ps_field_name(f), r[i].im);
+        used[i] = used[k] = true;
+    }
+    return PS_OK;
+}
+
+static ps_status check_poly(ps_plant *p, ps_diag *d)
+{
+    if (!ps_plant_has(p, PS_F_DEN))
+        return field_error(p, d, PS_F_DEN, "%s missing: a polynomial plant needs numerator and denominator",
+                           ps_field_name(PS_F_DEN));
+    if (!ps_plant_has(p, PS_F_NUM))
+        return field_error(p, d, PS_F_NUM, "%s missing: a polynomial plant needs numerator and denominator",
+                           ps_field_name(PS_F_NUM));
+    ps_status st = normalise_poly(p, PS_F_NUM, p->num, &p->n_num, d);
+    if (st == PS_OK)
+        st = normalise_poly(p, PS_F_DEN, p->den, &p->n_den, d);
+    if (st != PS_OK)
+        return st;
+    if (p->n_den - 1 > PS_MAX_ORDER)
+        return field_error(p, d, PS_F_DEN, "%s order above the limit of %d", ps_field_name(PS_F_DEN),
+                           PS_MAX_ORDER);
+    if (p->n_den < 2)
+        return field_error(p, d, PS_F_DEN, "%s is a constant: the plant has no dynamics (order 0)",
+                           ps_field_name(PS_F_DEN));
+    if (p->n_num > p->n_den)
+        return field_error(p, d, PS_F_NUM,
+                           "improper plant: %s degree is above the denominator degree %g",
+                           ps_field_name(PS_F_NUM), (double)(p->n_den - 1));
+    return PS_OK;
+}
+
+static ps_status check_factored(ps_plant *p, ps_diag *d)
+{
+    if (!ps_plant_has(p, PS_F_POLES))
+        return field_error(p, d, PS_F_POLES, "%s missing: a factored plant needs poles (zeros may be empty)",
+                           ps_field_name(PS_F_POLES));
+    if (p->n_poles == 0)
+        return field_error(p, d, PS_F_POLES, "%s is empty: the plant has no dynamics",
+                           ps_field_name(PS_F_POLES));
+    if (p->n_poles > PS_MAX_ORDER)
+        return field_error(p, d, PS_F_POLES, "%s: order above the limit of %d",
+                           ps_field_name(PS_F_POLES), PS_MAX_ORDER);
+    ps_status st = check_conjugates(p, PS_F_ZEROS, p->zeros, p->n_zeros, d);
+    if (st == PS_OK)
+        st = check_conjugates(p, PS_F_POLES, p->poles, p->n_poles, d);
+    if (st != PS_OK)
+        return st;
+    if (p->n_zeros > p->n_poles)
+        return field_error(p, d, PS_F_ZEROS, "improper plant: more %s than poles (%g)",
+                           ps_field_name(PS_F_ZEROS), (double)p->n_poles);
+    if (!isfinite(p->gain))
+        return field_error(p, d, PS_F_GAIN, "%s is not finite", ps_field_name(PS_F_GAIN));
+    if (p->gain == 0.0)
+        return field_error(p, d, PS_F_GAIN, "%s is zero: the plant is identically zero",
+                           ps_field_name(PS_F_GAIN));
+    return PS_OK;
+}
+
+static ps_status check_ss(ps_plant *p, ps_diag *d)
+{
+    for (ps_field f = PS_F_A; f <= PS_F_C; f++)
+        if (!ps_plant_has(p, f))
+            return field_error(p, d, f, "%s missing: a state-space plant needs a, b and c (d defaults to 0)",
+                               ps_field_name(f));
+    size_t n = p->a_rows;
+    if (n == 0)
+        return field_error(p, d, PS_F_A, "%s is empty", ps_field_name(PS_F_A));
+    if (n > PS_MAX_ORDER || p->a_cols > PS_MAX_ORDER)
+        return field_error(p, d, PS_F_A, "%s: order above the limit of %d", ps_field_name(PS_F_A),
+                           PS_MAX_ORDER);
+    if (p->a_cols != n)
+        return field_error(p, d, PS_F_A, "%s must be square (it has %g columns per row)",
+                           ps_field_name(PS_F_A), (double)p->a_cols);
+    if (p->n_b != n)
+        return field_error(p, d, PS_F_B, "%s must have one entry per state (%g)", ps_field_name(PS_F_B),
+                           (double)n);
+    if (p->n_c != n)
+        return field_error(p, d, PS_F_C, "%s must have one entry per state (%g)", ps_field_name(PS_F_C),
+                           (double)n);
+    if (!all_finite(p->a, n * n))
+        return field_error(p, d, PS_F_A, "%s has a non-finite entry", ps_field_name(PS_F_A));
+    if (!all_finite(p->b, n))
+        return field_error(p, d, PS_F_B, "%s has a non-finite entry", ps_field_name(PS_F_B));
+    if (!all_finite(p->c, n))
+        return field_error(p, d, PS_F_C, "%s has a non-finite entry", ps_field_name(PS_F_C));
+    if (!isfinite(p->d))
+        return field_error(p, d, PS_F_D, "%s is not finite", ps_field_name(PS_F_D));
+    return PS_OK;
+}
+
+ps_status ps_plant_check(ps_plant *p, ps_diag *d)
+{
+    if (!ps_plant_has(p, PS_F_ID) || p->id[0] == '\0')
+        return field_error(p, d, PS_F_ID, "%s missing: every plant needs an id", "id");
+
+    bool poly = ps_plant_has(p, PS_F_NUM) || ps_plant_has(p, PS_F_DEN);
+    bool fact = ps_plant_has(p, PS_F_ZEROS) || ps_plant_has(p, PS_F_POLES) || ps_plant_has(p, PS_F_GAIN);
+    bool ss = ps_plant_has(p, PS_F_A) || ps_plant_has(p, PS_F_B) || ps_plant_has(p, PS_F_C) ||
+              ps_plant_has(p, PS_F_D);
+    int forms = poly + fact + ss;
+    if (forms != 1)
+        return field_error(p, d, PS_F_ID,
+                           forms == 0 ? "plant '%s' gives no model: use numerator/denominator, "
+                                        "zeros/poles/gain, or a/b/c/d"
+                                      : "plant '%s' mixes model forms: give exactly one of "
+                                        "numerator/denominator, zeros/poles/gain, a/b/c/d",
+                           p->id);
+
+    if (!isfinite(p->delay) || p->delay < 0.0)
+        return field_error(p, d, PS_F_DELAY, "%s must be a finite number of seconds >= 0",
+                           ps_field_name(PS_F_DELAY));
+
+    ps_status st;
+    if (poly) {
+        p->form = PS_FORM_POLY;
+        st = check_poly(p, d);
+    } else if (fact) {
+        p->form = PS_FORM_FACTORED;
+        st = check_factored(p, d);
+    } else {
+        p->form = PS_FORM_SS;
+        st = check_ss(p, d);
+    }
+    return st;
+}

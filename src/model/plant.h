@@ -1,0 +1,89 @@
+/* plant.h - one catalog entry as read, and its validation into a checked model.
+ * Readers fill a ps_plant in place (fixed size, no allocation); ps_plant_check normalises it. */
+#ifndef PS_PLANT_H
+#define PS_PLANT_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "core/diag.h"
+
+/* Highest model order accepted (documented in README). Fixed arrays keep the
+ * per-plant path free of allocation; 64 states is far above any plant a
+ * screening catalog holds, and polynomial roots are unreliable well before it. */
+enum { PS_MAX_ORDER = 64, PS_ID_MAX = 96, PS_NOTE_MAX = 256,
+       PS_MAX_WARN = 8, PS_WARN_TEXT = 200 };
+
+typedef enum ps_form { PS_FORM_NONE = 0, PS_FORM_POLY, PS_FORM_FACTORED, PS_FORM_SS } ps_form;
+
+typedef struct ps_cplx { double re, im; } ps_cplx;
+
+/* Catalog fields. The names in ps_field_name() are the catalog keys (YAML) and
+ * column headers (CSV). */
+typedef enum ps_field {
+    PS_F_ID, PS_F_NOTE, PS_F_NUM, PS_F_DEN, PS_F_ZEROS, PS_F_POLES, PS_F_GAIN,
+    PS_F_A, PS_F_B, PS_F_C, PS_F_D, PS_F_DELAY, PS_F_COUNT
+} ps_field;
+
+const char *ps_field_name(ps_field f);
+/* Field for a key; returns PS_F_COUNT when the key is unknown. */
+ps_field ps_field_lookup(const char *key);
+
+typedef struct ps_plant {
+    char id[PS_ID_MAX];
+    char note[PS_NOTE_MAX];
+    size_t line;                       /* line where the entry starts */
+    unsigned present;                  /* bit (1u << ps_field) set when the field was given */
+    size_t field_line[PS_F_COUNT];     /* line of each given field (for diagnostics) */
+    size_t field_col[PS_F_COUNT];
+
+    ps_form form;                      /* set by ps_plant_check */
+
+    /* polynomial form, DESCENDING powers of s */
+    size_t n_num, n_den;
+    double num[PS_MAX_ORDER + 1], den[PS_MAX_ORDER + 1];
+
+    /* factored form; a pair written once ("a+-bj") is stored as both members */
+    size_t n_zeros, n_poles;
+    ps_cplx zeros[PS_MAX_ORDER], poles[PS_MAX_ORDER];
+    double gain;
+
+    /* state space, A row-major; a_rows x a_cols as given (checked square) */
+    size_t a_rows, a_cols, n_b, n_c;
+    double a[PS_MAX_ORDER * PS_MAX_ORDER];
+    double b[PS_MAX_ORDER], c[PS_MAX_ORDER];
+    double d;
+
+    double delay;                      /* seconds, input/output delay; 0 if absent */
+
+    size_t n_warn;
+    char warn[PS_MAX_WARN][PS_WARN_TEXT];
+} ps_plant;
+
+/* Reset p to an empty entry (no fields present). */
+void ps_plant_reset(ps_plant *p);
+
+static inline bool ps_plant_has(const ps_plant *p, ps_field f)
+{
+    return (p->present >> f) & 1u;
+}
+
+/* Mark field f as given at line/col. */
+void ps_plant_mark(ps_plant *p, ps_field f, size_t line, size_t col);
+
+/* Append a warning (printf-style); silently keeps the first PS_MAX_WARN. */
+void ps_plant_warn(ps_plant *p, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+
+/* Copy every field present in defaults and absent in p into p. */
+void ps_plant_apply_defaults(ps_plant *p, const ps_plant *defaults);
+
+/* Validate and normalise an entry as read: exactly one model form, finite
+ * numbers, non-empty non-zero polynomials (leading zeros stripped with a
+ * warning), proper (deg num <= deg den), conjugate-closed roots, square A with
+ * matching B/C, non-negative delay, order <= PS_MAX_ORDER. Sets p->form.
+ * On failure returns PS_ERR_INPUT with d naming the line and field. */
+ps_status ps_plant_check(ps_plant *p, ps_diag *d);
+
+const char *ps_form_name(ps_form f);
+
+#endif

@@ -1,0 +1,210 @@
+/* listing.c - terminal and JSON listing of poles, zeros and structure.
+ * JSON is built with jansson; JSON has no NaN or infinity, so a non-finite
+ * number is written as null with a reason beside it. */
+#include "report/listing.h"
+
+#include <jansson.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+struct ps_listing {
+    FILE *out;
+    bool json;
+    json_t *catalogs;
+    json_t *plants;
+    bool failed;
+};
+
+ps_listing *ps_listing_new(FILE *out, bool json)
+{
+    ps_listing *l = calloc(1, sizeof *l);
+    if (!l)
+        return NULL;
+    l->out = out;
+    l->json = json;
+    l->catalogs = json_array();
+    l->plants = json_array();
+    if (!l->catalogs || !l->plants) {
+        ps_listing_free(l);
+        return NULL;
+    }
+    return l;
+}
+
+void ps_listing_free(ps_listing *l)
+{
+    if (!l)
+        return;
+    json_decref(l->catalogs);
+    json_decref(l->plants);
+    free(l);
+}
+
+/* json_real refuses non-finite values: they become null. */
+static json_t *jnum(double x)
+{
+    return isfinite(x) ? json_real(x) : json_null();
+}
+
+/* A string, or null when it is empty or not valid UTF-8. */
+static json_t *jstr(const char *s)
+{
+    json_t *v = (s && *s) ? json_string(s) : NULL;
+    return v ? v : json_null();
+}
+
+static json_t *jpair(ps_cplx z)
+{
+    return json_pack("[oo]", jnum(z.re), jnum(z.im));
+}
+
+static json_t *jroots(const ps_root *r, size_t n)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; i < n; i++)
+        json_array_append_new(a, jpair(r[i].v));
+    return a;
+}
+
+static json_t *jclasses(const ps_root *r, size_t n)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; i < n; i++)
+        json_array_append_new(a, json_pack("{s:s,s:I,s:o}", "region", ps_region_name(r[i].region),
+                                           "multiplicity", (json_int_t)r[i].mult,
+                                           "tolerance", jnum(r[i].tol)));
+    return a;
+}
+
+static json_t *jwarnings(const ps_plant *p)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; i < p->n_warn; i++)
+        json_array_append_new(a, jstr(p->warn[i]));
+    return a;
+}
+
+static json_t *plant_json(const ps_outcome *o)
+{
+    const ps_plant *p = o->p;
+    json_t *j = json_object();
+    json_object_set_new(j, "id", jstr(p->id));
+    json_object_set_new(j, "note", jstr(p->note));
+    json_object_set_new(j, "source", json_pack("{s:o,s:I}", "file", jstr(o->file), "line",
+                                               (json_int_t)p->line));
+    if (o->err) {
+        const ps_diag *e = o->err;
+        json_object_set_new(j, "form", json_null());
+        json_object_set_new(j, "poles", json_null());
+        json_object_set_new(j, "zeros", json_null());
+        json_object_set_new(j, "gain", json_null());
+        json_object_set_new(j, "delay", json_null());
+        json_object_set_new(j, "relative_degree", json_null());
+        json_object_set_new(j, "classification", json_null());
+        json_object_set_new(j, "hidden_unstable_mode", json_null());
+        json_object_set_new(j, "warnings", jwarnings(p));
+        json_object_set_new(j, "error", json_pack("{s:o,s:o,s:I,s:I,s:o}", "message", jstr(e->text),
+                                                  "file", jstr(o->file), "line", (json_int_t)e->line,
+                                                  "column", (json_int_t)e->col, "field",
+                                                  jstr(e->field)));
+        return j;
+    }
+    const ps_analysis *an = o->an;
+    json_object_set_new(j, "form", json_string(ps_form_name(p->form)));
+    json_object_set_new(j, "poles", jroots(an->poles, an->n_poles));
+    json_object_set_new(j, "zeros", jroots(an->zeros, an->n_zeros));
+    json_object_set_new(j, "gain", jnum(an->gain));
+    json_object_set_new(j, "delay", jnum(an->delay));
+    json_object_set_new(j, "relative_degree", json_integer(an->rel_degree));
+    json_object_set_new(j, "classification",
+                        json_pack("{s:o,s:o,s:I,s:I,s:I}", "poles", jclasses(an->poles, an->n_poles),
+                                  "zeros", jclasses(an->zeros, an->n_zeros), "rhp_poles",
+                                  (json_int_t)an->n_rhp_poles, "rhp_zeros",
+                                  (json_int_t)an->n_rhp_zeros, "axis_poles",
+                                  (json_int_t)an->n_axis_poles));
+    json_object_set_new(j, "hidden_unstable_mode", json_boolean(an->hidden_unstable));
+    json_object_set_new(j, "warnings", jwarnings(p));
+    json_object_set_new(j, "error", json_null());
+    return j;
+}
+
+static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n)
+{
+    fprintf(f, "  %-6s", label);
+    if (n == 0)
+        fputs(" none", f);
+    for (size_t i = 0; i < n; i++) {
+        if (r[i].v.im < 0 && i > 0 && r[i - 1].v.re == r[i].v.re && r[i - 1].v.im == -r[i].v.im)
+            continue; /* the conjugate was printed with +- */
+        if (r[i].v.im != 0)
+            fprintf(f, " %.6g+-%.6gj", r[i].v.re, fabs(r[i].v.im));
+        else
+            fprintf(f, " %.6g", r[i].v.re);
+        if (r[i].region != PS_LHP)
+            fprintf(f, "[%s]", ps_region_name(r[i].region));
+        if (r[i].mult > 1)
+            fprintf(f, "(x%u)", r[i].mult);
+    }
+    fputc('\n', f);
+}
+
+static void plant_text(FILE *f, const ps_outcome *o)
+{
+    const ps_plant *p = o->p;
+    if (o->err) {
+        fprintf(f, "%s  REJECTED  %s:%zu\n  error  %s%s%s\n\n", p->id[0] ? p->id : "(no id)", o->file,
+                o->err->line, o->err->field[0] ? o->err->field : "", o->err->field[0] ? ": " : "",
+                o->err->text);
+        return;
+    }
+    const ps_analysis *an = o->an;
+    fprintf(f, "%s  %s  order %zu  %s:%zu\n", p->id, ps_form_name(p->form), an->n_poles, o->file, p->line);
+    text_roots(f, "poles", an->poles, an->n_poles);
+    text_roots(f, "zeros", an->zeros, an->n_zeros);
+    fprintf(f, "  gain %.6g   relative degree %d   delay %.6g s   RHP poles %zu   RHP zeros %zu%s\n",
+            an->gain, an->rel_degree, an->delay, an->n_rhp_poles, an->n_rhp_zeros,
+            an->hidden_unstable ? "   HIDDEN UNSTABLE MODE" : "");
+    for (size_t i = 0; i < p->n_warn; i++)
+        fprintf(f, "  warning  %s\n", p->warn[i]);
+    fputc('\n', f);
+}
+
+void ps_listing_add(void *ctx, const ps_outcome *o)
+{
+    ps_listing *l = ctx;
+    if (l->json)
+        json_array_append_new(l->plants, plant_json(o));
+    else
+        plant_text(l->out, o);
+}
+
+void ps_listing_catalog(ps_listing *l, const char *file, const ps_diag *fdiag)
+{
+    json_t *c = json_pack("{s:o,s:s}", "file", jstr(file), "status", fdiag ? "failed" : "read");
+    if (fdiag)
+        json_object_set_new(c, "error", json_pack("{s:o,s:I,s:I}", "message", jstr(fdiag->text), "line",
+                                                  (json_int_t)fdiag->line, "column",
+                                                  (json_int_t)fdiag->col));
+    json_array_append_new(l->catalogs, c);
+}
+
+ps_status ps_listing_finish(ps_listing *l, const ps_batch_counts *c)
+{
+    if (l->json) {
+        json_t *doc = json_pack("{s:i,s:{s:s,s:s},s:O,s:{s:I,s:I,s:I},s:O}", "schema_version",
+                                PS_JSON_SCHEMA_VERSION, "tool", "name", "plantsieve", "version",
+                                PS_VERSION, "catalogs", l->catalogs, "counts", "entries",
+                                (json_int_t)c->entries, "models", (json_int_t)c->models, "errors",
+                                (json_int_t)c->errors, "plants", l->plants);
+        if (!doc)
+            return PS_ERR_NOMEM;
+        int rc = json_dumpf(doc, l->out, JSON_INDENT(2) | JSON_REAL_PRECISION(15));
+        json_decref(doc);
+        if (rc != 0 || fputc('\n', l->out) == EOF)
+            return PS_ERR_IO;
+    } else {
+        fprintf(l->out, "%zu entries read: %zu models, %zu rejected\n", c->entries, c->models, c->errors);
+    }
+    return ferror(l->out) ? PS_ERR_IO : PS_OK;
+}

@@ -1,0 +1,64 @@
+/* roots.h - poles, zeros, gain, relative degree and structural checks of a
+ * checked plant, with each root classified against the imaginary axis. */
+#ifndef PS_ROOTS_H
+#define PS_ROOTS_H
+
+#include <stdbool.h>
+
+#include "core/diag.h"
+#include "model/plant.h"
+
+/* Stated tolerances (documented in README and DEVELOPERS.md). */
+#define PS_CLUSTER_RTOL 1e-3      /* cap: roots farther apart (relative) never merge into one multiple root */
+#define PS_CANCEL_RTOL 1e-6       /* RHP zero and RHP pole closer than this cancel exactly */
+#define PS_NEAR_CANCEL_RTOL 0.2   /* closer than this is reported as a near cancellation */
+#define PS_PBH_RTOL 1e-9          /* smallest singular value / norm below this: rank lost */
+
+typedef enum ps_region { PS_LHP = 0, PS_AXIS, PS_RHP } ps_region;
+
+const char *ps_region_name(ps_region r);
+
+typedef struct ps_root {
+    ps_cplx v;
+    ps_region region;
+    unsigned mult;   /* multiplicity of the cluster this root belongs to */
+    double tol;      /* |Re| <= tol counts as on the axis */
+} ps_root;
+
+typedef struct ps_analysis {
+    size_t n_poles, n_zeros;
+    ps_root poles[PS_MAX_ORDER];
+    ps_root zeros[PS_MAX_ORDER];
+    double gain;          /* k in k*prod(s-z)/prod(s-p): leading coefficient ratio */
+    int rel_degree;       /* n_poles - n_zeros of the transfer function */
+    double delay;
+    bool hidden_unstable; /* an RHP mode no controller can reach or see */
+    bool minimal;         /* state space: every mode controllable and observable (RHP only checked) */
+    size_t n_rhp_poles, n_rhp_zeros, n_axis_poles;
+} ps_analysis;
+
+typedef struct ps_roots_ws ps_roots_ws;
+
+/* Call once at start-up, before any thread: GSL's default error handler
+ * aborts the process; this turns it off so failures come back as codes. */
+void ps_roots_init(void);
+
+/* Workspace for plants up to PS_MAX_ORDER; one per thread. NULL on no memory. */
+ps_roots_ws *ps_roots_ws_new(void);
+void ps_roots_ws_free(ps_roots_ws *ws);
+
+/* Analyse a plant that passed ps_plant_check. Warnings (near cancellations,
+ * hidden modes, non-minimal realisations) are appended to p. Returns PS_OK,
+ * or PS_ERR_NUMERIC / PS_ERR_INPUT with d set when a solver fails or the
+ * plant is identically zero. OUT: out. */
+ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_diag *d);
+
+/* Roots of a real polynomial, DESCENDING coefficients c[0..n-1], c[0] != 0.
+ * Roots polished by Newton steps on c, clustered (PS_CLUSTER_RTOL) and
+ * classified. Returns the number of roots (n-1) or -1 with d set. OUT: out. */
+int ps_roots_poly(ps_roots_ws *ws, const double *c, size_t n, ps_root *out, ps_diag *d);
+
+/* Evaluate a DESCENDING-coefficient polynomial at s. */
+ps_cplx ps_poly_eval(const double *c, size_t n, ps_cplx s);
+
+#endif

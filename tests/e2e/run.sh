@@ -1,0 +1,82 @@
+#!/bin/sh
+# run.sh - end-to-end checks of the plantsieve command line on real catalog
+# files: exit codes, stdout, stderr diagnostics, and the JSON document parsed
+# back by Debian's python3. Usage: run.sh PLANTSIEVE SOURCE_DIR
+set -u
+ps=$1
+src=$2
+py=$(command -p -v python3)
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+pass=0
+fail=0
+
+check() { # check NAME EXPECTED_RC ACTUAL_RC
+    if [ "$2" = "$3" ]; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1 (exit $3, expected $2)"; fi
+}
+contains() { # contains NAME FILE TEXT
+    if grep -qF -- "$3" "$2"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1: '$3' not in $2:"; sed 's/^/    /' "$2"; fi
+}
+
+"$ps" --help >"$tmp/out" 2>"$tmp/err"; check "--help exits 0" 0 $?
+contains "--help names survey" "$tmp/out" "survey CATALOG"
+"$ps" --version >"$tmp/out" 2>&1; check "--version exits 0" 0 $?
+contains "--version prints version" "$tmp/out" "plantsieve "
+"$ps" >"$tmp/out" 2>"$tmp/err"; check "no command is a usage error" 2 $?
+contains "usage error points to --help" "$tmp/err" "--help"
+"$ps" frobnicate >"$tmp/out" 2>"$tmp/err"; check "unknown command" 2 $?
+"$ps" survey --bogus x.yaml >"$tmp/out" 2>"$tmp/err"; check "unknown option" 2 $?
+"$ps" survey >"$tmp/out" 2>"$tmp/err"; check "survey without files" 2 $?
+"$ps" survey "$tmp/missing.yaml" >"$tmp/out" 2>"$tmp/err"; check "missing catalog is an I/O error" 4 $?
+contains "missing catalog named" "$tmp/err" "plantsieve: $tmp/missing.yaml"
+
+for cat in "$src/catalogs/demo-variants.yaml" "$src/catalogs/demo-variants.csv"; do
+    "$ps" survey "$cat" >"$tmp/out" 2>"$tmp/err"; check "survey $cat" 0 $?
+    "$ps" survey --json "$cat" >"$tmp/$(basename "$cat").json" 2>"$tmp/err"; check "survey --json $cat" 0 $?
+done
+
+# The same plants in YAML and CSV give identical models (source lines aside).
+"$py" - "$tmp/demo-variants.yaml.json" "$tmp/demo-variants.csv.json" >"$tmp/cmp" 2>&1 <<'PY'
+import json, sys
+a, b = (json.load(open(f)) for f in sys.argv[1:3])
+for doc in (a, b):
+    assert doc["schema_version"] == 1
+    c = doc["counts"]
+    assert c["entries"] == c["models"] + c["errors"], c
+    assert c["errors"] == 0, c
+def strip(p):
+    p = dict(p); p.pop("source"); return p
+pa = [strip(p) for p in a["plants"]]
+pb = [strip(p) for p in b["plants"]]
+assert len(pa) == len(pb) and len(pa) >= 15, (len(pa), len(pb))
+for x, y in zip(pa, pb):
+    assert x == y, (x["id"], y["id"])
+for p in a["plants"]:
+    for k in ("id", "source", "form", "poles", "zeros", "gain", "delay", "relative_degree",
+              "classification", "warnings", "error"):
+        assert k in p, (p["id"], k)
+print("yaml == csv:", len(pa), "plants")
+PY
+check "YAML and CSV demo catalogs agree" 0 $?
+[ "$fail" -eq 0 ] || cat "$tmp/cmp"
+
+# Broken catalogs: every entry ends as a model or an error, diagnostics name file:line.
+for cat in "$src/catalogs/broken/broken-entries.yaml" "$src/catalogs/broken/broken-rows.csv"; do
+    "$ps" survey --json "$cat" >"$tmp/broken.json" 2>"$tmp/err"
+    rc=$?
+    [ "$rc" = 3 ] || [ "$rc" = 4 ]; check "broken catalog $cat exits 3 or 4" 0 $?
+    contains "diagnostic names the file" "$tmp/err" "plantsieve: $cat:"
+    "$py" -c '
+import json, sys
+d = json.load(open(sys.argv[1]))
+c = d["counts"]
+assert c["entries"] == c["models"] + c["errors"] == len(d["plants"]), c
+assert c["errors"] >= 2 and c["models"] >= 2, c
+for p in d["plants"]:
+    if p["error"]:
+        assert p["error"]["line"] > 0 and p["error"]["message"], p
+' "$tmp/broken.json"; check "broken catalog counts $cat" 0 $?
+done
+
+echo "$pass passed, $fail failed"
+[ "$fail" -eq 0 ]

@@ -1,0 +1,165 @@
+/* test_numtext.c - strict parsing of catalog numbers: reals, complex values
+ * and pairs, and blank-separated lists. */
+#include <criterion/criterion.h>
+#include <string.h>
+
+#include "catalog/numtext.h"
+#include "support.h"
+
+TestSuite(numtext, .init = ps_test_init);
+
+static double real_ok(const char *s)
+{
+    double x = -999.0;
+    const char *why = NULL;
+    cr_assert_eq(ps_text_real(s, &x, &why), 0, "'%s' rejected: %s", s, why ? why : "?");
+    return x;
+}
+
+static const char *real_bad(const char *s)
+{
+    double x = 7.125;
+    const char *why = NULL;
+    cr_assert_eq(ps_text_real(s, &x, &why), -1, "'%s' accepted as %g", s, x);
+    cr_assert_not_null(why);
+    cr_expect_eq(x, 7.125, "output untouched on failure");
+    return why;
+}
+
+Test(numtext, reals)
+{
+    cr_expect_eq(real_ok("2.385"), 2.385);
+    cr_expect_eq(real_ok("-19.6"), -19.6);
+    cr_expect_eq(real_ok("+4.75"), 4.75);
+    cr_expect_eq(real_ok(".5"), 0.5);
+    cr_expect_eq(real_ok("5."), 5.0);
+    cr_expect_eq(real_ok("  1.25e-3\t"), 1.25e-3);
+    cr_expect_eq(real_ok("6.02E23"), 6.02e23);
+    cr_expect_eq(real_ok("-0"), 0.0);
+    cr_expect_eq(real_ok("1e-400"), 0.0, "underflow is a tiny number, not an error");
+}
+
+Test(numtext, real_rejections)
+{
+    cr_expect(strstr(real_bad("0x10"), "hexadecimal") != NULL);
+    cr_expect(strstr(real_bad("-0X1p3"), "hexadecimal") != NULL);
+    real_bad("inf");
+    real_bad("-inf");
+    real_bad("infinity");
+    real_bad("nan");
+    real_bad("NAN");
+    cr_expect(strstr(real_bad("1e400"), "out of range") != NULL);
+    cr_expect(strstr(real_bad("-1e400"), "out of range") != NULL);
+    cr_expect(strstr(real_bad("2.5kg"), "unexpected characters") != NULL);
+    real_bad("1 2");
+    real_bad("1,5");
+    real_bad("1e");
+    real_bad("");
+    real_bad("   ");
+    real_bad("-");
+    real_bad(".");
+    real_bad("+-1");
+    real_bad("3j");
+}
+
+static int cplx(const char *s, ps_cplx out[2])
+{
+    const char *why = NULL;
+    int k = ps_text_complex(s, out, &why);
+    cr_assert(k > 0, "'%s' rejected: %s", s, why ? why : "?");
+    return k;
+}
+
+Test(numtext, complex_forms)
+{
+    ps_cplx v[2];
+    cr_assert_eq(cplx("2.385", v), 1);
+    cr_expect(v[0].re == 2.385 && v[0].im == 0.0);
+    cr_assert_eq(cplx("-1.5+2j", v), 1);
+    cr_expect(v[0].re == -1.5 && v[0].im == 2.0);
+    cr_assert_eq(cplx("-1.5-2j", v), 1);
+    cr_expect(v[0].re == -1.5 && v[0].im == -2.0);
+    cr_assert_eq(cplx("3j", v), 1);
+    cr_expect(v[0].re == 0.0 && v[0].im == 3.0);
+    cr_assert_eq(cplx("-3.25j", v), 1);
+    cr_expect(v[0].re == 0.0 && v[0].im == -3.25);
+    cr_assert_eq(cplx("1e1+2.5e-1i", v), 1);
+    cr_expect(v[0].re == 10.0 && v[0].im == 0.25);
+}
+
+Test(numtext, complex_pairs)
+{
+    ps_cplx v[2];
+    const char *forms[] = {"-1.5+-2j", "-1.5\xC2\xB1" "2j", "-1.5+/-2j"};
+    for (size_t i = 0; i < sizeof forms / sizeof *forms; i++) {
+        memset(v, 0, sizeof v);
+        cr_assert_eq(cplx(forms[i], v), 2, "%s", forms[i]);
+        cr_expect(v[0].re == -1.5 && v[0].im == 2.0, "%s: +im first", forms[i]);
+        cr_expect(v[1].re == -1.5 && v[1].im == -2.0, "%s: then -im", forms[i]);
+    }
+}
+
+Test(numtext, complex_rejections)
+{
+    const char *bad[] = {"-1.5+2",  "-1.5+2jj", "1+-+2j", "1+--2j", "1 2j", "1+0x2j", "inf+2j",
+                         "1+infj",  "j",        "1+j",    "1e400j", "2+3jx",  "",     "1*2j"};
+    for (size_t i = 0; i < sizeof bad / sizeof *bad; i++) {
+        ps_cplx v[2];
+        const char *why = NULL;
+        cr_expect_eq(ps_text_complex(bad[i], v, &why), -1, "'%s' accepted", bad[i]);
+        cr_expect_not_null(why, "%s", bad[i]);
+    }
+}
+
+Test(numtext, real_lists)
+{
+    double out[4];
+    size_t bad = 99;
+    const char *why = NULL;
+    cr_assert_eq(ps_text_real_list("1 0 -19.6", out, 4, &bad, &why), 3);
+    cr_expect(out[0] == 1.0 && out[1] == 0.0 && out[2] == -19.6);
+    cr_assert_eq(ps_text_real_list("  2.5\t3.5, 4.5  ", out, 4, &bad, &why), 3);
+    cr_expect_eq(out[2], 4.5);
+    cr_assert_eq(ps_text_real_list("", out, 4, &bad, &why), 0);
+    cr_assert_eq(ps_text_real_list(" \t ", out, 4, &bad, &why), 0);
+    cr_assert_eq(ps_text_real_list("1 2 3 4", out, 4, &bad, &why), 4, "exactly cap is fine");
+
+    cr_assert_eq(ps_text_real_list("1 2 x 4", out, 4, &bad, &why), -1);
+    cr_expect_eq(bad, 2);
+    cr_expect_str_eq(why, "expected a decimal number");
+    cr_assert_eq(ps_text_real_list("1 2 3 4 5", out, 4, &bad, &why), -1);
+    cr_expect_eq(bad, 4);
+    cr_expect(strstr(why, "too many") != NULL);
+    cr_assert_eq(ps_text_real_list("1 nan", out, 4, &bad, &why), -1);
+    cr_expect_eq(bad, 1);
+
+    char longtok[200];
+    memset(longtok, '1', sizeof longtok - 1);
+    longtok[sizeof longtok - 1] = '\0';
+    cr_assert_eq(ps_text_real_list(longtok, out, 4, &bad, &why), -1);
+    cr_expect_eq(bad, 0);
+    cr_expect(strstr(why, "too long") != NULL);
+}
+
+Test(numtext, complex_lists)
+{
+    ps_cplx out[5];
+    size_t bad = 99;
+    const char *why = NULL;
+    cr_assert_eq(ps_text_complex_list("31.3 -31.3 -5+-12j", out, 5, &bad, &why), 4);
+    cr_expect(out[0].re == 31.3 && out[0].im == 0.0);
+    cr_expect(out[1].re == -31.3);
+    cr_expect(out[2].re == -5.0 && out[2].im == 12.0);
+    cr_expect(out[3].re == -5.0 && out[3].im == -12.0);
+
+    /* bad_index is the token position: the pair counts as one token. */
+    cr_assert_eq(ps_text_complex_list("-5+-12j 2 oops", out, 5, &bad, &why), -1);
+    cr_expect_eq(bad, 2, "third token, though it would be the fourth value");
+
+    /* A pair that does not fit is refused whole, never written past cap. */
+    cr_assert_eq(ps_text_complex_list("1 2 3 4 -1+-1j", out, 5, &bad, &why), -1);
+    cr_expect_eq(bad, 4);
+    cr_expect(strstr(why, "too many") != NULL);
+    cr_assert_eq(ps_text_complex_list("1 2 3 -1+-1j", out, 5, &bad, &why), 5);
+    cr_assert_eq(ps_text_complex_list("", out, 5, &bad, &why), 0);
+}

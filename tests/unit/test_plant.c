@@ -1,0 +1,209 @@
+/* test_plant.c - every validation rule of ps_plant_check, provoked on purpose. */
+#include <criterion/criterion.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "model/plant.h"
+#include "support.h"
+
+TestSuite(plant, .init = ps_test_init);
+
+static ps_plant p;
+static ps_diag d;
+
+static void poly(const double *num, size_t nn, const double *den, size_t nd)
+{
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "v-1");
+    p.line = 7;
+    ps_plant_mark(&p, PS_F_ID, 7, 5);
+    memcpy(p.num, num, nn * sizeof *num);
+    memcpy(p.den, den, nd * sizeof *den);
+    p.n_num = nn;
+    p.n_den = nd;
+    ps_plant_mark(&p, PS_F_NUM, 8, 16);
+    ps_plant_mark(&p, PS_F_DEN, 9, 18);
+}
+
+static void expect_error(const char *field, size_t line, const char *text)
+{
+    memset(&d, 0, sizeof d);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_ERR_INPUT);
+    cr_assert_str_eq(d.field, field);
+    cr_assert_eq(d.line, line, "line %zu", d.line);
+    cr_assert(strstr(d.text, text) != NULL, "'%s' not in '%s'", text, d.text);
+}
+
+Test(plant, valid_polynomial_passes)
+{
+    poly((double[]){2.5}, 1, (double[]){1, 0, -19.6}, 3);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(p.form, PS_FORM_POLY);
+    cr_assert_eq(p.n_warn, 0);
+}
+
+Test(plant, leading_zero_is_removed_with_a_warning)
+{
+    poly((double[]){0, 0, 2.5}, 3, (double[]){0, 1, 0, -19.6}, 4);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(p.n_num, 1);
+    cr_assert_eq(p.n_den, 3);
+    cr_assert_float_eq(p.den[0], 1.0, 0);
+    cr_assert_eq(p.n_warn, 2);
+    cr_assert(strstr(p.warn[0], "leading zero") != NULL);
+}
+
+Test(plant, empty_and_all_zero_polynomials)
+{
+    poly((double[]){1}, 1, (double[]){0}, 0);
+    expect_error("denominator", 9, "empty");
+    poly((double[]){0, 0}, 2, (double[]){1, 2}, 2);
+    expect_error("numerator", 8, "all zeros");
+}
+
+Test(plant, non_finite_coefficient)
+{
+    poly((double[]){1}, 1, (double[]){1, NAN, 3}, 3);
+    expect_error("denominator", 9, "non-finite");
+}
+
+Test(plant, improper_plant)
+{
+    poly((double[]){1, 2, 3}, 3, (double[]){1, 2}, 2);
+    expect_error("numerator", 8, "improper");
+}
+
+Test(plant, constant_denominator_has_no_dynamics)
+{
+    poly((double[]){1}, 1, (double[]){4.2}, 1);
+    expect_error("denominator", 9, "constant");
+}
+
+Test(plant, order_above_limit)
+{
+    double den[PS_MAX_ORDER + 2];
+    for (size_t i = 0; i < PS_MAX_ORDER + 2; i++)
+        den[i] = 1.0;
+    poly((double[]){1}, 1, den, PS_MAX_ORDER + 2);
+    expect_error("denominator", 9, "limit of 64");
+    poly((double[]){1}, 1, den, PS_MAX_ORDER + 1); /* order 64 exactly is accepted */
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+}
+
+Test(plant, negative_delay)
+{
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.delay = -0.004;
+    ps_plant_mark(&p, PS_F_DELAY, 11, 12);
+    expect_error("delay", 11, ">= 0");
+}
+
+Test(plant, missing_id_mixed_and_missing_forms)
+{
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.id[0] = '\0';
+    expect_error("id", 7, "needs an id");
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.n_poles = 1;
+    p.poles[0] = (ps_cplx){-2, 0};
+    ps_plant_mark(&p, PS_F_POLES, 10, 3);
+    expect_error("id", 7, "mixes model forms");
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "empty");
+    p.line = 3;
+    ps_plant_mark(&p, PS_F_ID, 3, 1);
+    expect_error("id", 3, "gives no model");
+}
+
+static void factored(const ps_cplx *z, size_t nz, const ps_cplx *q, size_t nq)
+{
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "f-1");
+    p.line = 20;
+    ps_plant_mark(&p, PS_F_ID, 20, 5);
+    memcpy(p.zeros, z, nz * sizeof *z);
+    memcpy(p.poles, q, nq * sizeof *q);
+    p.n_zeros = nz;
+    p.n_poles = nq;
+    p.gain = -1.3;
+    ps_plant_mark(&p, PS_F_ZEROS, 21, 5);
+    ps_plant_mark(&p, PS_F_POLES, 22, 5);
+    ps_plant_mark(&p, PS_F_GAIN, 23, 5);
+}
+
+Test(plant, complex_values_need_conjugates)
+{
+    factored(NULL, 0, (ps_cplx[]){{-1.5, 2}, {-1.5, -2}, {3.1, 0}}, 3);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    factored(NULL, 0, (ps_cplx[]){{-1.5, 2}, {-1.5, 2.5}, {3.1, 0}}, 3);
+    expect_error("poles", 22, "no conjugate");
+    factored((ps_cplx[]){{0.5, 1}}, 1, (ps_cplx[]){{-1, 0}, {-2, 0}}, 2);
+    expect_error("zeros", 21, "no conjugate");
+}
+
+Test(plant, factored_improper_zero_gain_and_no_poles)
+{
+    factored((ps_cplx[]){{1, 0}, {2, 0}}, 2, (ps_cplx[]){{-1, 0}}, 1);
+    expect_error("zeros", 21, "improper");
+    factored(NULL, 0, (ps_cplx[]){{-1, 0}}, 1);
+    p.gain = 0.0;
+    expect_error("gain", 23, "zero");
+    factored(NULL, 0, NULL, 0);
+    expect_error("poles", 22, "empty");
+}
+
+static void ss(size_t rows, size_t cols, size_t nb, size_t nc)
+{
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "s-1");
+    p.line = 30;
+    ps_plant_mark(&p, PS_F_ID, 30, 5);
+    for (size_t i = 0; i < rows * cols; i++)
+        p.a[i] = 0.37 * (double)i;
+    for (size_t i = 0; i < PS_MAX_ORDER; i++)
+        p.b[i] = p.c[i] = 1.0;
+    p.a_rows = rows;
+    p.a_cols = cols;
+    p.n_b = nb;
+    p.n_c = nc;
+    ps_plant_mark(&p, PS_F_A, 31, 8);
+    ps_plant_mark(&p, PS_F_B, 32, 8);
+    ps_plant_mark(&p, PS_F_C, 33, 8);
+}
+
+Test(plant, state_space_sizes)
+{
+    ss(2, 2, 2, 2);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(p.form, PS_FORM_SS);
+    ss(2, 3, 2, 2);
+    expect_error("a", 31, "square");
+    ss(3, 3, 2, 3);
+    expect_error("b", 32, "one entry per state");
+    ss(3, 3, 3, 4);
+    expect_error("c", 33, "one entry per state");
+    ss(2, 2, 2, 2);
+    p.present &= ~(1u << PS_F_C);
+    expect_error("c", 30, "missing");
+    ss(2, 2, 2, 2);
+    p.a[3] = INFINITY;
+    expect_error("a", 31, "non-finite");
+}
+
+Test(plant, defaults_fill_only_absent_fields)
+{
+    static ps_plant df;
+    ps_plant_reset(&df);
+    df.delay = 0.012;
+    ps_plant_mark(&df, PS_F_DELAY, 3, 10);
+    snprintf(df.note, sizeof df.note, "default note");
+    ps_plant_mark(&df, PS_F_NOTE, 4, 9);
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    snprintf(p.note, sizeof p.note, "own note");
+    ps_plant_mark(&p, PS_F_NOTE, 12, 9);
+    ps_plant_apply_defaults(&p, &df);
+    cr_assert_float_eq(p.delay, 0.012, 0);
+    cr_assert_str_eq(p.note, "own note");
+    cr_assert(ps_plant_has(&p, PS_F_DELAY));
+}
