@@ -1,0 +1,237 @@
+/* limits.c - Bode area, band-forced, interpolation and Pick floors.
+ * Complex linear algebra uses GSL (Cholesky, triangular solves, Hermitian
+ * eigenvalues) on views of workspace buffers: no allocation per plant. */
+#include "limits/limits.h"
+
+#include <float.h>
+#include <gsl/gsl_blas.h>
+#include <gsl/gsl_complex.h>
+#include <gsl/gsl_complex_math.h>
+#include <gsl/gsl_eigen.h>
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_linalg.h>
+#include <gsl/gsl_matrix.h>
+#include <math.h>
+#include <stdlib.h>
+
+#include <complex.h> /* after GSL: gsl_complex stays a struct */
+
+enum { NP = PS_MAX_ORDER };
+
+struct ps_limits_ws {
+    double qa[2 * NP * NP], qb[2 * NP * NP], qc[2 * NP * NP];
+    double ev[NP];
+    gsl_eigen_herm_workspace *herm[NP + 1];
+};
+
+ps_limits_ws *ps_limits_ws_new(void)
+{
+    return calloc(1, sizeof(ps_limits_ws));
+}
+
+void ps_limits_ws_free(ps_limits_ws *ws)
+{
+    if (!ws)
+        return;
+    for (size_t i = 0; i <= NP; i++)
+        if (ws->herm[i])
+            gsl_eigen_herm_free(ws->herm[i]);
+    free(ws);
+}
+
+static inline double complex cx(ps_cplx a) { return CMPLX(a.re, a.im); }
+static inline gsl_complex gz(double complex a) { return gsl_complex_rect(creal(a), cimag(a)); }
+
+double ps_bode_area(const ps_cplx *p, size_t np)
+{
+    double s = 0;
+    for (size_t i = 0; i < np; i++)
+        s += p[i].re;
+    return M_PI * s;
+}
+
+double ps_rolloff_tail(double wh, double delta, double k)
+{
+    if (delta <= 0)
+        return 0.0;
+    double sum = 0, dn = 1;
+    for (int n = 1; n < 100000; n++) {
+        dn *= delta;
+        double term = dn / (n * (n * (1 + k) - 1));
+        sum += term;
+        if (term < 1e-17 * sum)
+            break;
+    }
+    return wh * sum;
+}
+
+double ps_band_floor(double F, double wb, double eps, double wh, double delta, double k)
+{
+    double band = wb > 0 ? wb * log(1 / eps) : 0.0;
+    return exp((F + band - ps_rolloff_tail(wh, delta, k)) / (wh - wb));
+}
+
+double ps_ms_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np)
+{
+    double best = 1.0;
+    for (size_t j = 0; j < nz; j++) {
+        double prod = 1.0;
+        for (size_t i = 0; i < np; i++) {
+            double den = cabs(cx(z[j]) - cx(p[i]));
+            if (den == 0)
+                return INFINITY;
+            prod *= cabs(cx(z[j]) + conj(cx(p[i]))) / den;
+        }
+        best = fmax(best, prod);
+    }
+    return best;
+}
+
+double ps_mt_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta)
+{
+    double best = 1.0;
+    for (size_t i = 0; i < np; i++) {
+        double prod = exp(p[i].re * theta);
+        for (size_t j = 0; j < nz; j++) {
+            double den = cabs(cx(z[j]) - cx(p[i]));
+            if (den == 0)
+                return INFINITY;
+            prod *= cabs(conj(cx(z[j])) + cx(p[i])) / den;
+        }
+        best = fmax(best, prod);
+    }
+    return best;
+}
+
+/* Cholesky of the Hermitian n x n matrix in buf (lower triangle used). The
+ * condition estimate is (max pivot / min pivot)^2 of L. */
+static ps_status chol(double *buf, size_t n, double *cond, ps_diag *d, const char *what)
+{
+    gsl_matrix_complex_view M = gsl_matrix_complex_view_array(buf, n, n);
+    int rc = gsl_linalg_complex_cholesky_decomp(&M.matrix);
+    if (rc != GSL_SUCCESS)
+        return ps_diag_set(d, PS_ERR_NUMERIC, 0, 0, "",
+                           "%s matrix is not positive definite in floating point (repeated or "
+                           "near-coincident points): %s",
+                           what, gsl_strerror(rc));
+    double lo = INFINITY, hi = 0;
+    for (size_t i = 0; i < n; i++) {
+        double v = GSL_REAL(gsl_matrix_complex_get(&M.matrix, i, i));
+        lo = fmin(lo, v);
+        hi = fmax(hi, v);
+    }
+    double c = lo > 0 ? (hi / lo) * (hi / lo) : INFINITY;
+    *cond = fmax(*cond, c);
+    if (!(c < 1e14))
+        return ps_diag_set(d, PS_ERR_NUMERIC, 0, 0, "",
+                           "%s matrix is too ill-conditioned (estimate %.2g): points nearly coincide", what, c);
+    return PS_OK;
+}
+
+static gsl_eigen_herm_workspace *herm_ws(ps_limits_ws *ws, size_t n)
+{
+    if (!ws->herm[n])
+        ws->herm[n] = gsl_eigen_herm_alloc(n);
+    return ws->herm[n];
+}
+
+/* Largest eigenvalue of the Hermitian n x n matrix in buf (destroyed). */
+static ps_status lambda_max(ps_limits_ws *ws, double *buf, size_t n, double *out, ps_diag *d)
+{
+    gsl_eigen_herm_workspace *w = herm_ws(ws, n);
+    if (!w)
+        return ps_diag_set(d, PS_ERR_NOMEM, 0, 0, "", "out of memory for the eigen-solver");
+    gsl_matrix_complex_view M = gsl_matrix_complex_view_array(buf, n, n);
+    gsl_vector_view ev = gsl_vector_view_array(ws->ev, n);
+    int rc = gsl_eigen_herm(&M.matrix, &ev.vector, w);
+    if (rc != GSL_SUCCESS)
+        return ps_diag_set(d, PS_ERR_NUMERIC, 0, 0, "", "Hermitian eigenvalues failed: %s", gsl_strerror(rc));
+    double m = -INFINITY;
+    for (size_t i = 0; i < n; i++)
+        m = fmax(m, ws->ev[i]);
+    *out = m;
+    return PS_OK;
+}
+
+static void set(double *buf, size_t ld, size_t i, size_t j, double complex v)
+{
+    buf[2 * (i * ld + j)] = creal(v);
+    buf[2 * (i * ld + j) + 1] = cimag(v);
+}
+
+ps_status ps_chen_floor(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np,
+                        double *out, double *cond, ps_diag *d)
+{
+    *cond = 1.0;
+    if (nz == 0 || np == 0) {
+        *out = 1.0;
+        return PS_OK;
+    }
+    /* Conventions (LIMITS sheet): [Qz]_ik = 1/(z_i + conj z_k),
+     * [Qp]_jl = 1/(conj p_j + p_l), [Qzp]_ij = 1/(z_i - p_j). */
+    for (size_t i = 0; i < nz; i++)
+        for (size_t k = 0; k < nz; k++)
+            set(ws->qa, nz, i, k, 1.0 / (cx(z[i]) + conj(cx(z[k]))));
+    for (size_t j = 0; j < np; j++)
+        for (size_t l = 0; l < np; l++)
+            set(ws->qb, np, j, l, 1.0 / (conj(cx(p[j])) + cx(p[l])));
+    for (size_t i = 0; i < nz; i++)
+        for (size_t j = 0; j < np; j++) {
+            double complex dz = cx(z[i]) - cx(p[j]);
+            if (dz == 0) {
+                *out = INFINITY;
+                return PS_OK; /* exact RHP cancellation: no controller stabilizes */
+            }
+            set(ws->qc, np, i, j, 1.0 / dz);
+        }
+    ps_status st = chol(ws->qa, nz, cond, d, "zero (Qz)");
+    if (st == PS_OK)
+        st = chol(ws->qb, np, cond, d, "pole (Qp)");
+    if (st != PS_OK)
+        return st;
+    gsl_matrix_complex_view Lz = gsl_matrix_complex_view_array(ws->qa, nz, nz);
+    gsl_matrix_complex_view Lp = gsl_matrix_complex_view_array(ws->qb, np, np);
+    gsl_matrix_complex_view X = gsl_matrix_complex_view_array(ws->qc, nz, np);
+    gsl_complex one = gsl_complex_rect(1, 0);
+    /* Y = Lz^-1 Qzp Lp^-H; then sigma_max(Y)^2 = lambda_max(Y^H Y). */
+    gsl_blas_ztrsm(CblasLeft, CblasLower, CblasNoTrans, CblasNonUnit, one, &Lz.matrix, &X.matrix);
+    gsl_blas_ztrsm(CblasRight, CblasLower, CblasConjTrans, CblasNonUnit, one, &Lp.matrix, &X.matrix);
+    gsl_matrix_complex_view G = gsl_matrix_complex_view_array(ws->qa, np, np);
+    gsl_blas_zgemm(CblasConjTrans, CblasNoTrans, one, &X.matrix, &X.matrix, gsl_complex_rect(0, 0),
+                   &G.matrix);
+    double lmax;
+    if ((st = lambda_max(ws, ws->qa, np, &lmax, d)) != PS_OK)
+        return st;
+    *out = sqrt(1.0 + fmax(lmax, 0.0));
+    return PS_OK;
+}
+
+ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
+                        double *cond, ps_diag *d)
+{
+    *cond = 1.0;
+    if (n == 0) {
+        *out = 0.0;
+        return PS_OK;
+    }
+    for (size_t k = 0; k < n; k++)
+        for (size_t l = 0; l < n; l++) {
+            double complex a = 1.0 / (conj(cx(s[k])) + cx(s[l]));
+            set(ws->qa, n, k, l, a);
+            set(ws->qb, n, k, l, conj(cx(w[k])) * cx(w[l]) * a);
+        }
+    ps_status st = chol(ws->qa, n, cond, d, "Pick (point)");
+    if (st != PS_OK)
+        return st;
+    gsl_matrix_complex_view L = gsl_matrix_complex_view_array(ws->qa, n, n);
+    gsl_matrix_complex_view B = gsl_matrix_complex_view_array(ws->qb, n, n);
+    gsl_complex one = gsl_complex_rect(1, 0);
+    /* L^-1 B L^-H is Hermitian with the generalized eigenvalues of (B, A). */
+    gsl_blas_ztrsm(CblasLeft, CblasLower, CblasNoTrans, CblasNonUnit, one, &L.matrix, &B.matrix);
+    gsl_blas_ztrsm(CblasRight, CblasLower, CblasConjTrans, CblasNonUnit, one, &L.matrix, &B.matrix);
+    double lmax;
+    if ((st = lambda_max(ws, ws->qb, n, &lmax, d)) != PS_OK)
+        return st;
+    *out = sqrt(fmax(lmax, 0.0));
+    return PS_OK;
+}

@@ -1,0 +1,53 @@
+/* limits.h - floors that a plant's RHP poles, RHP zeros and delay put on the
+ * achievable sensitivity, for every stabilizing controller. Formulas and
+ * sources: README "Floors" and the comments in limits.c. */
+#ifndef PS_LIMITS_H
+#define PS_LIMITS_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "core/diag.h"
+#include "model/plant.h"
+#include "roots/roots.h"
+
+typedef struct ps_limits_ws ps_limits_ws;
+
+ps_limits_ws *ps_limits_ws_new(void);
+void ps_limits_ws_free(ps_limits_ws *ws);
+
+/* Bode area floor F = pi * sum Re p over RHP poles (with multiplicity). */
+double ps_bode_area(const ps_cplx *p, size_t np);
+
+/* Exact roll-off tail I = integral_{wh}^inf -ln(1 - delta (wh/w)^(1+k)) dw
+ * = wh * sum_{n>=1} delta^n / (n (n (1+k) - 1)), for 0 <= delta < 1, k > 0. */
+double ps_rolloff_tail(double wh, double delta, double k);
+
+/* Peak-sensitivity floor on [wb, wh] forced by |S| <= eps on [0, wb] and the
+ * roll-off (DFT 1992, "Design Constraints"; delta = 0: Stein 2003):
+ * exp([F + wb ln(1/eps) - I] / (wh - wb)). wb = 0 means no band. */
+double ps_band_floor(double F, double wb, double eps, double wh, double delta, double k);
+
+/* Single-point interpolation floors (S&P 2nd ed. 2005, ch. 5):
+ *   ||S|| >= max_j prod_i |z_j + conj(p_i)| / |z_j - p_i|
+ *   ||T|| >= max_i e^{Re(p_i) theta} prod_j |conj(z_j) + p_i| / |z_j - p_i|
+ * Return 1 when there is nothing to bound; INFINITY for an exact cancellation. */
+double ps_ms_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np);
+double ps_mt_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta);
+
+/* Joint tight floor Ms_min = Mt_min = sqrt(1 + sigma_max^2(Qz^-1/2 Qzp Qp^-1/2))
+ * (J. Chen, IEEE TAC 45(6), 2000), no delay; z and p distinct simple points.
+ * Returns PS_OK with *out, or PS_ERR_NUMERIC (Cholesky failed: repeated or
+ * near-coincident points) with d set. *cond gets the larger condition
+ * estimate of Qz, Qp (ratio of extreme Cholesky pivots squared). */
+ps_status ps_chen_floor(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np,
+                        double *out, double *cond, ps_diag *d);
+
+/* Nevanlinna-Pick minimum norm: the smallest gamma such that a stable f with
+ * ||f|| <= gamma and f(s_k) = w_k exists, gamma = sqrt(lambda_max(B, A)),
+ * A_kl = 1/(conj s_k + s_l), B_kl = conj(w_k) w_l / (conj s_k + s_l).
+ * Points in the open RHP, distinct. Same status contract as ps_chen_floor. */
+ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
+                        double *cond, ps_diag *d);
+
+#endif
