@@ -122,8 +122,10 @@ static void factored(const ps_cplx *z, size_t nz, const ps_cplx *q, size_t nq)
     snprintf(p.id, sizeof p.id, "f-1");
     p.line = 20;
     ps_plant_mark(&p, PS_F_ID, 20, 5);
-    memcpy(p.zeros, z, nz * sizeof *z);
-    memcpy(p.poles, q, nq * sizeof *q);
+    if (nz)
+        memcpy(p.zeros, z, nz * sizeof *z);
+    if (nq)
+        memcpy(p.poles, q, nq * sizeof *q);
     p.n_zeros = nz;
     p.n_poles = nq;
     p.gain = -1.3;
