@@ -1,10 +1,15 @@
 /* catalog.c - picks the catalog reader from the file name ending. */
 #include "catalog/catalog.h"
 
+#include <errno.h>
+#include <sys/stat.h>
+
 #include <stdbool.h>
 #include <stdio.h>
 #include <string.h>
 #include <strings.h>
+
+#include "catalog/catalog_internal.h"
 
 /* True when the final name component of path ends in ext (case-insensitive). */
 static bool has_ending(const char *path, const char *ext)
@@ -27,4 +32,30 @@ ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, v
         snprintf(fdiag->file, sizeof fdiag->file, "%s", path);
     return ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL,
                        "unknown catalog type: expected a .yaml, .yml or .csv file");
+}
+
+ps_status ps_catalog_open(const char *path, FILE **out, ps_diag *fdiag)
+{
+    ps_diag_clear(fdiag);
+    if (fdiag)
+        snprintf(fdiag->file, sizeof fdiag->file, "%s", path);
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL, "cannot open: %s", strerror(errno));
+    struct stat st;
+    if (fstat(fileno(f), &st) == 0) {
+        ps_status bad = PS_OK;
+        if (S_ISDIR(st.st_mode))
+            bad = ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL, "cannot read: %s", strerror(EISDIR));
+        else if (S_ISREG(st.st_mode) && st.st_size > PS_CATALOG_MAX_BYTES)
+            bad = ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL,
+                              "file is larger than the catalog size limit of %d bytes",
+                              PS_CATALOG_MAX_BYTES);
+        if (bad != PS_OK) {
+            fclose(f);
+            return bad;
+        }
+    }
+    *out = f;
+    return PS_OK;
 }

@@ -10,6 +10,7 @@
 #include <string.h>
 #include <sys/stat.h>
 
+#include "catalog/catalog_internal.h"
 #include "catalog/numtext.h"
 
 /* Bytes read from the file per fread. The reader hands libcsv one physical
@@ -380,26 +381,10 @@ static void parse_error(csv_reader *r, struct csv_parser *cp, size_t at)
 ps_status ps_csv_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                       ps_diag *fdiag)
 {
-    ps_diag_clear(fdiag);
-    if (fdiag)
-        snprintf(fdiag->file, sizeof fdiag->file, "%s", path);
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL, "cannot open: %s", strerror(errno));
-    struct stat st;
-    if (fstat(fileno(f), &st) == 0) {
-        ps_status bad = PS_OK;
-        if (S_ISDIR(st.st_mode))
-            bad = ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL, "cannot read: %s", strerror(EISDIR));
-        else if (S_ISREG(st.st_mode) && st.st_size > PS_CATALOG_MAX_BYTES)
-            bad = ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL,
-                              "file is larger than the catalog size limit of %d bytes",
-                              PS_CATALOG_MAX_BYTES);
-        if (bad != PS_OK) {
-            fclose(f);
-            return bad;
-        }
-    }
+    FILE *f;
+    ps_status open_st = ps_catalog_open(path, &f, fdiag);
+    if (open_st != PS_OK)
+        return open_st;
 
     csv_reader r = {.path = path, .p = scratch, .fn = fn, .ctx = ctx, .fdiag = fdiag};
     snprintf(r.row_diag.file, sizeof r.row_diag.file, "%s", path);

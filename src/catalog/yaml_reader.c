@@ -11,6 +11,7 @@
 #include <sys/stat.h>
 #include <yaml.h>
 
+#include "catalog/catalog_internal.h"
 #include "catalog/numtext.h"
 
 /* Alias policy. Anchors on scalars and sequences are recorded (as copied
@@ -1104,26 +1105,10 @@ static void read_stream(yaml_rd *r)
 ps_status ps_yaml_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                        ps_diag *fdiag)
 {
-    ps_diag_clear(fdiag);
-    if (fdiag)
-        snprintf(fdiag->file, sizeof fdiag->file, "%s", path);
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL, "cannot open: %s", strerror(errno));
-    struct stat st;
-    if (fstat(fileno(f), &st) == 0) {
-        ps_status bad = PS_OK;
-        if (S_ISDIR(st.st_mode))
-            bad = ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL, "cannot read: %s", strerror(EISDIR));
-        else if (S_ISREG(st.st_mode) && st.st_size > PS_CATALOG_MAX_BYTES)
-            bad = ps_diag_set(fdiag, PS_ERR_IO, 0, 0, NULL,
-                              "file is larger than the catalog size limit of %d bytes",
-                              PS_CATALOG_MAX_BYTES);
-        if (bad != PS_OK) {
-            fclose(f);
-            return bad;
-        }
-    }
+    FILE *f;
+    ps_status open_st = ps_catalog_open(path, &f, fdiag);
+    if (open_st != PS_OK)
+        return open_st;
 
     yaml_rd *r = calloc(1, sizeof *r);
     ps_plant *defaults = malloc(sizeof *defaults);
