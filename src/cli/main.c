@@ -42,11 +42,8 @@ static void report_entry(void *ctx, const ps_outcome *o)
 {
     cli_ctx *c = ctx;
     if (o->err)
-        fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s%s\n", o->file, o->err->line, o->err->col,
-                o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "",
-                o->err->field[0] ? o->err->field : "", o->err->field[0] ? ": " : "");
-    if (o->err)
-        fprintf(stderr, "    %s\n", o->err->text);
+        fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", o->file, o->err->line, o->err->col,
+                o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "", o->err->text);
     ps_listing_add(c->listing, o);
 }
 

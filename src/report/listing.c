@@ -135,8 +135,13 @@ static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n)
     if (n == 0)
         fputs(" none", f);
     for (size_t i = 0; i < n; i++) {
-        if (r[i].v.im < 0 && i > 0 && r[i - 1].v.re == r[i].v.re && r[i - 1].v.im == -r[i].v.im)
-            continue; /* the conjugate was printed with +- */
+        /* Each distinct root once: members of a multiple root and the lower
+         * member of a conjugate pair (printed as re+-imj) are skipped. */
+        bool seen = false;
+        for (size_t k = 0; k < i && !seen; k++)
+            seen = r[k].v.re == r[i].v.re && fabs(r[k].v.im) == fabs(r[i].v.im);
+        if (seen)
+            continue;
         if (r[i].v.im != 0)
             fprintf(f, " %.6g+-%.6gj", r[i].v.re, fabs(r[i].v.im));
         else
@@ -153,9 +158,8 @@ static void plant_text(FILE *f, const ps_outcome *o)
 {
     const ps_plant *p = o->p;
     if (o->err) {
-        fprintf(f, "%s  REJECTED  %s:%zu\n  error  %s%s%s\n\n", p->id[0] ? p->id : "(no id)", o->file,
-                o->err->line, o->err->field[0] ? o->err->field : "", o->err->field[0] ? ": " : "",
-                o->err->text);
+        fprintf(f, "%s  REJECTED  %s:%zu\n  error  %s (field '%s')\n\n", p->id[0] ? p->id : "(no id)",
+                o->file, o->err->line, o->err->text, o->err->field);
         return;
     }
     const ps_analysis *an = o->an;

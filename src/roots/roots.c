@@ -139,9 +139,36 @@ static void finish_roots(ps_root *r, size_t n, double merge_tol)
             if (group[k] == (int)i)
                 r[k].mult = m;
     }
-    for (size_t i = 0; i < n; i++) {
+    for (size_t i = 0; i < n; i++)
         if (fabs(r[i].v.im) <= r[i].tol)
             r[i].v.im = 0.0;
+    /* Make conjugate pairs exact: each root above the real axis is paired
+     * with the nearest unpaired one below it, and both get the averages. */
+    bool paired[NMAX] = {false};
+    for (size_t i = 0; i < n; i++) {
+        if (r[i].v.im <= 0)
+            continue;
+        size_t best = n;
+        double bd = INFINITY;
+        for (size_t k = 0; k < n; k++) {
+            if (paired[k] || r[k].v.im >= 0)
+                continue;
+            double dk = hypot(r[k].v.re - r[i].v.re, r[k].v.im + r[i].v.im);
+            if (dk < bd) {
+                bd = dk;
+                best = k;
+            }
+        }
+        if (best == n)
+            continue;
+        paired[best] = true;
+        double re = 0.5 * (r[i].v.re + r[best].v.re), im = 0.5 * (r[i].v.im - r[best].v.im);
+        double tol = fmax(r[i].tol, r[best].tol);
+        r[i].v = (ps_cplx){re, im};
+        r[best].v = (ps_cplx){re, -im};
+        r[i].tol = r[best].tol = tol;
+    }
+    for (size_t i = 0; i < n; i++) {
         r[i].region = r[i].v.re > r[i].tol ? PS_RHP : r[i].v.re < -r[i].tol ? PS_LHP : PS_AXIS;
     }
 }
