@@ -235,3 +235,8 @@ ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, si
     *out = sqrt(fmax(lmax, 0.0));
     return PS_OK;
 }
+
+double ps_gain_margin_from_ms(double ms) { return ms > 1 ? ms / (ms - 1) : INFINITY; }
+double ps_phase_margin_from_ms(double ms) { return ms >= 0.5 ? 2 * asin(1 / (2 * ms)) * 180 / M_PI : NAN; }
+double ps_gain_margin_from_mt(double mt) { return mt > 0 ? 1 + 1 / mt : INFINITY; }
+double ps_phase_margin_from_mt(double mt) { return ps_phase_margin_from_ms(mt); }

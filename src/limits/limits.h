@@ -50,4 +50,13 @@ ps_status ps_chen_floor(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_
 ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
                         double *cond, ps_diag *d);
 
+/* Margins guaranteed by a peak (exact inequalities; S&P 2nd ed. ch. 2):
+ * from Ms: GM >= Ms/(Ms-1), PM >= 2 asin(1/(2 Ms)); from Mt: GM >= 1 + 1/Mt,
+ * PM >= 2 asin(1/(2 Mt)). Phase margins in degrees. Peak must be > 1 for the
+ * Ms forms (GM is infinite at Ms = 1) and >= 0.5 for the phase forms. */
+double ps_gain_margin_from_ms(double ms);
+double ps_phase_margin_from_ms(double ms);
+double ps_gain_margin_from_mt(double mt);
+double ps_phase_margin_from_mt(double mt);
+
 #endif

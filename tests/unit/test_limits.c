@@ -143,3 +143,18 @@ Test(limits, band_floor_available_bandwidth_form)
     /* with a band: exp((F + wb ln(1/eps)) / (Wa - wb)) */
     cr_assert_float_eq(ps_band_floor(F, 2.5, 0.3, 40, 0.0, 1), exp((F + 2.5 * log(1 / 0.3)) / 37.5), 1e-14);
 }
+
+/* Margin table from the exact inequalities GM >= Ms/(Ms-1), PM >= 2 asin(1/(2Ms))
+ * (S&P 2nd ed. ch. 2): Ms 1.2 -> 6.0, 49.25 deg; 1.6 -> 2.667, 36.42 deg;
+ * 2.0 -> 2, 28.96 deg (values worked by hand from the formulas). */
+Test(limits, margins_guaranteed_by_peaks)
+{
+    cr_assert_float_eq(ps_gain_margin_from_ms(1.2), 6.0, 1e-12);
+    cr_assert_float_eq(ps_phase_margin_from_ms(1.2), 49.25, 0.005);
+    cr_assert_float_eq(ps_gain_margin_from_ms(1.6), 2.6667, 5e-5);
+    cr_assert_float_eq(ps_phase_margin_from_ms(1.6), 36.42, 0.005);
+    cr_assert_float_eq(ps_gain_margin_from_ms(2.0), 2.0, 1e-12);
+    cr_assert_float_eq(ps_phase_margin_from_ms(2.0), 28.96, 0.005);
+    cr_assert_float_eq(ps_gain_margin_from_mt(1.25), 1.8, 1e-12);
+    cr_assert_float_eq(ps_phase_margin_from_mt(1.25), 47.16, 0.005);
+}
