@@ -1,0 +1,31 @@
+/* floors.h - the floors one plant puts on every stabilizing controller that
+ * need no requirement: Bode area, interpolation (joint, with delay), effort,
+ * crossover window. First cut of the limits engine: band-dependent floors
+ * (ms_band, ms_poisson, mt_poisson) come with catalog requirements. */
+#ifndef PS_FLOORS_H
+#define PS_FLOORS_H
+
+#include <stdbool.h>
+
+#include "limits/limits.h"
+#include "roots/roots.h"
+
+typedef struct ps_floors {
+    double bode_area;        /* pi * sum Re p over RHP poles */
+    double ms_interpolation; /* tight joint floor on ||S|| (Chen; with delay the Pick value) */
+    double mt_interpolation; /* tight floor on ||T|| (Pick with delay) */
+    double effort;           /* floor on ||C S|| needed to stabilize (Pick, points p, values e^{p theta}/G_s(p)) */
+    double ms, mt;           /* overall, with ||S|| >= ||T|| - 1 and the converse */
+    const char *limiting;    /* which result sets ms: "interpolation", "complementary", "none" */
+    bool infinite;           /* an exact RHP cancellation: no controller stabilizes */
+    double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
+    bool window_open;
+    double cond;             /* largest condition estimate of the interpolation matrices */
+    char note[160];          /* a fallback taken, or why a value is missing */
+} ps_floors;
+
+/* Compute the floors from an analysed plant. Never fails: a numerical
+ * problem falls back to the single-point products and says so in note. */
+void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out);
+
+#endif
