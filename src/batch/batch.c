@@ -1,4 +1,4 @@
-/* batch.c - the per-entry pipeline: read -> check -> duplicate id -> roots.
+/* batch.c - the per-entry pipeline: read -> check -> duplicate id -> roots -> floors.
  * One scratch entry and one root workspace are reused for every plant. */
 #include "batch/batch.h"
 
@@ -76,7 +76,9 @@ struct ps_batch {
     void *ctx;
     ps_plant *scratch;
     ps_roots_ws *ws;
+    ps_limits_ws *lws;
     ps_analysis an;
+    ps_floors fl;
     idset ids;
     ps_batch_counts counts;
     const char *file;
@@ -91,7 +93,8 @@ ps_batch *ps_batch_new(ps_outcome_fn fn, void *ctx)
     b->ctx = ctx;
     b->scratch = malloc(sizeof *b->scratch);
     b->ws = ps_roots_ws_new();
-    if (!b->scratch || !b->ws) {
+    b->lws = ps_limits_ws_new();
+    if (!b->scratch || !b->ws || !b->lws) {
         ps_batch_free(b);
         return NULL;
     }
@@ -104,6 +107,7 @@ void ps_batch_free(ps_batch *b)
         return;
     free(b->scratch);
     ps_roots_ws_free(b->ws);
+    ps_limits_ws_free(b->lws);
     idset_free(&b->ids);
     free(b);
 }
@@ -111,7 +115,7 @@ void ps_batch_free(ps_batch *b)
 static void deliver_error(ps_batch *b, ps_plant *p, const ps_diag *err)
 {
     b->counts.errors++;
-    ps_outcome o = {b->file, p, NULL, err};
+    ps_outcome o = {b->file, p, NULL, NULL, err};
     b->fn(b->ctx, &o);
 }
 
@@ -140,8 +144,9 @@ static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
         deliver_error(b, p, &d);
         return 0;
     }
+    ps_floors_compute(b->lws, &b->an, &b->fl);
     b->counts.models++;
-    ps_outcome o = {b->file, p, &b->an, NULL};
+    ps_outcome o = {b->file, p, &b->an, &b->fl, NULL};
     b->fn(b->ctx, &o);
     return 0;
 }

@@ -8,6 +8,7 @@
 
 #include "core/diag.h"
 #include "model/plant.h"
+#include "limits/floors.h"
 #include "roots/roots.h"
 
 /* One entry's outcome. When err is NULL the plant was checked and analysed;
@@ -16,6 +17,7 @@ typedef struct ps_outcome {
     const char *file;
     ps_plant *p;
     const ps_analysis *an;   /* NULL when err is set */
+    const ps_floors *fl;     /* NULL when err is set */
     const ps_diag *err;
 } ps_outcome;
 

@@ -85,6 +85,53 @@ static json_t *jwarnings(const ps_plant *p)
     return a;
 }
 
+/* A floor value: a number, or null with a reason in reasons[key]. */
+static void jfloor(json_t *obj, json_t *reasons, const char *key, double x)
+{
+    if (isfinite(x)) {
+        json_object_set_new(obj, key, json_real(x));
+        return;
+    }
+    json_object_set_new(obj, key, json_null());
+    json_object_set_new(reasons, key, json_string(isinf(x) ? "infinite: an RHP zero coincides with an RHP pole"
+                                                           : "not computed"));
+}
+
+static json_t *floors_json(const ps_floors *fl)
+{
+    json_t *f = json_object(), *why = json_object();
+    static const char no_band[] = "needs a performance band requirement; catalog requirements are not "
+                                  "supported yet";
+    json_object_set_new(f, "bode_area", jnum(fl->bode_area));
+    jfloor(f, why, "ms", fl->ms);
+    jfloor(f, why, "mt", fl->mt);
+    jfloor(f, why, "ms_interpolation", fl->ms_interpolation);
+    jfloor(f, why, "mt_interpolation", fl->mt_interpolation);
+    for (const char *const *k = (const char *const[]){"ms_band", "ms_poisson", "mt_poisson", NULL}; *k; k++) {
+        json_object_set_new(f, *k, json_null());
+        json_object_set_new(why, *k, json_string(no_band));
+    }
+    jfloor(f, why, "effort", fl->effort);
+    json_object_set_new(f, "limiting", json_string(fl->limiting));
+    json_object_set_new(f, "infinite", json_boolean(fl->infinite));
+    json_object_set_new(f, "condition_estimate", jnum(fl->cond));
+    json_object_set_new(f, "window", json_pack("{s:o,s:o,s:b,s:s}", "crossover_min", jnum(fl->crossover_min),
+                                               "crossover_max", jnum(fl->crossover_max), "open",
+                                               fl->window_open, "basis", "rules of thumb"));
+    if (isinf(fl->crossover_max))
+        json_object_set_new(why, "crossover_max", json_string("no RHP zero and no delay: no upper limit"));
+    json_object_set_new(f, "assumptions",
+                        json_pack("[s,s,s,s]", "internal stability: no RHP pole/zero cancellation with the controller",
+                                  "LTI SISO plant as given; the controller is any proper LTI controller",
+                                  "with delay, the Ms floor equals the Mt floor (commutant-lifting equality, "
+                                  "checked numerically, not proven here)",
+                                  "crossover window from rules of thumb, not a law"));
+    if (fl->note[0])
+        json_object_set_new(f, "note", json_string(fl->note));
+    json_object_set_new(f, "reasons", why);
+    return f;
+}
+
 static json_t *plant_json(const ps_outcome *o)
 {
     const ps_plant *p = o->p;
@@ -103,6 +150,7 @@ static json_t *plant_json(const ps_outcome *o)
         json_object_set_new(j, "relative_degree", json_null());
         json_object_set_new(j, "classification", json_null());
         json_object_set_new(j, "hidden_unstable_mode", json_null());
+        json_object_set_new(j, "floors", json_null());
         json_object_set_new(j, "warnings", jwarnings(p));
         json_object_set_new(j, "error", json_pack("{s:o,s:o,s:I,s:I,s:o}", "message", jstr(e->text),
                                                   "file", jstr(o->file), "line", (json_int_t)e->line,
@@ -124,6 +172,7 @@ static json_t *plant_json(const ps_outcome *o)
                                   (json_int_t)an->n_rhp_zeros, "axis_poles",
                                   (json_int_t)an->n_axis_poles));
     json_object_set_new(j, "hidden_unstable_mode", json_boolean(an->hidden_unstable));
+    json_object_set_new(j, "floors", floors_json(o->fl));
     json_object_set_new(j, "warnings", jwarnings(p));
     json_object_set_new(j, "error", json_null());
     return j;
@@ -169,6 +218,16 @@ static void plant_text(FILE *f, const ps_outcome *o)
     fprintf(f, "  gain %.6g   relative degree %d   delay %.6g s   RHP poles %zu   RHP zeros %zu%s\n",
             an->gain, an->rel_degree, an->delay, an->n_rhp_poles, an->n_rhp_zeros,
             an->hidden_unstable ? "   HIDDEN UNSTABLE MODE" : "");
+    const ps_floors *fl = o->fl;
+    if (fl->infinite)
+        fputs("  floors  infinite: an RHP zero coincides with an RHP pole\n", f);
+    else
+        fprintf(f, "  floors  Ms >= %.4g  Mt >= %.4g  Bode area %.4g rad/s  effort >= %.4g  "
+                   "crossover window %.4g..%.4g rad/s %s (rules of thumb)\n",
+                fl->ms, fl->mt, fl->bode_area, fl->effort, fl->crossover_min, fl->crossover_max,
+                fl->window_open ? "open" : "CLOSED");
+    if (fl->note[0])
+        fprintf(f, "  note  %s\n", fl->note);
     for (size_t i = 0; i < p->n_warn; i++)
         fprintf(f, "  warning  %s\n", p->warn[i]);
     fputc('\n', f);
