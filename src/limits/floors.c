@@ -60,7 +60,9 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
     bool ok_points = distinct(p, np) && distinct(z, nz);
     if (out->infinite) {
         out->ms_interpolation = out->mt_interpolation = INFINITY;
-        snprintf(out->note, sizeof out->note, "an RHP zero coincides with an RHP pole");
+        snprintf(out->note, sizeof out->note, "%s",
+                 an->hidden_unstable ? "hidden unstable mode: no controller can stabilize this plant"
+                                     : "an RHP zero coincides with an RHP pole");
     } else if (np == 0) {
         out->ms_interpolation = ms_single; /* = 1: nothing to interpolate against */
         out->mt_interpolation = 1.0;

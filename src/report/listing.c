@@ -86,15 +86,14 @@ static json_t *jwarnings(const ps_plant *p)
 }
 
 /* A floor value: a number, or null with a reason in reasons[key]. */
-static void jfloor(json_t *obj, json_t *reasons, const char *key, double x)
+static void jfloor(json_t *obj, json_t *reasons, const char *key, double x, const char *why_inf)
 {
     if (isfinite(x)) {
         json_object_set_new(obj, key, json_real(x));
         return;
     }
     json_object_set_new(obj, key, json_null());
-    json_object_set_new(reasons, key, json_string(isinf(x) ? "infinite: an RHP zero coincides with an RHP pole"
-                                                           : "not computed"));
+    json_object_set_new(reasons, key, json_string(isinf(x) ? why_inf : "not computed"));
 }
 
 static json_t *floors_json(const ps_floors *fl)
@@ -103,15 +102,15 @@ static json_t *floors_json(const ps_floors *fl)
     static const char no_band[] = "needs a performance band requirement; catalog requirements are not "
                                   "supported yet";
     json_object_set_new(f, "bode_area", jnum(fl->bode_area));
-    jfloor(f, why, "ms", fl->ms);
-    jfloor(f, why, "mt", fl->mt);
-    jfloor(f, why, "ms_interpolation", fl->ms_interpolation);
-    jfloor(f, why, "mt_interpolation", fl->mt_interpolation);
+    jfloor(f, why, "ms", fl->ms, fl->note);
+    jfloor(f, why, "mt", fl->mt, fl->note);
+    jfloor(f, why, "ms_interpolation", fl->ms_interpolation, fl->note);
+    jfloor(f, why, "mt_interpolation", fl->mt_interpolation, fl->note);
     for (const char *const *k = (const char *const[]){"ms_band", "ms_poisson", "mt_poisson", NULL}; *k; k++) {
         json_object_set_new(f, *k, json_null());
         json_object_set_new(why, *k, json_string(no_band));
     }
-    jfloor(f, why, "effort", fl->effort);
+    jfloor(f, why, "effort", fl->effort, fl->note);
     json_object_set_new(f, "limiting", json_string(fl->limiting));
     json_object_set_new(f, "infinite", json_boolean(fl->infinite));
     json_object_set_new(f, "condition_estimate", jnum(fl->cond));
@@ -220,13 +219,13 @@ static void plant_text(FILE *f, const ps_outcome *o)
             an->hidden_unstable ? "   HIDDEN UNSTABLE MODE" : "");
     const ps_floors *fl = o->fl;
     if (fl->infinite)
-        fputs("  floors  infinite: an RHP zero coincides with an RHP pole\n", f);
+        fprintf(f, "  floors  infinite: %s\n", fl->note);
     else
         fprintf(f, "  floors  Ms >= %.4g  Mt >= %.4g  Bode area %.4g rad/s  effort >= %.4g  "
                    "crossover window %.4g..%.4g rad/s %s (rules of thumb)\n",
                 fl->ms, fl->mt, fl->bode_area, fl->effort, fl->crossover_min, fl->crossover_max,
                 fl->window_open ? "open" : "CLOSED");
-    if (fl->note[0])
+    if (fl->note[0] && !fl->infinite)
         fprintf(f, "  note  %s\n", fl->note);
     for (size_t i = 0; i < p->n_warn; i++)
         fprintf(f, "  warning  %s\n", p->warn[i]);

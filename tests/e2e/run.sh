@@ -60,22 +60,37 @@ PY
 check "YAML and CSV demo catalogs agree" 0 $?
 [ "$fail" -eq 0 ] || cat "$tmp/cmp"
 
+# Every JSON document validates against the shipped schema (python3-jsonschema).
+for doc in "$tmp/demo-variants.yaml.json" "$tmp/demo-variants.csv.json"; do
+    "$py" -c '
+import json, sys, jsonschema
+schema = json.load(open(sys.argv[1]))
+jsonschema.validate(json.load(open(sys.argv[2])), schema)
+' "$src/reports/schema/plantsieve-survey.schema.json" "$doc"; check "JSON validates against the schema: $doc" 0 $?
+done
+
+# The demo report committed in reports/ is what the program writes now.
+(cd "$src" && "$ps" survey --json catalogs/demo-variants.yaml) >"$tmp/now.json" 2>/dev/null
+cmp -s "$tmp/now.json" "$src/reports/demo-survey.json"; check "reports/demo-survey.json is up to date" 0 $?
+
 # Broken catalogs: every entry ends as a model or an error, diagnostics name file:line.
 for cat in "$src/catalogs/broken/broken-entries.yaml" "$src/catalogs/broken/broken-rows.csv"; do
     "$ps" survey --json "$cat" >"$tmp/broken.json" 2>"$tmp/err"
     rc=$?
     [ "$rc" = 3 ] || [ "$rc" = 4 ]; check "broken catalog $cat exits 3 or 4" 0 $?
     contains "diagnostic names the file" "$tmp/err" "plantsieve: $cat:"
+    case "$cat" in *.yaml) contains "duplicate id reported" "$tmp/err" "duplicate id 'ml-ok'" ;; esac
     "$py" -c '
-import json, sys
+import json, sys, jsonschema
 d = json.load(open(sys.argv[1]))
+jsonschema.validate(d, json.load(open(sys.argv[2])))
 c = d["counts"]
 assert c["entries"] == c["models"] + c["errors"] == len(d["plants"]), c
 assert c["errors"] >= 2 and c["models"] >= 2, c
 for p in d["plants"]:
     if p["error"]:
         assert p["error"]["line"] > 0 and p["error"]["message"], p
-' "$tmp/broken.json"; check "broken catalog counts $cat" 0 $?
+' "$tmp/broken.json" "$src/reports/schema/plantsieve-survey.schema.json"; check "broken catalog counts $cat" 0 $?
 done
 
 echo "$pass passed, $fail failed"
