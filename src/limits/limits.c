@@ -240,3 +240,34 @@ double ps_gain_margin_from_ms(double ms) { return ms > 1 ? ms / (ms - 1) : INFIN
 double ps_phase_margin_from_ms(double ms) { return ms >= 0.5 ? 2 * asin(1 / (2 * ms)) * 180 / M_PI : NAN; }
 double ps_gain_margin_from_mt(double mt) { return mt > 0 ? 1 + 1 / mt : INFINITY; }
 double ps_phase_margin_from_mt(double mt) { return ps_phase_margin_from_ms(mt); }
+
+/* Weighted length of the band |w| <= wb seen from the point x + jy (x > 0). */
+static double band_angle(ps_cplx s, double wb)
+{
+    return atan((wb - s.im) / s.re) + atan((wb + s.im) / s.re);
+}
+
+double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb)
+{
+    double best = 1.0;
+    for (size_t j = 0; j < nz; j++) {
+        if (z[j].im < 0)
+            continue; /* one bound per complex pair */
+        double b = ps_ms_single(&z[j], 1, p, np), th = band_angle(z[j], wb);
+        best = fmax(best, pow(1 / eps, th / (M_PI - th)) * pow(b, M_PI / (M_PI - th)));
+    }
+    return best;
+}
+
+double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
+                          double eps_t, double wh)
+{
+    double best = 1.0;
+    for (size_t i = 0; i < np; i++) {
+        if (p[i].im < 0)
+            continue;
+        double b = ps_mt_single(z, nz, &p[i], 1, theta), th = band_angle(p[i], wh);
+        best = fmax(best, pow(1 / eps_t, (M_PI - th) / th) * pow(b, M_PI / th));
+    }
+    return best;
+}

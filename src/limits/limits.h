@@ -50,6 +50,18 @@ ps_status ps_chen_floor(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_
 ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
                         double *cond, ps_diag *d);
 
+/* Poisson floors (Freudenberg & Looze, IEEE TAC 30(6), 1985).
+ * S at the RHP zeros z (one per real zero or complex pair) with |S| <= eps on
+ * [0, wb]: Theta = atan((wb - y)/x) + atan((wb + y)/x), and
+ *   sup_{w >= wb} |S| >= (1/eps)^{Theta/(pi-Theta)} * |B_p(z)^-1|^{pi/(pi-Theta)};
+ * the largest over the zeros (1 when there is no RHP zero).
+ * T at the RHP poles p with delay theta and |T| <= eps_t beyond wh:
+ *   sup_{w <= wh} |T| >= (1/eps_t)^{(pi-Theta)/Theta} * (|B_z(p)^-1| e^{x theta})^{pi/Theta},
+ * Theta = Theta(p, wh); the largest over the poles (1 when there is none). */
+double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb);
+double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
+                          double eps_t, double wh);
+
 /* Margins guaranteed by a peak (exact inequalities; S&P 2nd ed. ch. 2):
  * from Ms: GM >= Ms/(Ms-1), PM >= 2 asin(1/(2 Ms)); from Mt: GM >= 1 + 1/Mt,
  * PM >= 2 asin(1/(2 Mt)). Phase margins in degrees. Peak must be > 1 for the

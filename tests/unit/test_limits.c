@@ -158,3 +158,25 @@ Test(limits, margins_guaranteed_by_peaks)
     cr_assert_float_eq(ps_gain_margin_from_mt(1.25), 1.8, 1e-12);
     cr_assert_float_eq(ps_phase_margin_from_mt(1.25), 47.16, 0.005);
 }
+
+/* Poisson floors, Freudenberg & Looze 1985 (formulas as in DFT 1992, "Design
+ * Constraints"): the band-free limits reduce to the interpolation products,
+ * and a value worked by hand from the formula. */
+Test(limits, poisson_floors_limits_and_hand_value)
+{
+    ps_cplx z[] = {{26, 0}}, p[] = {{6, 0}};
+    /* wb -> 0: Theta -> 0 and the S floor tends to (z+p)/(z-p) = 1.6 */
+    cr_assert_float_eq(ps_poisson_s_floor(z, 1, p, 1, 0.5, 1e-9), 1.6, 1e-9);
+    /* wh -> infinity: Theta -> pi and the T floor tends to 1.6 e^{p theta} */
+    cr_assert_float_eq(ps_poisson_t_floor(z, 1, p, 1, 0.01, 0.5, 1e12), 1.6 * exp(0.06), 1e-6);
+    /* a real zero at 2, no RHP pole, |S| <= 0.5 up to wb = 1:
+     * Theta = 2 atan(1/2) = 0.927295, floor = 2^{0.927295/(pi - 0.927295)} = 1.336793 */
+    cr_assert_float_eq(ps_poisson_s_floor((ps_cplx[]){{2, 0}}, 1, NULL, 0, 0.5, 1.0), 1.336793, 1e-6);
+    /* the floor grows with the band it must hold */
+    cr_assert_gt(ps_poisson_s_floor(z, 1, p, 1, 0.5, 10), ps_poisson_s_floor(z, 1, p, 1, 0.5, 5));
+    /* complex pair: one bound for the pair, the lower member skipped */
+    ps_cplx zz[] = {{3, 4}, {3, -4}};
+    double pair = ps_poisson_s_floor(zz, 2, NULL, 0, 0.3, 2.0);
+    double th = atan((2.0 - 4) / 3) + atan((2.0 + 4) / 3);
+    cr_assert_float_eq(pair, pow(1 / 0.3, th / (M_PI - th)), 1e-12);
+}
