@@ -144,7 +144,7 @@ static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
         deliver_error(b, p, &d);
         return 0;
     }
-    ps_floors_compute(b->lws, &b->an, &b->fl);
+    ps_floors_compute(b->lws, &b->an, &p->req, &b->fl);
     b->counts.models++;
     ps_outcome o = {b->file, p, &b->an, &b->fl, NULL};
     b->fn(b->ctx, &o);

@@ -163,11 +163,10 @@ static void header_field(csv_reader *r, const char *s, size_t len, size_t col, s
     r->cols[r->n_cols++] = f; /* no overflow: every field is accepted at most once */
 }
 
-static void parse_real(csv_reader *r, ps_field f, const char *s, size_t line, size_t col,
-                       double *out)
+static void parse_scalar(csv_reader *r, ps_field f, const char *s, size_t line, size_t col, ps_plant *p)
 {
     const char *why = "";
-    if (ps_text_real(s, out, &why))
+    if (ps_text_scalar_field(p, f, s, &why))
         row_fail(r, line, col, ps_field_name(f), "%s: %s", ps_field_name(f), why);
 }
 
@@ -289,13 +288,13 @@ static void data_field(csv_reader *r, char *s, size_t len, size_t col, size_t li
     case PS_F_DEN: parse_real_list(r, f, s, line, col, p->den, PS_MAX_ORDER + 1, &p->n_den); break;
     case PS_F_ZEROS: parse_complex_list(r, f, s, line, col, p->zeros, &p->n_zeros); break;
     case PS_F_POLES: parse_complex_list(r, f, s, line, col, p->poles, &p->n_poles); break;
-    case PS_F_GAIN: parse_real(r, f, s, line, col, &p->gain); break;
     case PS_F_A: parse_matrix(r, s, line, col); break;
     case PS_F_B: parse_real_list(r, f, s, line, col, p->b, PS_MAX_ORDER, &p->n_b); break;
     case PS_F_C: parse_real_list(r, f, s, line, col, p->c, PS_MAX_ORDER, &p->n_c); break;
-    case PS_F_D: parse_real(r, f, s, line, col, &p->d); break;
-    case PS_F_DELAY: parse_real(r, f, s, line, col, &p->delay); break;
-    default: break;
+    default:
+        if (ps_plant_scalar(p, f))
+            parse_scalar(r, f, s, line, col, p);
+        break;
     }
 }
 

@@ -194,3 +194,39 @@ int ps_text_complex_list(const char *s, ps_cplx *out, size_t cap, size_t *bad_in
     }
     return (int)n;
 }
+
+int ps_text_scalar_field(ps_plant *p, ps_field f, const char *s, const char **why)
+{
+    double *dst = ps_plant_scalar(p, f), v;
+    ps_field_kind kind = ps_field_kind_of(f);
+    if (!dst) {
+        *why = "not a single-valued field";
+        return -1;
+    }
+    if (kind == PS_KIND_REAL)
+        return ps_text_real(s, dst, why);
+    const char *e;
+    s = skip_blank(s);
+    if (real_prefix(s, &v, &e, why))
+        return -1;
+    e = skip_blank(e);
+    double scale = 1.0;
+    if (kind == PS_KIND_FREQ) {
+        if (strcmp(e, "Hz") == 0)
+            scale = 2 * 3.14159265358979323846;
+        else if (*e && strcmp(e, "rad/s") != 0) {
+            *why = "expected a frequency: a number in rad/s, or with the unit rad/s or Hz";
+            return -1;
+        }
+        *dst = v * scale;
+        return 0;
+    }
+    if (strcmp(e, "dB") == 0)
+        v = pow(10.0, v / 20.0);
+    else if (*e) {
+        *why = "expected a ratio, or a level in dB";
+        return -1;
+    }
+    *dst = v;
+    return 0;
+}

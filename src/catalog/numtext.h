@@ -25,4 +25,9 @@ int ps_text_real_list(const char *s, double *out, size_t cap, size_t *bad_index,
 int ps_text_complex_list(const char *s, ps_cplx *out, size_t cap, size_t *bad_index,
                          const char **why);
 
+/* Parse the text of a single-valued field f (ps_field_kind_of) into p:
+ * REAL a number; FREQ a number in rad/s or "<x> rad/s" / "<x> Hz"; RATIO a
+ * number or "<x> dB" (20 log10). Returns 0, or -1 with why set. */
+int ps_text_scalar_field(ps_plant *p, ps_field f, const char *s, const char **why);
+
 #endif

@@ -877,9 +877,8 @@ static bool read_value(yaml_rd *r, ps_plant *p, ps_field f, const ev *v)
         entry_fail(r, v->line, v->col, name, "%s: %s", name, v->value);
         return true;
     }
-    double *dst = f == PS_F_GAIN ? &p->gain : f == PS_F_D ? &p->d : &p->delay;
-    const char *why = "";
-    if (scalar_real(v, dst, &why) != 0)
+    const char *why = "contains a NUL character";
+    if (memchr(v->value, '\0', v->len) || ps_text_scalar_field(p, f, v->value, &why) != 0)
         entry_fail(r, v->line, v->col, name, "%s: %s", name, why);
     return true;
 }

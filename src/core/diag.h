@@ -14,7 +14,7 @@ typedef enum ps_status {
     PS_ERR_NOMEM
 } ps_status;
 
-enum { PS_DIAG_TEXT = 256, PS_DIAG_FIELD = 48, PS_DIAG_FILE = 512 };
+enum { PS_DIAG_TEXT = 512, PS_DIAG_FIELD = 48, PS_DIAG_FILE = 512 };
 
 /* Where and why. line and col are 1-based; 0 means "not known". */
 typedef struct ps_diag {

@@ -45,7 +45,7 @@ static double complex mirror_at(const ps_analysis *an, double complex p)
     return v;
 }
 
-void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
+void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
 {
     ps_cplx p[NP], z[NP], w[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
@@ -118,11 +118,34 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
                                                                                            : single;
     }
 
-    /* Overall: ||S|| >= ||T|| - 1 and ||T|| >= ||S|| - 1 (S + T = 1). */
-    out->ms = fmax(out->ms_interpolation, out->mt_interpolation - 1.0);
-    out->mt = fmax(out->mt_interpolation, out->ms_interpolation - 1.0);
-    out->limiting = out->ms <= 1.0 ? "none"
-                    : out->ms == out->ms_interpolation ? "interpolation" : "complementary";
+    /* Requirement-dependent floors (README "Floors"). */
+    out->ms_band = out->ms_poisson = out->mt_poisson = NAN;
+    bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
+    if (rolloff)
+        out->ms_band = ps_band_floor(out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0, req->wh,
+                                     req->delta, req->k);
+    if (band)
+        out->ms_poisson = out->infinite ? INFINITY : ps_poisson_s_floor(z, nz, p, np, req->eps, req->wb);
+    if (rolloff && req->delta > 0)
+        out->mt_poisson = out->infinite ? INFINITY
+                                        : ps_poisson_t_floor(z, nz, p, np, theta, req->delta / (1 - req->delta), req->wh);
+
+    /* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >= ||S|| - 1 (S + T = 1). */
+    double s_only = out->ms_interpolation, t_only = out->mt_interpolation;
+    const char *s_src = "interpolation";
+    if (out->ms_band > s_only) {
+        s_only = out->ms_band;
+        s_src = "band";
+    }
+    if (out->ms_poisson > s_only) {
+        s_only = out->ms_poisson;
+        s_src = "poisson";
+    }
+    if (out->mt_poisson > t_only)
+        t_only = out->mt_poisson;
+    out->ms = fmax(s_only, t_only - 1.0);
+    out->mt = fmax(t_only, s_only - 1.0);
+    out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
 
     /* Crossover window, rules of thumb (S&P 2nd ed. ch. 5): w_c > 2 p for a
      * real RHP pole (|p| for complex), w_c < z/2 for a real RHP zero (|z|
@@ -135,5 +158,7 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
         out->crossover_max = fmin(out->crossover_max, z[j].im == 0 ? z[j].re / 2 : cabs(cx(z[j])));
     if (theta > 0)
         out->crossover_max = fmin(out->crossover_max, 1 / theta);
+    if (rolloff)
+        out->crossover_max = fmin(out->crossover_max, req->wh);
     out->window_open = out->crossover_min < out->crossover_max;
 }

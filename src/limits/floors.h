@@ -1,7 +1,6 @@
 /* floors.h - the floors one plant puts on every stabilizing controller that
  * need no requirement: Bode area, interpolation (joint, with delay), effort,
- * crossover window. First cut of the limits engine: band-dependent floors
- * (ms_band, ms_poisson, mt_poisson) come with catalog requirements. */
+ * crossover window, and with requirements the band-forced and Poisson floors. */
 #ifndef PS_FLOORS_H
 #define PS_FLOORS_H
 
@@ -15,8 +14,11 @@ typedef struct ps_floors {
     double ms_interpolation; /* tight joint floor on ||S|| (Chen; with delay the Pick value) */
     double mt_interpolation; /* tight floor on ||T|| (Pick with delay) */
     double effort;           /* floor on ||C S|| needed to stabilize (Pick, points p, values e^{p theta}/G_s(p)) */
+    double ms_band;          /* band-forced floor on [wb, wh]; NAN when no roll-off start is given */
+    double ms_poisson;       /* Poisson floor at the RHP zeros; NAN without a band requirement */
+    double mt_poisson;       /* Poisson floor at the RHP poles; NAN without roll-off or with delta = 0 */
     double ms, mt;           /* overall, with ||S|| >= ||T|| - 1 and the converse */
-    const char *limiting;    /* which result sets ms: "interpolation", "complementary", "none" */
+    const char *limiting;    /* which result sets ms: "interpolation", "band", "poisson", "complementary", "none" */
     bool infinite;           /* an exact RHP cancellation: no controller stabilizes */
     double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
     bool window_open;
@@ -24,8 +26,9 @@ typedef struct ps_floors {
     char note[160];          /* a fallback taken, or why a value is missing */
 } ps_floors;
 
-/* Compute the floors from an analysed plant. Never fails: a numerical
- * problem falls back to the single-point products and says so in note. */
-void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out);
+/* Compute the floors from an analysed plant and its requirements (req may
+ * be NULL: no band, no roll-off). Never fails: a numerical problem falls
+ * back to the single-point products and says so in note. */
+void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
 
 #endif

@@ -2,6 +2,7 @@
 #include "model/plant.h"
 
 #include <math.h>
+#include <stddef.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <string.h>
@@ -11,7 +12,48 @@ static const char *const field_names[PS_F_COUNT] = {
     [PS_F_DEN] = "denominator", [PS_F_ZEROS] = "zeros", [PS_F_POLES] = "poles",
     [PS_F_GAIN] = "gain",       [PS_F_A] = "a",         [PS_F_B] = "b",
     [PS_F_C] = "c",             [PS_F_D] = "d",         [PS_F_DELAY] = "delay",
+    [PS_F_MS_ALLOWED] = "peak_s_allowed",     [PS_F_MT_ALLOWED] = "peak_t_allowed",
+    [PS_F_BAND_EDGE] = "band_edge",           [PS_F_BAND_ATTENUATION] = "band_attenuation",
+    [PS_F_ROLLOFF_START] = "rolloff_start",   [PS_F_ROLLOFF_GAIN] = "rolloff_gain",
+    [PS_F_ROLLOFF_SLOPE] = "rolloff_slope",   [PS_F_EFFORT_ALLOWED] = "effort_allowed",
 };
+
+ps_field_kind ps_field_kind_of(ps_field f)
+{
+    switch (f) {
+    case PS_F_GAIN: case PS_F_D: case PS_F_DELAY: case PS_F_MS_ALLOWED: case PS_F_MT_ALLOWED:
+    case PS_F_ROLLOFF_GAIN: case PS_F_ROLLOFF_SLOPE: case PS_F_EFFORT_ALLOWED:
+        return PS_KIND_REAL;
+    case PS_F_BAND_EDGE: case PS_F_ROLLOFF_START: return PS_KIND_FREQ;
+    case PS_F_BAND_ATTENUATION: return PS_KIND_RATIO;
+    default: return PS_KIND_OTHER;
+    }
+}
+
+/* Offset of a single-valued real field in ps_plant, 0 when f is not one. */
+static size_t scalar_offset(ps_field f)
+{
+    switch (f) {
+    case PS_F_GAIN: return offsetof(ps_plant, gain);
+    case PS_F_D: return offsetof(ps_plant, d);
+    case PS_F_DELAY: return offsetof(ps_plant, delay);
+    case PS_F_MS_ALLOWED: return offsetof(ps_plant, req.ms_allowed);
+    case PS_F_MT_ALLOWED: return offsetof(ps_plant, req.mt_allowed);
+    case PS_F_BAND_EDGE: return offsetof(ps_plant, req.wb);
+    case PS_F_BAND_ATTENUATION: return offsetof(ps_plant, req.eps);
+    case PS_F_ROLLOFF_START: return offsetof(ps_plant, req.wh);
+    case PS_F_ROLLOFF_GAIN: return offsetof(ps_plant, req.delta);
+    case PS_F_ROLLOFF_SLOPE: return offsetof(ps_plant, req.k);
+    case PS_F_EFFORT_ALLOWED: return offsetof(ps_plant, req.effort_allowed);
+    default: return 0;
+    }
+}
+
+double *ps_plant_scalar(ps_plant *p, ps_field f)
+{
+    size_t off = scalar_offset(f);
+    return off ? (double *)(void *)((char *)p + off) : NULL;
+}
 
 const char *ps_field_name(ps_field f)
 {
@@ -50,6 +92,7 @@ void ps_plant_reset(ps_plant *p)
     p->gain = 1.0;
     p->d = 0.0;
     p->delay = 0.0;
+    p->req = (ps_requirements){.ms_allowed = 2.0, .mt_allowed = 1.25, .delta = 0.5, .k = 1.0};
     p->n_warn = 0;
 }
 
@@ -93,7 +136,12 @@ void ps_plant_apply_defaults(ps_plant *p, const ps_plant *df)
             p->n_poles = df->n_poles;
             memcpy(p->poles, df->poles, df->n_poles * sizeof *p->poles);
             break;
-        case PS_F_GAIN: p->gain = df->gain; break;
+        case PS_F_GAIN:
+        case PS_F_MS_ALLOWED: case PS_F_MT_ALLOWED: case PS_F_BAND_EDGE: case PS_F_BAND_ATTENUATION:
+        case PS_F_ROLLOFF_START: case PS_F_ROLLOFF_GAIN: case PS_F_ROLLOFF_SLOPE: case PS_F_EFFORT_ALLOWED:
+            memcpy((char *)p + scalar_offset((ps_field)f), (const char *)df + scalar_offset((ps_field)f),
+                   sizeof(double));
+            break;
         case PS_F_A:
             p->a_rows = df->a_rows;
             p->a_cols = df->a_cols;
@@ -273,6 +321,38 @@ static ps_status check_ss(ps_plant *p, ps_diag *d)
     return PS_OK;
 }
 
+/* Requirement ranges: Ms, Mt > 1; eps in (0,1); delta in [0,1); k > 0;
+ * wh > wb > 0 when both are given; effort > 0 when given. */
+static ps_status check_requirements(const ps_plant *p, ps_diag *d)
+{
+    const ps_requirements *q = &p->req;
+    if (!(q->ms_allowed > 1.0))
+        return field_error(p, d, PS_F_MS_ALLOWED, "%s must be above 1 (got %g)", ps_field_name(PS_F_MS_ALLOWED), q->ms_allowed);
+    if (!(q->mt_allowed > 1.0))
+        return field_error(p, d, PS_F_MT_ALLOWED, "%s must be above 1 (got %g)", ps_field_name(PS_F_MT_ALLOWED), q->mt_allowed);
+    bool band = ps_plant_has(p, PS_F_BAND_EDGE), att = ps_plant_has(p, PS_F_BAND_ATTENUATION);
+    if (band != att)
+        return field_error(p, d, band ? PS_F_BAND_ATTENUATION : PS_F_BAND_EDGE,
+                           "%s missing: a band requirement needs band_edge and band_attenuation",
+                           ps_field_name(band ? PS_F_BAND_ATTENUATION : PS_F_BAND_EDGE));
+    if (band && !(q->wb > 0))
+        return field_error(p, d, PS_F_BAND_EDGE, "%s must be above 0 rad/s (got %g)", ps_field_name(PS_F_BAND_EDGE), q->wb);
+    if (att && !(q->eps > 0 && q->eps < 1))
+        return field_error(p, d, PS_F_BAND_ATTENUATION, "%s must be in (0, 1) as a ratio or below 0 dB (got %g)",
+                           ps_field_name(PS_F_BAND_ATTENUATION), q->eps);
+    if (!(q->delta >= 0 && q->delta < 1))
+        return field_error(p, d, PS_F_ROLLOFF_GAIN, "%s must be in [0, 1) (got %g)", ps_field_name(PS_F_ROLLOFF_GAIN), q->delta);
+    if (!(q->k > 0))
+        return field_error(p, d, PS_F_ROLLOFF_SLOPE, "%s must be above 0 (got %g)", ps_field_name(PS_F_ROLLOFF_SLOPE), q->k);
+    if (ps_plant_has(p, PS_F_ROLLOFF_START) && !(q->wh > q->wb && q->wh > 0))
+        return field_error(p, d, PS_F_ROLLOFF_START, "%s must be above band_edge and 0 (got %g rad/s)",
+                           ps_field_name(PS_F_ROLLOFF_START), q->wh);
+    if (ps_plant_has(p, PS_F_EFFORT_ALLOWED) && !(q->effort_allowed > 0))
+        return field_error(p, d, PS_F_EFFORT_ALLOWED, "%s must be above 0 (got %g)", ps_field_name(PS_F_EFFORT_ALLOWED),
+                           q->effort_allowed);
+    return PS_OK;
+}
+
 ps_status ps_plant_check(ps_plant *p, ps_diag *d)
 {
     if (!ps_plant_has(p, PS_F_ID) || p->id[0] == '\0')
@@ -295,7 +375,9 @@ ps_status ps_plant_check(ps_plant *p, ps_diag *d)
         return field_error(p, d, PS_F_DELAY, "%s must be a finite number of seconds >= 0",
                            ps_field_name(PS_F_DELAY));
 
-    ps_status st;
+    ps_status st = check_requirements(p, d);
+    if (st != PS_OK)
+        return st;
     if (poly) {
         p->form = PS_FORM_POLY;
         st = check_poly(p, d);

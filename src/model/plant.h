@@ -22,8 +22,30 @@ typedef struct ps_cplx { double re, im; } ps_cplx;
  * column headers (CSV). */
 typedef enum ps_field {
     PS_F_ID, PS_F_NOTE, PS_F_NUM, PS_F_DEN, PS_F_ZEROS, PS_F_POLES, PS_F_GAIN,
-    PS_F_A, PS_F_B, PS_F_C, PS_F_D, PS_F_DELAY, PS_F_COUNT
+    PS_F_A, PS_F_B, PS_F_C, PS_F_D, PS_F_DELAY,
+    /* requirements (catalog defaults, overridable per plant) */
+    PS_F_MS_ALLOWED, PS_F_MT_ALLOWED, PS_F_BAND_EDGE, PS_F_BAND_ATTENUATION,
+    PS_F_ROLLOFF_START, PS_F_ROLLOFF_GAIN, PS_F_ROLLOFF_SLOPE, PS_F_EFFORT_ALLOWED,
+    PS_F_COUNT
 } ps_field;
+
+/* How a single-valued field is written: a plain number, a frequency
+ * (number = rad/s, or "12 rad/s", "3 Hz"), or a ratio (number, or "-20 dB"). */
+typedef enum ps_field_kind { PS_KIND_OTHER, PS_KIND_REAL, PS_KIND_FREQ, PS_KIND_RATIO } ps_field_kind;
+ps_field_kind ps_field_kind_of(ps_field f);
+
+/* What the future loop must achieve, and what is assumed of the controller's
+ * roll-off. wb = 0 means no band requirement; wh = 0 means no roll-off given. */
+typedef struct ps_requirements {
+    double ms_allowed;   /* allowed peak |S|; default 2.0 (common practice) */
+    double mt_allowed;   /* allowed peak |T|; default 1.25 (S&P 2nd ed. ch. 2, from memory) */
+    double wb;           /* |S| <= eps on [0, wb], rad/s */
+    double eps;
+    double wh;           /* from wh on, |L| <= delta (wh/w)^(1+k), rad/s */
+    double delta;        /* default 0.5 (assumption about the controller) */
+    double k;            /* default 1 (assumption about the controller) */
+    double effort_allowed; /* allowed peak |C S|; 0 = not given */
+} ps_requirements;
 
 const char *ps_field_name(ps_field f);
 /* Field for a key; returns PS_F_COUNT when the key is unknown. */
@@ -55,10 +77,14 @@ typedef struct ps_plant {
     double d;
 
     double delay;                      /* seconds, input/output delay; 0 if absent */
+    ps_requirements req;
 
     size_t n_warn;
     char warn[PS_MAX_WARN][PS_WARN_TEXT];
 } ps_plant;
+
+/* Address of a single-valued real field (gain, d, delay, requirements), NULL otherwise. */
+double *ps_plant_scalar(ps_plant *p, ps_field f);
 
 /* Reset p to an empty entry (no fields present). */
 void ps_plant_reset(ps_plant *p);

@@ -99,16 +99,22 @@ static void jfloor(json_t *obj, json_t *reasons, const char *key, double x, cons
 static json_t *floors_json(const ps_floors *fl)
 {
     json_t *f = json_object(), *why = json_object();
-    static const char no_band[] = "needs a performance band requirement; catalog requirements are not "
-                                  "supported yet";
     json_object_set_new(f, "bode_area", jnum(fl->bode_area));
     jfloor(f, why, "ms", fl->ms, fl->note);
     jfloor(f, why, "mt", fl->mt, fl->note);
     jfloor(f, why, "ms_interpolation", fl->ms_interpolation, fl->note);
     jfloor(f, why, "mt_interpolation", fl->mt_interpolation, fl->note);
-    for (const char *const *k = (const char *const[]){"ms_band", "ms_poisson", "mt_poisson", NULL}; *k; k++) {
-        json_object_set_new(f, *k, json_null());
-        json_object_set_new(why, *k, json_string(no_band));
+    struct { const char *key; double v; const char *missing; } req_floors[] = {
+        {"ms_band", fl->ms_band, "needs rolloff_start (the available bandwidth w_h)"},
+        {"ms_poisson", fl->ms_poisson, "needs a band requirement (band_edge, band_attenuation)"},
+        {"mt_poisson", fl->mt_poisson, "needs rolloff_start and rolloff_gain > 0 (undefined for rolloff_gain = 0)"},
+    };
+    for (size_t i = 0; i < 3; i++) {
+        if (isnan(req_floors[i].v)) {
+            json_object_set_new(f, req_floors[i].key, json_null());
+            json_object_set_new(why, req_floors[i].key, json_string(req_floors[i].missing));
+        } else
+            jfloor(f, why, req_floors[i].key, req_floors[i].v, fl->note);
     }
     jfloor(f, why, "effort", fl->effort, fl->note);
     json_object_set_new(f, "limiting", json_string(fl->limiting));
@@ -149,6 +155,7 @@ static json_t *plant_json(const ps_outcome *o)
         json_object_set_new(j, "relative_degree", json_null());
         json_object_set_new(j, "classification", json_null());
         json_object_set_new(j, "hidden_unstable_mode", json_null());
+        json_object_set_new(j, "requirements", json_null());
         json_object_set_new(j, "floors", json_null());
         json_object_set_new(j, "warnings", jwarnings(p));
         json_object_set_new(j, "error", json_pack("{s:o,s:o,s:I,s:I,s:o}", "message", jstr(e->text),
@@ -171,6 +178,15 @@ static json_t *plant_json(const ps_outcome *o)
                                   (json_int_t)an->n_rhp_zeros, "axis_poles",
                                   (json_int_t)an->n_axis_poles));
     json_object_set_new(j, "hidden_unstable_mode", json_boolean(an->hidden_unstable));
+    const ps_requirements *q = &p->req;
+    json_object_set_new(j, "requirements",
+                        json_pack("{s:o,s:o,s:o,s:o,s:o,s:o,s:o,s:o}", "peak_s_allowed", jnum(q->ms_allowed),
+                                  "peak_t_allowed", jnum(q->mt_allowed), "band_edge",
+                                  q->wb > 0 ? jnum(q->wb) : json_null(), "band_attenuation",
+                                  q->wb > 0 ? jnum(q->eps) : json_null(), "rolloff_start",
+                                  q->wh > 0 ? jnum(q->wh) : json_null(), "rolloff_gain", jnum(q->delta),
+                                  "rolloff_slope", jnum(q->k), "effort_allowed",
+                                  q->effort_allowed > 0 ? jnum(q->effort_allowed) : json_null()));
     json_object_set_new(j, "floors", floors_json(o->fl));
     json_object_set_new(j, "warnings", jwarnings(p));
     json_object_set_new(j, "error", json_null());

@@ -511,7 +511,9 @@ Test(csv_reader, unknown_column)
     cr_expect_eq(fd.col, 2);
     cr_expect_str_eq(fd.field, "foo");
     cr_expect(strstr(fd.text, "unknown column 'foo' (expected one of id, note, numerator, "
-                              "denominator, zeros, poles, gain, a, b, c, d, delay)") != NULL,
+                              "denominator, zeros, poles, gain, a, b, c, d, delay, peak_s_allowed, "
+                              "peak_t_allowed, band_edge, band_attenuation, rolloff_start, "
+                              "rolloff_gain, rolloff_slope, effort_allowed)") != NULL,
               "%s", fd.text);
 }
 

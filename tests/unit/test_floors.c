@@ -46,7 +46,7 @@ static void run(const ps_cplx *z, size_t nz, const ps_cplx *q, size_t nq, double
     ps_diag d = {0};
     cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
     cr_assert_eq(ps_roots_analyse(rws, &p, &an, &d), PS_OK, "%s", d.text);
-    ps_floors_compute(lws, &an, &fl);
+    ps_floors_compute(lws, &an, &p.req, &fl);
 }
 
 /* Unstable airframe, RHP pole 6, RHP zero 26: Ms_min = Mt_min = 1.6 (Stein 2003).
@@ -118,4 +118,30 @@ Test(floors, exact_cancellation_is_infinite)
     cr_assert(an.hidden_unstable);
     cr_assert(fl.infinite);
     cr_assert(isinf(fl.ms));
+}
+
+/* Available-bandwidth form (Stein 2003): one real RHP pole p against W_a with
+ * delta = 0: Ms >= exp(pi p / W_a); with delta = 0 the T Poisson floor is undefined. */
+Test(floors, band_floor_from_requirements)
+{
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "band");
+    p.poles[0] = (ps_cplx){7.9, 0};
+    p.poles[1] = (ps_cplx){-7.9, 0};
+    p.n_poles = 2;
+    p.gain = 3.1;
+    p.req.wh = 40.0;
+    p.req.delta = 0.0;
+    p.present = (1u << PS_F_ID) | (1u << PS_F_POLES) | (1u << PS_F_GAIN) | (1u << PS_F_ROLLOFF_START) |
+                (1u << PS_F_ROLLOFF_GAIN);
+    ps_diag d = {0};
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(rws, &p, &an, &d), PS_OK, "%s", d.text);
+    ps_floors_compute(lws, &an, &p.req, &fl);
+    cr_assert_float_eq(fl.ms_band, exp(M_PI * 7.9 / 40.0), 1e-12);
+    cr_assert_float_eq(fl.ms, fl.ms_band, 0);
+    cr_assert_str_eq(fl.limiting, "band");
+    cr_assert(isnan(fl.mt_poisson));
+    cr_assert(isnan(fl.ms_poisson));
+    cr_assert_float_eq(fl.crossover_max, 40.0, 0);
 }

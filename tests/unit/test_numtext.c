@@ -163,3 +163,25 @@ Test(numtext, complex_lists)
     cr_assert_eq(ps_text_complex_list("1 2 3 -1+-1j", out, 5, &bad, &why), 5);
     cr_assert_eq(ps_text_complex_list("", out, 5, &bad, &why), 0);
 }
+
+Test(numtext, requirement_units)
+{
+    static ps_plant p;
+    ps_plant_reset(&p);
+    const char *why = "";
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_EDGE, "2.5", &why), 0);
+    cr_assert_float_eq(p.req.wb, 2.5, 0);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_EDGE, "3 Hz", &why), 0);
+    cr_assert_float_eq(p.req.wb, 6 * 3.14159265358979323846, 1e-12);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_ROLLOFF_START, "40 rad/s", &why), 0);
+    cr_assert_float_eq(p.req.wh, 40.0, 0);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_ATTENUATION, "-20 dB", &why), 0);
+    cr_assert_float_eq(p.req.eps, 0.1, 1e-15);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_ATTENUATION, "0.3", &why), 0);
+    cr_assert_float_eq(p.req.eps, 0.3, 0);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_EDGE, "3 kHz", &why), -1);
+    cr_assert(strstr(why, "rad/s or Hz") != NULL, "%s", why);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_ATTENUATION, "-6 dBm", &why), -1);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_MS_ALLOWED, "2 Hz", &why), -1);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_POLES, "2", &why), -1);
+}

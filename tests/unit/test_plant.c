@@ -209,3 +209,49 @@ Test(plant, defaults_fill_only_absent_fields)
     cr_assert_str_eq(p.note, "own note");
     cr_assert(ps_plant_has(&p, PS_F_DELAY));
 }
+
+Test(plant, requirement_defaults_and_ranges)
+{
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    cr_assert_float_eq(p.req.ms_allowed, 2.0, 0);   /* common practice */
+    cr_assert_float_eq(p.req.mt_allowed, 1.25, 0);  /* S&P 2nd ed. ch. 2, from memory */
+    cr_assert_float_eq(p.req.delta, 0.5, 0);
+    cr_assert_float_eq(p.req.k, 1.0, 0);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.req.eps = 1.2;
+    p.req.wb = 3.0;
+    ps_plant_mark(&p, PS_F_BAND_EDGE, 14, 3);
+    ps_plant_mark(&p, PS_F_BAND_ATTENUATION, 15, 3);
+    expect_error("band_attenuation", 15, "(0, 1)");
+
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.req.wb = 3.0;
+    ps_plant_mark(&p, PS_F_BAND_EDGE, 14, 3);
+    expect_error("band_attenuation", 7, "missing");
+
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.req.wb = 30.0;
+    p.req.eps = 0.1;
+    p.req.wh = 20.0;
+    ps_plant_mark(&p, PS_F_BAND_EDGE, 14, 3);
+    ps_plant_mark(&p, PS_F_BAND_ATTENUATION, 15, 3);
+    ps_plant_mark(&p, PS_F_ROLLOFF_START, 16, 3);
+    expect_error("rolloff_start", 16, "above band_edge");
+
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.req.delta = 1.0;
+    ps_plant_mark(&p, PS_F_ROLLOFF_GAIN, 17, 3);
+    expect_error("rolloff_gain", 17, "[0, 1)");
+
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.req.k = 0.0;
+    ps_plant_mark(&p, PS_F_ROLLOFF_SLOPE, 18, 3);
+    expect_error("rolloff_slope", 18, "above 0");
+
+    poly((double[]){1}, 1, (double[]){1, 2}, 2);
+    p.req.ms_allowed = 0.9;
+    ps_plant_mark(&p, PS_F_MS_ALLOWED, 19, 3);
+    expect_error("peak_s_allowed", 19, "above 1");
+}
