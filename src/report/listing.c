@@ -3,6 +3,8 @@
  * number is written as null with a reason beside it. */
 #include "report/listing.h"
 
+#include "limits/limits.h"
+
 #include <jansson.h>
 #include <math.h>
 #include <stdlib.h>
@@ -179,6 +181,22 @@ static json_t *plant_json(const ps_outcome *o)
                                   (json_int_t)an->n_axis_poles));
     json_object_set_new(j, "hidden_unstable_mode", json_boolean(an->hidden_unstable));
     const ps_requirements *q = &p->req;
+    json_t *fj = floors_json(o->fl);
+    /* Margins the allowed peaks would guarantee, the best disk margin any
+     * controller can reach (1/Ms floor), and the time to double of each
+     * real RHP pole (ln 2 / p). */
+    json_object_set_new(fj, "disk_margin_max", jnum(1.0 / o->fl->ms));
+    json_object_set_new(fj, "margins_from_allowed",
+                        json_pack("{s:o,s:o,s:o,s:o}", "gain_margin_from_ms", jnum(ps_gain_margin_from_ms(q->ms_allowed)),
+                                  "phase_margin_deg_from_ms", jnum(ps_phase_margin_from_ms(q->ms_allowed)),
+                                  "gain_margin_from_mt", jnum(ps_gain_margin_from_mt(q->mt_allowed)),
+                                  "phase_margin_deg_from_mt", jnum(ps_phase_margin_from_mt(q->mt_allowed))));
+    json_t *ttd = json_array();
+    for (size_t i = 0; i < an->n_poles; i++)
+        if (an->poles[i].region == PS_RHP && an->poles[i].v.im == 0)
+            json_array_append_new(ttd, json_pack("{s:o,s:o}", "pole", jnum(an->poles[i].v.re), "seconds",
+                                                 jnum(log(2.0) / an->poles[i].v.re)));
+    json_object_set_new(fj, "time_to_double", ttd);
     json_object_set_new(j, "requirements",
                         json_pack("{s:o,s:o,s:o,s:o,s:o,s:o,s:o,s:o}", "peak_s_allowed", jnum(q->ms_allowed),
                                   "peak_t_allowed", jnum(q->mt_allowed), "band_edge",
@@ -187,7 +205,7 @@ static json_t *plant_json(const ps_outcome *o)
                                   q->wh > 0 ? jnum(q->wh) : json_null(), "rolloff_gain", jnum(q->delta),
                                   "rolloff_slope", jnum(q->k), "effort_allowed",
                                   q->effort_allowed > 0 ? jnum(q->effort_allowed) : json_null()));
-    json_object_set_new(j, "floors", floors_json(o->fl));
+    json_object_set_new(j, "floors", fj);
     json_object_set_new(j, "warnings", jwarnings(p));
     json_object_set_new(j, "error", json_null());
     return j;
