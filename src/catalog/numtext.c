@@ -98,12 +98,12 @@ int ps_text_complex(const char *s, ps_cplx out[2], const char **why)
         *why = "expected a complex number like -1.5+2j";
         return -1;
     }
-    const char *ip = pair ? e : e; /* sign kept for the single form */
-    if (pair && (*ip == '+' || *ip == '-')) {
+    /* For the single form e still holds the sign of the imaginary part. */
+    if (pair && (*e == '+' || *e == '-')) {
         *why = "expected a complex pair like -1.5+-2j";
         return -1;
     }
-    if (real_prefix(skip_blank(ip), &im, &e, why))
+    if (real_prefix(skip_blank(e), &im, &e, why))
         return -1;
     if (!is_imag_unit(*e) || *skip_blank(e + 1) != '\0') {
         *why = "imaginary part must end in j";
