@@ -78,12 +78,10 @@ static void file_fail(csv_reader *r, ps_status st, size_t line, size_t col, cons
 {
     if (r->status != PS_OK)
         return;
-    char text[PS_DIAG_TEXT];
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(text, sizeof text, fmt, ap);
+    r->status = ps_diag_vset(r->fdiag, st, line, col, field, fmt, ap);
     va_end(ap);
-    r->status = ps_diag_set(r->fdiag, st, line, col, field, "%s", text);
     r->stop = true;
 }
 
@@ -96,12 +94,10 @@ static void row_fail(csv_reader *r, size_t line, size_t col, const char *field,
     if (r->row_failed)
         return;
     r->row_failed = true;
-    char text[PS_DIAG_TEXT];
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(text, sizeof text, fmt, ap);
+    ps_diag_vset(&r->row_diag, PS_ERR_INPUT, line, col, field, fmt, ap);
     va_end(ap);
-    ps_diag_set(&r->row_diag, PS_ERR_INPUT, line, col, field, "%s", text);
 }
 
 static void row_begin(csv_reader *r, size_t line)

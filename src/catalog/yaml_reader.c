@@ -126,17 +126,17 @@ static void fatal(yaml_rd *r, ps_status st, size_t line, size_t col, const char 
 {
     if (r->status != PS_OK)
         return;
-    char text[PS_DIAG_TEXT];
+    r->status = st;
+    ps_diag local;
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(text, sizeof text, fmt, ap);
+    ps_diag_vset(&local, st, line, col, field, fmt, ap);
     va_end(ap);
-    r->status = st;
-    ps_diag_set(r->fdiag, st, line, col, field, "%s", text);
+    ps_diag_set(r->fdiag, st, line, col, field, "%s", local.text);
     /* Kept here too (fdiag may be NULL): an entry cut by this error is
      * reported with it unless it already had an error of its own. */
     if (!r->entry_failed)
-        ps_diag_set(&r->entry_diag, st, line, col, field, "%s", text);
+        ps_diag_set(&r->entry_diag, st, line, col, field, "%s", local.text);
 }
 
 /* Record the first error of the current entry; later ones are dropped. */
@@ -148,12 +148,10 @@ static void entry_fail(yaml_rd *r, size_t line, size_t col, const char *field, c
     if (r->entry_failed)
         return;
     r->entry_failed = true;
-    char text[PS_DIAG_TEXT];
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(text, sizeof text, fmt, ap);
+    ps_diag_vset(&r->entry_diag, PS_ERR_INPUT, line, col, field, fmt, ap);
     va_end(ap);
-    ps_diag_set(&r->entry_diag, PS_ERR_INPUT, line, col, field, "%s", text);
 }
 
 static const char *kind_name(ev_type t)

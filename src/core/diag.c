@@ -5,17 +5,24 @@
 #include <stdio.h>
 #include <string.h>
 
-ps_status ps_diag_set(ps_diag *d, ps_status st, size_t line, size_t col,
-                      const char *field, const char *fmt, ...)
+ps_status ps_diag_vset(ps_diag *d, ps_status st, size_t line, size_t col, const char *field,
+                       const char *fmt, va_list ap)
 {
     if (!d)
         return st;
     d->line = line;
     d->col = col;
     snprintf(d->field, sizeof d->field, "%s", field ? field : "");
+    vsnprintf(d->text, sizeof d->text, fmt, ap);
+    return st;
+}
+
+ps_status ps_diag_set(ps_diag *d, ps_status st, size_t line, size_t col,
+                      const char *field, const char *fmt, ...)
+{
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(d->text, sizeof d->text, fmt, ap);
+    ps_diag_vset(d, st, line, col, field, fmt, ap);
     va_end(ap);
     return st;
 }

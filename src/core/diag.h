@@ -3,6 +3,7 @@
 #ifndef PS_DIAG_H
 #define PS_DIAG_H
 
+#include <stdarg.h>
 #include <stddef.h>
 
 typedef enum ps_status {
@@ -29,6 +30,10 @@ typedef struct ps_diag {
 ps_status ps_diag_set(ps_diag *d, ps_status st, size_t line, size_t col,
                       const char *field, const char *fmt, ...)
     __attribute__((format(printf, 6, 7)));
+
+/* The same with a va_list, for callers that wrap their own variadic functions. */
+ps_status ps_diag_vset(ps_diag *d, ps_status st, size_t line, size_t col, const char *field,
+                       const char *fmt, va_list ap) __attribute__((format(printf, 6, 0)));
 
 /* Clear d to "no diagnostic" but keep its file name. */
 void ps_diag_clear(ps_diag *d);

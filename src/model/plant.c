@@ -168,14 +168,13 @@ static ps_status field_error(const ps_plant *p, ps_diag *d, ps_field f, const ch
 
 static ps_status field_error(const ps_plant *p, ps_diag *d, ps_field f, const char *fmt, ...)
 {
-    char text[PS_DIAG_TEXT];
-    va_list ap;
-    va_start(ap, fmt);
-    vsnprintf(text, sizeof text, fmt, ap);
-    va_end(ap);
     size_t line = ps_plant_has(p, f) ? p->field_line[f] : p->line;
     size_t col = ps_plant_has(p, f) ? p->field_col[f] : 0;
-    return ps_diag_set(d, PS_ERR_INPUT, line, col, ps_field_name(f), "%s", text);
+    va_list ap;
+    va_start(ap, fmt);
+    ps_status st = ps_diag_vset(d, PS_ERR_INPUT, line, col, ps_field_name(f), fmt, ap);
+    va_end(ap);
+    return st;
 }
 
 static bool all_finite(const double *x, size_t n)
