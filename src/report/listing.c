@@ -4,6 +4,7 @@
 #include "report/listing.h"
 
 #include "limits/limits.h"
+#include "report/json_parts.h"
 
 #include <jansson.h>
 #include <math.h>
@@ -44,13 +45,13 @@ void ps_listing_free(ps_listing *l)
 }
 
 /* json_real refuses non-finite values: they become null. */
-static json_t *jnum(double x)
+json_t *ps_json_num(double x)
 {
     return isfinite(x) ? json_real(x) : json_null();
 }
 
 /* A string, or null when it is empty or not valid UTF-8. */
-static json_t *jstr(const char *s)
+json_t *ps_json_str(const char *s)
 {
     json_t *v = (s && *s) ? json_string(s) : NULL;
     return v ? v : json_null();
@@ -58,7 +59,7 @@ static json_t *jstr(const char *s)
 
 static json_t *jpair(ps_cplx z)
 {
-    return json_pack("[oo]", jnum(z.re), jnum(z.im));
+    return json_pack("[oo]", ps_json_num(z.re), ps_json_num(z.im));
 }
 
 static json_t *jroots(const ps_root *r, size_t n)
@@ -75,7 +76,7 @@ static json_t *jclasses(const ps_root *r, size_t n)
     for (size_t i = 0; i < n; i++)
         json_array_append_new(a, json_pack("{s:s,s:I,s:o}", "region", ps_region_name(r[i].region),
                                            "multiplicity", (json_int_t)r[i].mult,
-                                           "tolerance", jnum(r[i].tol)));
+                                           "tolerance", ps_json_num(r[i].tol)));
     return a;
 }
 
@@ -83,7 +84,7 @@ static json_t *jwarnings(const ps_plant *p)
 {
     json_t *a = json_array();
     for (size_t i = 0; i < p->n_warn; i++)
-        json_array_append_new(a, jstr(p->warn[i]));
+        json_array_append_new(a, ps_json_str(p->warn[i]));
     return a;
 }
 
@@ -98,10 +99,10 @@ static void jfloor(json_t *obj, json_t *reasons, const char *key, double x, cons
     json_object_set_new(reasons, key, json_string(isinf(x) ? why_inf : "not computed"));
 }
 
-static json_t *floors_json(const ps_floors *fl)
+json_t *ps_json_floors(const ps_floors *fl)
 {
     json_t *f = json_object(), *why = json_object();
-    json_object_set_new(f, "bode_area", jnum(fl->bode_area));
+    json_object_set_new(f, "bode_area", ps_json_num(fl->bode_area));
     jfloor(f, why, "ms", fl->ms, fl->note);
     jfloor(f, why, "mt", fl->mt, fl->note);
     jfloor(f, why, "ms_interpolation", fl->ms_interpolation, fl->note);
@@ -121,9 +122,9 @@ static json_t *floors_json(const ps_floors *fl)
     jfloor(f, why, "effort", fl->effort, fl->note);
     json_object_set_new(f, "limiting", json_string(fl->limiting));
     json_object_set_new(f, "infinite", json_boolean(fl->infinite));
-    json_object_set_new(f, "condition_estimate", jnum(fl->cond));
-    json_object_set_new(f, "window", json_pack("{s:o,s:o,s:b,s:s}", "crossover_min", jnum(fl->crossover_min),
-                                               "crossover_max", jnum(fl->crossover_max), "open",
+    json_object_set_new(f, "condition_estimate", ps_json_num(fl->cond));
+    json_object_set_new(f, "window", json_pack("{s:o,s:o,s:b,s:s}", "crossover_min", ps_json_num(fl->crossover_min),
+                                               "crossover_max", ps_json_num(fl->crossover_max), "open",
                                                fl->window_open, "basis", "rules of thumb"));
     if (isinf(fl->crossover_max))
         json_object_set_new(why, "crossover_max", json_string("no RHP zero and no delay: no upper limit"));
@@ -139,13 +140,44 @@ static json_t *floors_json(const ps_floors *fl)
     return f;
 }
 
+void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const double *rhp_real,
+                          size_t n_real)
+{
+    /* Margins the allowed peaks would guarantee, the best disk margin any
+     * controller can reach (1/Ms floor), and the time to double of each
+     * real RHP pole (ln 2 / p). */
+    json_object_set_new(fj, "disk_margin_max", ps_json_num(1.0 / fl->ms));
+    json_object_set_new(fj, "margins_from_allowed",
+                        json_pack("{s:o,s:o,s:o,s:o}", "gain_margin_from_ms",
+                                  ps_json_num(ps_gain_margin_from_ms(q->ms_allowed)), "phase_margin_deg_from_ms",
+                                  ps_json_num(ps_phase_margin_from_ms(q->ms_allowed)), "gain_margin_from_mt",
+                                  ps_json_num(ps_gain_margin_from_mt(q->mt_allowed)), "phase_margin_deg_from_mt",
+                                  ps_json_num(ps_phase_margin_from_mt(q->mt_allowed))));
+    json_t *ttd = json_array();
+    for (size_t i = 0; i < n_real; i++)
+        json_array_append_new(ttd, json_pack("{s:o,s:o}", "pole", ps_json_num(rhp_real[i]), "seconds",
+                                             ps_json_num(log(2.0) / rhp_real[i])));
+    json_object_set_new(fj, "time_to_double", ttd);
+}
+
+json_t *ps_json_requirements(const ps_requirements *q)
+{
+    return json_pack("{s:o,s:o,s:o,s:o,s:o,s:o,s:o,s:o}", "peak_s_allowed", ps_json_num(q->ms_allowed),
+                     "peak_t_allowed", ps_json_num(q->mt_allowed), "band_edge",
+                     q->wb > 0 ? ps_json_num(q->wb) : json_null(), "band_attenuation",
+                     q->wb > 0 ? ps_json_num(q->eps) : json_null(), "rolloff_start",
+                     q->wh > 0 ? ps_json_num(q->wh) : json_null(), "rolloff_gain", ps_json_num(q->delta),
+                     "rolloff_slope", ps_json_num(q->k), "effort_allowed",
+                     q->effort_allowed > 0 ? ps_json_num(q->effort_allowed) : json_null());
+}
+
 static json_t *plant_json(const ps_outcome *o)
 {
     const ps_plant *p = o->p;
     json_t *j = json_object();
-    json_object_set_new(j, "id", jstr(p->id));
-    json_object_set_new(j, "note", jstr(p->note));
-    json_object_set_new(j, "source", json_pack("{s:o,s:I}", "file", jstr(o->file), "line",
+    json_object_set_new(j, "id", ps_json_str(p->id));
+    json_object_set_new(j, "note", ps_json_str(p->note));
+    json_object_set_new(j, "source", json_pack("{s:o,s:I}", "file", ps_json_str(o->file), "line",
                                                (json_int_t)p->line));
     if (o->err) {
         const ps_diag *e = o->err;
@@ -160,18 +192,18 @@ static json_t *plant_json(const ps_outcome *o)
         json_object_set_new(j, "requirements", json_null());
         json_object_set_new(j, "floors", json_null());
         json_object_set_new(j, "warnings", jwarnings(p));
-        json_object_set_new(j, "error", json_pack("{s:o,s:o,s:I,s:I,s:o}", "message", jstr(e->text),
-                                                  "file", jstr(o->file), "line", (json_int_t)e->line,
+        json_object_set_new(j, "error", json_pack("{s:o,s:o,s:I,s:I,s:o}", "message", ps_json_str(e->text),
+                                                  "file", ps_json_str(o->file), "line", (json_int_t)e->line,
                                                   "column", (json_int_t)e->col, "field",
-                                                  jstr(e->field)));
+                                                  ps_json_str(e->field)));
         return j;
     }
     const ps_analysis *an = o->an;
     json_object_set_new(j, "form", json_string(ps_form_name(p->form)));
     json_object_set_new(j, "poles", jroots(an->poles, an->n_poles));
     json_object_set_new(j, "zeros", jroots(an->zeros, an->n_zeros));
-    json_object_set_new(j, "gain", jnum(an->gain));
-    json_object_set_new(j, "delay", jnum(an->delay));
+    json_object_set_new(j, "gain", ps_json_num(an->gain));
+    json_object_set_new(j, "delay", ps_json_num(an->delay));
     json_object_set_new(j, "relative_degree", json_integer(an->rel_degree));
     json_object_set_new(j, "classification",
                         json_pack("{s:o,s:o,s:I,s:I,s:I}", "poles", jclasses(an->poles, an->n_poles),
@@ -181,30 +213,14 @@ static json_t *plant_json(const ps_outcome *o)
                                   (json_int_t)an->n_axis_poles));
     json_object_set_new(j, "hidden_unstable_mode", json_boolean(an->hidden_unstable));
     const ps_requirements *q = &p->req;
-    json_t *fj = floors_json(o->fl);
-    /* Margins the allowed peaks would guarantee, the best disk margin any
-     * controller can reach (1/Ms floor), and the time to double of each
-     * real RHP pole (ln 2 / p). */
-    json_object_set_new(fj, "disk_margin_max", jnum(1.0 / o->fl->ms));
-    json_object_set_new(fj, "margins_from_allowed",
-                        json_pack("{s:o,s:o,s:o,s:o}", "gain_margin_from_ms", jnum(ps_gain_margin_from_ms(q->ms_allowed)),
-                                  "phase_margin_deg_from_ms", jnum(ps_phase_margin_from_ms(q->ms_allowed)),
-                                  "gain_margin_from_mt", jnum(ps_gain_margin_from_mt(q->mt_allowed)),
-                                  "phase_margin_deg_from_mt", jnum(ps_phase_margin_from_mt(q->mt_allowed))));
-    json_t *ttd = json_array();
+    json_t *fj = ps_json_floors(o->fl);
+    double rhp_real[PS_MAX_ORDER];
+    size_t n_real = 0;
     for (size_t i = 0; i < an->n_poles; i++)
         if (an->poles[i].region == PS_RHP && an->poles[i].v.im == 0)
-            json_array_append_new(ttd, json_pack("{s:o,s:o}", "pole", jnum(an->poles[i].v.re), "seconds",
-                                                 jnum(log(2.0) / an->poles[i].v.re)));
-    json_object_set_new(fj, "time_to_double", ttd);
-    json_object_set_new(j, "requirements",
-                        json_pack("{s:o,s:o,s:o,s:o,s:o,s:o,s:o,s:o}", "peak_s_allowed", jnum(q->ms_allowed),
-                                  "peak_t_allowed", jnum(q->mt_allowed), "band_edge",
-                                  q->wb > 0 ? jnum(q->wb) : json_null(), "band_attenuation",
-                                  q->wb > 0 ? jnum(q->eps) : json_null(), "rolloff_start",
-                                  q->wh > 0 ? jnum(q->wh) : json_null(), "rolloff_gain", jnum(q->delta),
-                                  "rolloff_slope", jnum(q->k), "effort_allowed",
-                                  q->effort_allowed > 0 ? jnum(q->effort_allowed) : json_null()));
+            rhp_real[n_real++] = an->poles[i].v.re;
+    ps_json_floor_extras(fj, o->fl, q, rhp_real, n_real);
+    json_object_set_new(j, "requirements", ps_json_requirements(q));
     json_object_set_new(j, "floors", fj);
     json_object_set_new(j, "warnings", jwarnings(p));
     json_object_set_new(j, "error", json_null());
@@ -277,9 +293,9 @@ void ps_listing_add(void *ctx, const ps_outcome *o)
 
 void ps_listing_catalog(ps_listing *l, const char *file, const ps_diag *fdiag)
 {
-    json_t *c = json_pack("{s:o,s:s}", "file", jstr(file), "status", fdiag ? "failed" : "read");
+    json_t *c = json_pack("{s:o,s:s}", "file", ps_json_str(file), "status", fdiag ? "failed" : "read");
     if (fdiag)
-        json_object_set_new(c, "error", json_pack("{s:o,s:I,s:I}", "message", jstr(fdiag->text), "line",
+        json_object_set_new(c, "error", json_pack("{s:o,s:I,s:I}", "message", ps_json_str(fdiag->text), "line",
                                                   (json_int_t)fdiag->line, "column",
                                                   (json_int_t)fdiag->col));
     json_array_append_new(l->catalogs, c);

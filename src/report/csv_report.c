@@ -1,0 +1,186 @@
+/* csv_report.c - the screening run as one RFC 4180 table: a header of stable
+ * snake_case column names, then one row per plant in ranked order. */
+#include "report/reports.h"
+
+#include <assert.h>
+#include <math.h>
+#include <stdbool.h>
+#include <string.h>
+
+/* Cell conventions (README "CSV report"):
+ *  - numbers are printed with "%.9g" (C locale), booleans as true/false;
+ *  - an EMPTY cell means "no finite value": not applicable (no band, no
+ *    roll-off, no RHP zero, a target that was not found), an input error, or
+ *    an infinite value. Infinite floors are not written as "inf": the verdict
+ *    column already says not-stabilizable, and an empty cell keeps every
+ *    numeric column parseable as a number by any spreadsheet or reader. An
+ *    unbounded crossover_max is likewise empty (no upper limit);
+ *  - effort_allowed is empty when no effort limit was given.
+ * Lines end in CRLF; a field holding a comma, a double quote, CR or LF is
+ * quoted and its quotes doubled. */
+
+typedef struct csv_out {
+    FILE *f;
+    size_t n_cells; /* cells written in the current row */
+} csv_out;
+
+static void cell_text(csv_out *o, const char *s)
+{
+    if (o->n_cells++ > 0)
+        fputc(',', o->f);
+    if (!s)
+        return;
+    if (strpbrk(s, ",\"\r\n") == NULL) {
+        fputs(s, o->f);
+        return;
+    }
+    fputc('"', o->f);
+    for (const char *c = s; *c; c++) {
+        if (*c == '"')
+            fputc('"', o->f);
+        fputc(*c, o->f);
+    }
+    fputc('"', o->f);
+}
+
+static void cell_num(csv_out *o, double x)
+{
+    char buf[40];
+    if (!isfinite(x)) {
+        cell_text(o, NULL);
+        return;
+    }
+    snprintf(buf, sizeof buf, "%.9g", x);
+    cell_text(o, buf);
+}
+
+static void cell_size(csv_out *o, size_t n)
+{
+    char buf[32];
+    snprintf(buf, sizeof buf, "%zu", n);
+    cell_text(o, buf);
+}
+
+static void cell_bool(csv_out *o, bool b) { cell_text(o, b ? "true" : "false"); }
+
+
+/* Columns before the per-target groups, in order. */
+static const char *const head_cols[] = {
+    "rank",          "id",           "verdict",          "severity",         "severity_infinite",
+    "worst",         "share_ms",     "share_mt",         "share_effort",     "cause",
+    "file",          "line",         "ms_floor",         "mt_floor",         "ms_allowed",
+    "mt_allowed",    "effort_floor", "effort_allowed",   "band_edge",        "band_attenuation",
+    "rolloff_start", "bode_area",    "ms_interpolation", "mt_interpolation", "ms_band",
+    "ms_poisson",    "mt_poisson",   "limiting",         "rhp_poles",        "rhp_zeros",
+    "delay",         "hidden_unstable_mode", "crossover_min", "crossover_max", "window_open",
+};
+/* Columns after the per-target groups. */
+static const char *const tail_cols[] = {"error_line", "error_column", "error_field", "error"};
+
+enum {
+    N_HEAD = sizeof head_cols / sizeof head_cols[0],
+    N_TAIL = sizeof tail_cols / sizeof tail_cols[0],
+    N_COLS = N_HEAD + 3 * PS_TARGET_COUNT + N_TAIL
+};
+
+static void pad_to(csv_out *o, size_t n)
+{
+    while (o->n_cells < n)
+        cell_text(o, NULL);
+}
+
+static void row_end(csv_out *o)
+{
+    assert(o->n_cells == N_COLS); /* every row as wide as the header */
+    fputs("\r\n", o->f);
+    o->n_cells = 0;
+}
+
+static void header(csv_out *o)
+{
+    char name[64];
+    for (size_t i = 0; i < N_HEAD; i++)
+        cell_text(o, head_cols[i]);
+    for (int k = 0; k < PS_TARGET_COUNT; k++) {
+        static const char *const parts[] = {"state", "now", "limit"};
+        for (size_t j = 0; j < 3; j++) {
+            snprintf(name, sizeof name, "%s_%s", ps_target_key((ps_target_kind)k), parts[j]);
+            cell_text(o, name);
+        }
+    }
+    for (size_t i = 0; i < N_TAIL; i++)
+        cell_text(o, tail_cols[i]);
+    row_end(o);
+}
+
+static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t rank)
+{
+    bool unread = s->verdict == PS_VERDICT_UNREAD;
+    const ps_floors *fl = &s->fl;
+    const ps_requirements *q = &s->req;
+    cell_size(o, rank);
+    cell_text(o, s->id);
+    cell_text(o, ps_verdict_name(s->verdict));
+    cell_num(o, s->severity);
+    if (unread)
+        cell_text(o, NULL);
+    else
+        cell_bool(o, isinf(s->severity));
+    cell_text(o, unread ? NULL : s->worst);
+    cell_num(o, s->share_ms);
+    cell_num(o, s->share_mt);
+    cell_num(o, s->share_effort);
+    cell_text(o, s->cause);
+    cell_text(o, s->file_index < r->n_catalogs ? r->catalogs[s->file_index].file : NULL);
+    cell_size(o, s->line);
+    if (unread) {
+        /* Nothing was analysed: every floor, requirement and target cell is empty. */
+        pad_to(o, N_HEAD + 3 * PS_TARGET_COUNT);
+        cell_size(o, s->err_line);
+        cell_size(o, s->err_col);
+        cell_text(o, s->err_field);
+        cell_text(o, s->err_text);
+        row_end(o);
+        return;
+    }
+    cell_num(o, fl->ms);
+    cell_num(o, fl->mt);
+    cell_num(o, q->ms_allowed);
+    cell_num(o, q->mt_allowed);
+    cell_num(o, fl->effort);
+    cell_num(o, q->effort_allowed > 0 ? q->effort_allowed : NAN);
+    cell_num(o, q->wb > 0 ? q->wb : NAN);
+    cell_num(o, q->wb > 0 ? q->eps : NAN);
+    cell_num(o, q->wh > 0 ? q->wh : NAN);
+    cell_num(o, fl->bode_area);
+    cell_num(o, fl->ms_interpolation);
+    cell_num(o, fl->mt_interpolation);
+    cell_num(o, fl->ms_band);
+    cell_num(o, fl->ms_poisson);
+    cell_num(o, fl->mt_poisson);
+    cell_text(o, fl->limiting);
+    cell_size(o, s->n_rhp_poles);
+    cell_size(o, s->n_rhp_zeros);
+    cell_num(o, s->delay);
+    cell_bool(o, s->hidden_unstable);
+    cell_num(o, fl->crossover_min);
+    cell_num(o, fl->crossover_max);
+    cell_bool(o, fl->window_open);
+    for (int k = 0; k < PS_TARGET_COUNT; k++) {
+        const ps_target *t = &s->target[k];
+        cell_text(o, ps_target_state_name(t->state));
+        cell_num(o, t->state == PS_TARGET_NA ? NAN : t->now);
+        cell_num(o, t->state == PS_TARGET_FOUND ? t->limit : NAN);
+    }
+    pad_to(o, N_COLS);
+    row_end(o);
+}
+
+ps_status ps_write_csv(FILE *f, const ps_run *r)
+{
+    csv_out o = {.f = f, .n_cells = 0};
+    header(&o);
+    for (size_t i = 0; i < r->n_rows; i++)
+        plant_row(&o, r, &r->rows[i], i + 1);
+    return ferror(f) ? PS_ERR_IO : PS_OK;
+}

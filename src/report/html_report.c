@@ -1,0 +1,696 @@
+/* html_report.c - the screening run as one self-contained HTML5 page: inline
+ * style, no script, no external assets, figures as inline SVG; prints in black on white. */
+#include "report/reports.h"
+
+#include <math.h>
+#include <stdbool.h>
+#include <string.h>
+
+/* ---- text ---- */
+
+/* Write s escaped for HTML text and attribute values. Control characters
+ * other than tab and newline become spaces (they are not allowed in HTML). */
+static void h_text(FILE *f, const char *s)
+{
+    if (!s)
+        return;
+    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
+        switch (*c) {
+        case '&': fputs("&amp;", f); break;
+        case '<': fputs("&lt;", f); break;
+        case '>': fputs("&gt;", f); break;
+        case '"': fputs("&quot;", f); break;
+        case '\'': fputs("&#39;", f); break;
+        default:
+            if ((*c < 0x20 && *c != '\n' && *c != '\t') || *c == 0x7f)
+                fputc(' ', f);
+            else
+                fputc(*c, f);
+        }
+    }
+}
+
+/* A value for a table cell: "%.4g", or a word when it has no finite value. */
+static void h_num(FILE *f, double x)
+{
+    if (isfinite(x))
+        fprintf(f, "%.4g", x);
+    else
+        fputs(isinf(x) ? "infinite" : "n/a", f);
+}
+
+/* Copy at most max_chars UTF-8 characters of src into dst (size n), with
+ * "..." when shortened; never cuts a multi-byte character. */
+static void fit_label(char *dst, size_t n, const char *src, size_t max_chars)
+{
+    size_t i = 0, chars = 0;
+    while (src[i] && chars < max_chars) {
+        i++;
+        while (((unsigned char)src[i] & 0xC0) == 0x80)
+            i++;
+        chars++;
+    }
+    if (!src[i] || i + 4 > n) {
+        snprintf(dst, n, "%.*s", (int)(i < n ? i : n - 1), src);
+        return;
+    }
+    snprintf(dst, n, "%.*s...", (int)i, src);
+}
+
+static const char *catalog_of(const ps_run *r, const ps_summary *s)
+{
+    return s->file_index < r->n_catalogs ? r->catalogs[s->file_index].file : "";
+}
+
+static bool is_flagged(const ps_summary *s)
+{
+    return s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_UNSTABILIZABLE;
+}
+
+/* ---- SVG primitives (coordinates in px, one decimal) ---- */
+
+static void svg_open(FILE *f, double w, double h, const char *label)
+{
+    fprintf(f, "<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 %.0f %.0f\" width=\"%.0f\" height=\"%.0f\" "
+               "role=\"img\" aria-label=\"",
+            w, h, w, h);
+    h_text(f, label);
+    fprintf(f, "\">\n<title>");
+    h_text(f, label);
+    fprintf(f, "</title>\n");
+}
+
+static void svg_line(FILE *f, double x1, double y1, double x2, double y2, const char *cls)
+{
+    fprintf(f, "<line class=\"%s\" x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\"/>\n", cls, x1, y1, x2, y2);
+}
+
+/* anchor: "start", "middle" or "end"; rotate: degrees about (x, y), 0 for none. */
+static void svg_text(FILE *f, double x, double y, const char *anchor, const char *cls, double rotate, const char *s)
+{
+    fprintf(f, "<text x=\"%.1f\" y=\"%.1f\" text-anchor=\"%s\"", x, y, anchor);
+    if (cls && cls[0])
+        fprintf(f, " class=\"%s\"", cls);
+    if (rotate != 0)
+        fprintf(f, " transform=\"rotate(%.0f %.1f %.1f)\"", rotate, x, y);
+    fputc('>', f);
+    h_text(f, s);
+    fputs("</text>\n", f);
+}
+
+/* A tick label for a value on a log or symmetric-log axis. */
+static void tick_label(char *buf, size_t n, double v)
+{
+    double a = fabs(v);
+    if (a != 0 && (a < 1e-3 || a >= 1e5))
+        snprintf(buf, n, "%.0e", v);
+    else
+        snprintf(buf, n, "%.4g", v);
+}
+
+/* ---- style ---- */
+
+static const char style_sheet[] =
+    "html{background:#fff;color:#000}\n"
+    "body{font-family:sans-serif;font-size:14px;line-height:1.45;max-width:68em;margin:1.5em auto;padding:0 1em;"
+    "color:#000;background:#fff}\n"
+    "h1{font-size:1.6em;margin:0 0 .2em}h2{font-size:1.25em;border-bottom:1px solid #000;margin-top:1.6em}"
+    "h3{font-size:1.05em;margin:1.2em 0 .3em}\n"
+    "table{border-collapse:collapse;margin:.5em 0}th,td{border:1px solid #777;padding:.2em .45em;"
+    "vertical-align:top;text-align:left}\n"
+    "th{font-weight:bold;border-bottom:2px solid #000}td.num{text-align:right;font-variant-numeric:tabular-nums;"
+    "white-space:nowrap}\n"
+    "tr[data-verdict=redesign] td.verdict,tr[data-verdict=not-stabilizable] td.verdict{font-weight:bold}\n"
+    "tr[data-verdict=not-stabilizable] td.verdict{text-decoration:underline}\n"
+    "tr[data-verdict=input-error] td{font-style:italic}\n"
+    ".meta{margin:.2em 0}.caution{border:2px solid #000;padding:.4em .8em;margin:1em 0}"
+    ".caution h2{border:none;margin:.2em 0}\n"
+    "figure{margin:1em 0;break-inside:avoid;page-break-inside:avoid}figcaption{font-size:.9em;max-width:52em}\n"
+    ".figs{display:flex;flex-wrap:wrap;gap:1em 2em}.figs figure{margin:.5em 0}\n"
+    "article.flagged{break-inside:avoid;page-break-inside:avoid;border-top:1px solid #777}\n"
+    "svg{max-width:100%;height:auto;background:#fff}\n"
+    "svg text{font-family:sans-serif;font-size:11px;fill:#000}svg text.title{font-size:12px;font-weight:bold}\n"
+    "svg text.small{font-size:10px}\n"
+    "svg line{stroke:#000;stroke-width:1}svg line.grid{stroke:#aaa;stroke-width:.6;stroke-dasharray:2 2}\n"
+    "svg line.limit{stroke-width:1.8}svg line.marginal{stroke-width:1.2;stroke-dasharray:6 3}\n"
+    "svg line.required{stroke-width:1.2;stroke-dasharray:1.5 2.5}svg line.promise{stroke-width:1.8}\n"
+    "svg .frame{fill:none;stroke:#000;stroke-width:1}svg .rhp{fill:#e2e2e2;stroke:none}\n"
+    "svg .bar-clear{fill:#c8c8c8;stroke:#000;stroke-width:.6}svg .bar-marginal{fill:#808080;stroke:#000;"
+    "stroke-width:.6}\n"
+    "svg .bar-redesign{fill:#000}svg .bar-unstab{fill:url(#ps-hatch);stroke:#000;stroke-width:1}\n"
+    "svg .pole{stroke:#000;stroke-width:1.7}svg .zero{fill:#fff;stroke:#000;stroke-width:1.5}\n"
+    "svg .curve{fill:none;stroke:#000;stroke-width:1.8}svg .clipmark{fill:#000}\n"
+    "@media print{body{max-width:none;margin:0;padding:0;font-size:10pt}"
+    "h2{break-after:avoid;page-break-after:avoid}tr{break-inside:avoid}"
+    "*{-webkit-print-color-adjust:exact;print-color-adjust:exact}}\n"
+    "@page{margin:14mm}\n";
+
+/* ---- header, tables and lists ---- */
+
+static void header(FILE *f, const ps_run *r)
+{
+    fprintf(f, "<header>\n<h1>Screening report</h1>\n");
+    fprintf(f, "<p class=\"meta\">Written by plantsieve ");
+    h_text(f, PS_VERSION);
+    fprintf(f, ". A plant is marginal from a share of %.3g of the allowed log-peak.</p>\n", r->opt.marginal_at);
+    fprintf(f, "<h2>Catalogs</h2>\n<ul class=\"catalogs\">\n");
+    if (r->n_catalogs == 0)
+        fprintf(f, "<li>none</li>\n");
+    for (size_t i = 0; i < r->n_catalogs; i++) {
+        const ps_catalog_entry *c = &r->catalogs[i];
+        fprintf(f, "<li><code>");
+        h_text(f, c->file);
+        fprintf(f, "</code>: ");
+        if (c->failed) {
+            fprintf(f, "<strong>not read to the end</strong> (line %zu, column %zu: ", c->line, c->col);
+            h_text(f, c->error);
+            fprintf(f, ")");
+        } else
+            fprintf(f, "read to the end");
+        fprintf(f, "</li>\n");
+    }
+    fprintf(f, "</ul>\n<h2>Counts</h2>\n<p>%zu entries: %zu models screened, %zu input errors.</p>\n",
+            r->counts.entries, r->counts.models, r->counts.errors);
+    fprintf(f, "<table class=\"counts\">\n<thead><tr><th>Verdict</th><th>Plants</th></tr></thead>\n<tbody>\n");
+    for (int v = 0; v < PS_VERDICT_COUNT; v++)
+        fprintf(f, "<tr><td>%s</td><td class=\"num\">%zu</td></tr>\n", ps_verdict_name((ps_verdict)v),
+                r->per_verdict[v]);
+    fprintf(f, "</tbody>\n</table>\n</header>\n");
+}
+
+static void caution(FILE *f)
+{
+    fprintf(f, "<section class=\"caution\" id=\"caution\">\n<h2>Caution</h2>\n<p>");
+    h_text(f, ps_caution_text);
+    fprintf(f, "</p>\n</section>\n");
+}
+
+static void ranking(FILE *f, const ps_run *r)
+{
+    fprintf(f, "<section id=\"ranking\">\n<h2>Ranking</h2>\n");
+    if (r->n_rows == 0) {
+        fprintf(f, "<p>No plants.</p>\n</section>\n");
+        return;
+    }
+    fprintf(f, "<p>Worst first: not stabilizable, then by severity (the largest share of the allowed log-peak), "
+               "input errors last in catalog order.</p>\n");
+    fprintf(f, "<table class=\"ranking\">\n<thead><tr><th>Rank</th><th>Plant</th><th>Verdict</th><th>Severity</th>"
+               "<th>Worst</th><th>Ms floor</th><th>Ms allowed</th><th>Mt floor</th><th>Mt allowed</th>"
+               "<th>Limiting</th><th>Cause</th><th>Source</th></tr></thead>\n<tbody>\n");
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        bool unread = s->verdict == PS_VERDICT_UNREAD;
+        fprintf(f, "<tr class=\"plant-row\" data-id=\"");
+        h_text(f, s->id);
+        fprintf(f, "\" data-verdict=\"%s\"><td class=\"num\">%zu</td><td>", ps_verdict_name(s->verdict), i + 1);
+        h_text(f, s->id);
+        fprintf(f, "</td><td class=\"verdict\">%s</td><td class=\"num\">", ps_verdict_name(s->verdict));
+        if (isfinite(s->severity))
+            fprintf(f, "%.3f", s->severity);
+        else
+            fputs(isinf(s->severity) ? "infinite" : "n/a", f);
+        fprintf(f, "</td><td>%s</td>", unread ? "n/a" : s->worst);
+        if (unread)
+            fprintf(f, "<td class=\"num\">n/a</td><td class=\"num\">n/a</td><td class=\"num\">n/a</td>"
+                       "<td class=\"num\">n/a</td><td>n/a</td>");
+        else {
+            fprintf(f, "<td class=\"num\">");
+            h_num(f, s->fl.ms);
+            fprintf(f, "</td><td class=\"num\">");
+            h_num(f, s->req.ms_allowed);
+            fprintf(f, "</td><td class=\"num\">");
+            h_num(f, s->fl.mt);
+            fprintf(f, "</td><td class=\"num\">");
+            h_num(f, s->req.mt_allowed);
+            fprintf(f, "</td><td>");
+            h_text(f, s->fl.limiting ? s->fl.limiting : "none");
+            fprintf(f, "</td>");
+        }
+        fprintf(f, "<td>");
+        h_text(f, s->cause);
+        fprintf(f, "</td><td>");
+        h_text(f, catalog_of(r, s));
+        fprintf(f, ":%zu</td></tr>\n", s->line);
+    }
+    fprintf(f, "</tbody>\n</table>\n</section>\n");
+}
+
+/* ---- figure (a): severity bars ---- */
+
+static void severity_figure(FILE *f, const ps_run *r)
+{
+    size_t n_bars = 0, n_errors = 0;
+    double top = 1.25;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict == PS_VERDICT_UNREAD) {
+            n_errors++;
+            continue;
+        }
+        n_bars++;
+        if (s->verdict != PS_VERDICT_UNSTABILIZABLE && isfinite(s->severity) && s->severity > top)
+            top = s->severity;
+    }
+    fprintf(f, "<section id=\"severity\">\n<h2>Severity</h2>\n");
+    if (n_bars + n_errors == 0) {
+        fprintf(f, "<p>No plants.</p>\n</section>\n");
+        return;
+    }
+    /* The axis ends at the next quarter above the worst finite severity, at
+     * most 3: a longer bar is cut at the edge and marked off-scale, so one
+     * hopeless plant does not squeeze every other bar against zero. */
+    top = fmin(ceil(top * 4.0) / 4.0, 3.0);
+    double step = top <= 1.5 ? 0.25 : 0.5;
+    const double W = 780, L = 175, PW = 460, T = 44, RH = 20;
+    double plot_bottom = T + RH * (double)n_bars;
+    double H = plot_bottom + 52 + 16 * (double)n_errors;
+    svg_open(f, W, H, "Severity of every plant against the allowed and marginal lines");
+    fprintf(f, "<defs><pattern id=\"ps-hatch\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
+               "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
+               "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" style=\"stroke:#000;stroke-width:2.5\"/></pattern></defs>\n");
+    svg_text(f, 10, 16, "start", "title", 0, "Severity of every plant (share of the allowed log-peak)");
+#define XS(v) (L + PW * (v) / top)
+    for (double v = 0; v <= top + 1e-9; v += step)
+        svg_line(f, XS(v), T - 4, XS(v), plot_bottom, "grid");
+    char buf[160];
+    snprintf(buf, sizeof buf, "marginal %.2f", r->opt.marginal_at);
+    if (r->opt.marginal_at > 0 && r->opt.marginal_at < top) {
+        svg_line(f, XS(r->opt.marginal_at), T - 10, XS(r->opt.marginal_at), plot_bottom, "marginal");
+        svg_text(f, XS(r->opt.marginal_at) - 3, T - 13, "end", "small", 0, buf);
+    }
+    svg_line(f, XS(1.0), T - 10, XS(1.0), plot_bottom, "limit");
+    svg_text(f, XS(1.0) + 3, T - 13, "start", "small", 0, "allowed 1.00");
+    size_t row = 0;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict == PS_VERDICT_UNREAD)
+            continue;
+        double y = T + RH * (double)row++;
+        char label[80];
+        fit_label(label, sizeof label, s->id, 24);
+        fprintf(f, "<g>");
+        fprintf(f, "<title>");
+        h_text(f, s->id);
+        fprintf(f, ": %s</title>", ps_verdict_name(s->verdict));
+        svg_text(f, L - 6, y + 14, "end", "", 0, label);
+        const char *cls = s->verdict == PS_VERDICT_CLEAR      ? "bar-clear"
+                          : s->verdict == PS_VERDICT_MARGINAL ? "bar-marginal"
+                          : s->verdict == PS_VERDICT_REDESIGN ? "bar-redesign"
+                                                              : "bar-unstab";
+        if (s->verdict == PS_VERDICT_UNSTABILIZABLE) {
+            fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L, y + 4, PW);
+            svg_text(f, L + PW + 6, y + 14, "start", "", 0, "not stabilizable (off-scale)");
+        } else if (isfinite(s->severity)) {
+            double v = fmax(0.0, s->severity);
+            bool off = v > top;
+            fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L, y + 4,
+                    XS(fmin(v, top)) - L);
+            if (off)
+                fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl7 6l-7 6z\"/>\n", L + PW + 1, y + 4);
+            snprintf(buf, sizeof buf, off ? "%.3f (off-scale)" : "%.3f", s->severity);
+            svg_text(f, (off ? L + PW + 10 : XS(v) + 5), y + 14, "start", "", 0, buf);
+        } else
+            svg_text(f, L + 4, y + 14, "start", "", 0, "no share (nothing to bound)");
+        fprintf(f, "</g>\n");
+    }
+    svg_line(f, L, plot_bottom, L + PW, plot_bottom, "");
+    for (double v = 0; v <= top + 1e-9; v += step) {
+        svg_line(f, XS(v), plot_bottom, XS(v), plot_bottom + 5, "");
+        snprintf(buf, sizeof buf, "%.2f", v);
+        svg_text(f, XS(v), plot_bottom + 17, "middle", "", 0, buf);
+    }
+    svg_text(f, L + PW / 2, plot_bottom + 34, "middle", "", 0,
+             "severity: ln(floor) / ln(allowed), largest over Ms, Mt and effort (dimensionless)");
+#undef XS
+    double y = plot_bottom + 52;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict != PS_VERDICT_UNREAD)
+            continue;
+        char label[80];
+        fit_label(label, sizeof label, s->id[0] ? s->id : "(no id)", 40);
+        snprintf(buf, sizeof buf, "input error, no bar: %s (line %zu)", label, s->err_line ? s->err_line : s->line);
+        svg_text(f, 10, y, "start", "", 0, buf);
+        y += 16;
+    }
+    fprintf(f, "</svg>\n");
+    fprintf(f, "<figcaption>Figure: severity of every screened plant, worst first. Severity 1 (solid line) is the "
+               "allowed peak; from the dashed line on (%.2f) a plant is marginal. Bars: light grey clear, mid grey "
+               "marginal, black redesign, hatched not stabilizable (drawn off-scale: no controller stabilizes it). "
+               "The axis ends at %.2f; longer bars are cut and marked off-scale. Input errors have no bar.</figcaption>\n",
+            r->opt.marginal_at, top);
+    fprintf(f, "</section>\n");
+}
+
+/* ---- figure (b): pole/zero map ---- */
+
+/* Symmetric-log coordinate: linear within +-c, logarithmic beyond. */
+static double symlog(double x, double c)
+{
+    return copysign(log10(1.0 + fabs(x) / c), x);
+}
+
+static void pz_map(FILE *f, const ps_summary *s)
+{
+    size_t np = s->n_poles < PS_MAP_MAX ? s->n_poles : PS_MAP_MAX;
+    size_t nz = s->n_zeros < PS_MAP_MAX ? s->n_zeros : PS_MAP_MAX;
+    double big = 0, small = INFINITY;
+    for (size_t i = 0; i < np + nz; i++) {
+        ps_cplx v = i < np ? s->poles[i] : s->zeros[i - np];
+        if (!isfinite(v.re) || !isfinite(v.im))
+            continue;
+        double m = hypot(v.re, v.im);
+        big = fmax(big, fmax(fabs(v.re), fabs(v.im)));
+        if (m > 0)
+            small = fmin(small, m);
+    }
+    if (!(big > 0))
+        big = 1;
+    /* c: the decade of the smallest non-zero root, so it is not lost at the
+     * origin, kept within eight decades of the largest root so the ticks
+     * stay readable. */
+    double c = isfinite(small) ? pow(10.0, floor(log10(small))) : 1.0;
+    c = fmax(c, pow(10.0, floor(log10(big))) * 1e-8);
+    int K = 0;
+    while (c * pow(10.0, K) < big * (1 - 1e-12))
+        K++;
+    double umax = symlog(c * pow(10.0, K), c);
+    const double W = 360, H = 350, L = 70, T = 34, P = 240;
+    double cx = L + P / 2, cy = T + P / 2;
+#define PX(x) (cx + (P / 2) * symlog((x), c) / umax)
+#define PY(y) (cy - (P / 2) * symlog((y), c) / umax)
+    char buf[200], label[80];
+    fit_label(label, sizeof label, s->id, 40);
+    snprintf(buf, sizeof buf, "Poles and zeros of %s", label);
+    fprintf(f, "<figure>\n");
+    svg_open(f, W, H, buf);
+    svg_text(f, 10, 16, "start", "title", 0, buf);
+    fprintf(f, "<rect class=\"rhp\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", cx, T, P / 2, P);
+    svg_text(f, L + P - 4, T + 13, "end", "small", 0, "right half plane");
+    /* Ticks at 0, +-c, +-10c, ...; with many decades every other one is labelled. */
+    int every = K > 4 ? 2 : 1;
+    for (int k = -1; k <= K; k++) {
+        for (int sign = -1; sign <= 1; sign += 2) {
+            double v = k < 0 ? 0 : sign * c * pow(10.0, k);
+            if (k < 0 && sign > 0)
+                continue;
+            bool labelled = k < 0 || (K - k) % every == 0;
+            svg_line(f, PX(v), T, PX(v), T + P, "grid");
+            svg_line(f, L, PY(v), L + P, PY(v), "grid");
+            svg_line(f, PX(v), T + P, PX(v), T + P + 4, "");
+            svg_line(f, L - 4, PY(v), L, PY(v), "");
+            if (labelled) {
+                tick_label(buf, sizeof buf, v);
+                svg_text(f, PX(v), T + P + 15, "middle", "small", 0, buf);
+                svg_text(f, L - 6, PY(v) + 3.5, "end", "small", 0, buf);
+            }
+        }
+    }
+    svg_line(f, cx, T, cx, T + P, "");
+    svg_line(f, L, cy, L + P, cy, "");
+    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, P, P);
+    for (size_t i = 0; i < nz; i++) {
+        ps_cplx v = s->zeros[i];
+        if (isfinite(v.re) && isfinite(v.im))
+            fprintf(f, "<circle class=\"zero\" cx=\"%.1f\" cy=\"%.1f\" r=\"4.5\"/>\n", PX(v.re), PY(v.im));
+    }
+    for (size_t i = 0; i < np; i++) {
+        ps_cplx v = s->poles[i];
+        if (!isfinite(v.re) || !isfinite(v.im))
+            continue;
+        double x = PX(v.re), y = PY(v.im);
+        fprintf(f, "<path class=\"pole\" d=\"M%.1f %.1fl9 9M%.1f %.1fl-9 9\"/>\n", x - 4.5, y - 4.5, x + 4.5,
+                y - 4.5);
+    }
+    svg_text(f, L + P / 2, T + P + 32, "middle", "", 0, "Re (rad/s)");
+    svg_text(f, 16, cy, "middle", "", -90, "Im (rad/s)");
+    fprintf(f, "<path class=\"pole\" d=\"M%.1f %.1fl8 8M%.1f %.1fl-8 8\"/>\n", L, H - 14, L + 8, H - 14);
+    svg_text(f, L + 13, H - 6, "start", "small", 0, "pole");
+    fprintf(f, "<circle class=\"zero\" cx=\"%.1f\" cy=\"%.1f\" r=\"4\"/>\n", L + 70, H - 10);
+    svg_text(f, L + 78, H - 6, "start", "small", 0, "zero");
+    fprintf(f, "</svg>\n");
+#undef PX
+#undef PY
+    fprintf(f, "<figcaption>Poles (x) and zeros (o) of ");
+    h_text(f, s->id);
+    fprintf(f, "; the right half plane is shaded. Symmetric-log axes, the same on Re and Im: linear within "
+               "&plusmn;%.3g rad/s, logarithmic beyond (u = sign(x) log10(1 + |x| / %.3g)).",
+            c, c);
+    if (s->n_poles > PS_MAP_MAX || s->n_zeros > PS_MAP_MAX)
+        fprintf(f, " Only the first %d of %zu poles and %zu zeros are drawn.", PS_MAP_MAX, s->n_poles, s->n_zeros);
+    if (s->delay > 0)
+        fprintf(f, " The delay of %.4g s is not a root and is not drawn.", s->delay);
+    fprintf(f, "</figcaption>\n</figure>\n");
+}
+
+/* ---- redesign list ---- */
+
+static void changes(FILE *f, const ps_run *r)
+{
+    fprintf(f, "<section id=\"changes\">\n<h2>What must change</h2>\n");
+    bool any = false;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (!is_flagged(s))
+            continue;
+        any = true;
+        fprintf(f, "<article class=\"flagged\" data-id=\"");
+        h_text(f, s->id);
+        fprintf(f, "\">\n<h3>%zu. ", i + 1);
+        h_text(f, s->id);
+        fprintf(f, " (%s)</h3>\n<p>Cause: ", ps_verdict_name(s->verdict));
+        h_text(f, s->cause);
+        fprintf(f, "</p>\n<ul class=\"targets\">\n");
+        bool any_target = false;
+        for (int k = 0; k < PS_TARGET_COUNT; k++) {
+            char text[400];
+            ps_target_text(s, (ps_target_kind)k, text, sizeof text);
+            if (!text[0])
+                continue;
+            any_target = true;
+            fprintf(f, "<li>");
+            h_text(f, text);
+            fprintf(f, "</li>\n");
+        }
+        if (!any_target)
+            fprintf(f, "<li>no single change of pole, zero, delay or bandwidth applies</li>\n");
+        fprintf(f, "</ul>\n");
+        pz_map(f, s);
+        fprintf(f, "</article>\n");
+    }
+    if (!any)
+        fprintf(f, "<p>No plant needs a hardware change.</p>\n");
+    fprintf(f, "</section>\n");
+}
+
+/* ---- figure (c): Ms floor against the band edge ---- */
+
+static void band_figure(FILE *f, const ps_summary *s)
+{
+    double wlo = INFINITY, whi = 0, mtop = 1;
+    for (size_t i = 0; i < s->n_curve; i++) {
+        double w = s->curve_wb[i], m = s->curve_ms[i];
+        if (!(isfinite(w) && w > 0))
+            continue;
+        wlo = fmin(wlo, w);
+        whi = fmax(whi, w);
+        if (isfinite(m))
+            mtop = fmax(mtop, m);
+    }
+    if (!(whi > 0))
+        return;
+    const ps_target *bt = &s->target[PS_TARGET_BAND];
+    bool promise = bt->state == PS_TARGET_FOUND && isfinite(bt->limit) && bt->limit > 0;
+    bool required = s->req.wb > 0 && isfinite(s->req.wb);
+    if (promise) {
+        wlo = fmin(wlo, bt->limit);
+        whi = fmax(whi, bt->limit);
+    }
+    if (required) {
+        wlo = fmin(wlo, s->req.wb);
+        whi = fmax(whi, s->req.wb);
+    }
+    double xlo = floor(log10(wlo)), xhi = ceil(log10(whi));
+    if (xhi <= xlo)
+        xhi = xlo + 1;
+    double allowed = s->req.ms_allowed;
+    /* Ms axis (log): up to the curve's largest finite value, but at least
+     * twice the allowed Ms and at most a hundred times it; larger values are
+     * drawn on the top edge and marked. */
+    double ytop = fmin(fmax(mtop, 2 * allowed), 100 * allowed);
+    double ylo = 0, yhi = log10(ytop) * 1.02;
+    const double W = 400, H = 300, L = 64, T = 34, PW = 300, PH = 200;
+#define PX(w) (L + PW * (log10(w) - xlo) / (xhi - xlo))
+#define PY(m) (T + PH - PH * (log10(m) - ylo) / (yhi - ylo))
+    char buf[200], label[80];
+    fit_label(label, sizeof label, s->id, 36);
+    snprintf(buf, sizeof buf, "%s: Ms floor against band edge", label);
+    fprintf(f, "<figure>\n");
+    svg_open(f, W, H, buf);
+    svg_text(f, 10, 16, "start", "title", 0, buf);
+    for (double e = xlo; e <= xhi + 1e-9; e += 1) {
+        double w = pow(10.0, e);
+        svg_line(f, PX(w), T, PX(w), T + PH + 4, "grid");
+        tick_label(buf, sizeof buf, w);
+        svg_text(f, PX(w), T + PH + 16, "middle", "small", 0, buf);
+        for (int m = 2; m <= 9 && e < xhi; m++)
+            svg_line(f, PX(m * w), T + PH, PX(m * w), T + PH + 3, "");
+    }
+    /* Ms ticks 1, 2, 5, 10, ... (only powers of ten beyond two decades). */
+    bool dense = ytop <= 100;
+    for (double d = 1; d <= ytop * 1.0001; d *= 10) {
+        static const double mult[] = {1, 2, 5};
+        for (size_t j = 0; j < 3; j++) {
+            double m = d * mult[j];
+            if (m > ytop * 1.0001 || (!dense && j > 0))
+                continue;
+            svg_line(f, L - 4, PY(m), L + PW, PY(m), "grid");
+            tick_label(buf, sizeof buf, m);
+            svg_text(f, L - 6, PY(m) + 3.5, "end", "small", 0, buf);
+        }
+    }
+    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, PH);
+    /* The curve, broken where the floor has no value; values above the axis sit on the top edge. */
+    bool open = false, clipped = false;
+    for (size_t i = 0; i < s->n_curve; i++) {
+        double w = s->curve_wb[i], m = s->curve_ms[i];
+        if (!(isfinite(w) && w > 0) || isnan(m)) {
+            if (open)
+                fprintf(f, "\"/>\n");
+            open = false;
+            continue;
+        }
+        if (m > ytop) {
+            m = ytop;
+            clipped = true;
+        }
+        m = fmax(m, 1.0);
+        fprintf(f, "%s%.1f,%.1f", open ? " " : "<polyline class=\"curve\" points=\"", PX(w), PY(m));
+        open = true;
+    }
+    if (open)
+        fprintf(f, "\"/>\n");
+    if (allowed > 1 && allowed <= ytop) {
+        svg_line(f, L, PY(allowed), L + PW, PY(allowed), "marginal");
+        snprintf(buf, sizeof buf, "allowed Ms %.3g", allowed);
+        svg_text(f, L + PW - 3, PY(allowed) - 4, "end", "small", 0, buf);
+    }
+    if (required) {
+        svg_line(f, PX(s->req.wb), T, PX(s->req.wb), T + PH, "required");
+        snprintf(buf, sizeof buf, "required %.3g", s->req.wb);
+        svg_text(f, PX(s->req.wb) + 3, T + PH - 6, "start", "small", 0, buf);
+    }
+    if (promise) {
+        svg_line(f, PX(bt->limit), T, PX(bt->limit), T + PH, "promise");
+        fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", PX(bt->limit), T + PH);
+        snprintf(buf, sizeof buf, "promise-able %.3g rad/s", bt->limit);
+        svg_text(f, PX(bt->limit) + 3, T + 12, "start", "small", 0, buf);
+    }
+    svg_text(f, L + PW / 2, T + PH + 34, "middle", "", 0, "band edge w_b (rad/s, log)");
+    svg_text(f, 16, T + PH / 2, "middle", "", -90, "Ms floor (ratio, log)");
+    fprintf(f, "</svg>\n");
+#undef PX
+#undef PY
+    char text[400];
+    ps_target_text(s, PS_TARGET_BAND, text, sizeof text);
+    fprintf(f, "<figcaption>Ms floor forced by |S| &le; %.3g up to the band edge w_b, against w_b (both axes log). "
+               "Dashed: the allowed Ms; dotted: the required band edge; solid with a triangle: the widest "
+               "band edge that can be promised.",
+            s->band_eps);
+    if (clipped)
+        fprintf(f, " Values above %.3g are drawn on the top edge.", ytop);
+    if (text[0]) {
+        fprintf(f, " ");
+        h_text(f, text);
+        fprintf(f, ".");
+    }
+    fprintf(f, "</figcaption>\n</figure>\n");
+}
+
+static void band_figures(FILE *f, const ps_run *r)
+{
+    bool any = false;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict == PS_VERDICT_UNREAD || s->n_curve == 0)
+            continue;
+        if (!any)
+            fprintf(f, "<section id=\"band\">\n<h2>Ms floor against band edge</h2>\n<div class=\"figs\">\n");
+        any = true;
+        band_figure(f, s);
+    }
+    if (any)
+        fprintf(f, "</div>\n</section>\n");
+}
+
+/* ---- requirements, errors, meanings ---- */
+
+static void requirements(FILE *f, const ps_run *r)
+{
+    fprintf(f, "<section id=\"requirements\">\n<h2>Requirements screened against</h2>\n");
+    fprintf(f, "<table class=\"requirements\">\n<thead><tr><th>Plant</th><th>Requirements</th></tr></thead>\n<tbody>\n");
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict == PS_VERDICT_UNREAD)
+            continue;
+        char text[512];
+        ps_requirements_text(s, text, sizeof text);
+        fprintf(f, "<tr><td>");
+        h_text(f, s->id);
+        fprintf(f, "</td><td>");
+        h_text(f, text);
+        fprintf(f, "</td></tr>\n");
+    }
+    fprintf(f, "</tbody>\n</table>\n</section>\n");
+    if (r->per_verdict[PS_VERDICT_UNREAD] == 0)
+        return;
+    fprintf(f, "<section id=\"errors\">\n<h2>Input errors</h2>\n<ul>\n");
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict != PS_VERDICT_UNREAD)
+            continue;
+        fprintf(f, "<li>");
+        h_text(f, s->id[0] ? s->id : "(no id)");
+        fprintf(f, " (<code>");
+        h_text(f, catalog_of(r, s));
+        fprintf(f, ":%zu:%zu</code>", s->err_line, s->err_col);
+        if (s->err_field[0]) {
+            fprintf(f, ", field <code>");
+            h_text(f, s->err_field);
+            fprintf(f, "</code>");
+        }
+        fprintf(f, "): ");
+        h_text(f, s->err_text);
+        fprintf(f, "</li>\n");
+    }
+    fprintf(f, "</ul>\n</section>\n");
+}
+
+static void meanings(FILE *f)
+{
+    fprintf(f, "<section id=\"verdicts\">\n<h2>What the verdicts mean</h2>\n<dl>\n");
+    for (int v = 0; v < PS_VERDICT_COUNT; v++) {
+        fprintf(f, "<dt>%s</dt><dd>", ps_verdict_name((ps_verdict)v));
+        h_text(f, ps_verdict_meaning((ps_verdict)v));
+        fprintf(f, "</dd>\n");
+    }
+    fprintf(f, "</dl>\n</section>\n");
+}
+
+ps_status ps_write_html(FILE *f, const ps_run *r)
+{
+    fprintf(f, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+               "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
+               "<title>Screening report (plantsieve)</title>\n<style>\n%s</style>\n</head>\n<body>\n",
+            style_sheet);
+    header(f, r);
+    caution(f);
+    ranking(f, r);
+    severity_figure(f, r);
+    changes(f, r);
+    band_figures(f, r);
+    requirements(f, r);
+    meanings(f);
+    fprintf(f, "</body>\n</html>\n");
+    return ferror(f) ? PS_ERR_IO : PS_OK;
+}

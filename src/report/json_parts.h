@@ -1,0 +1,23 @@
+/* json_parts.h - pieces of the JSON documents shared by the survey listing
+ * and the screening report (internal to src/report). */
+#ifndef PS_JSON_PARTS_H
+#define PS_JSON_PARTS_H
+
+#include <jansson.h>
+
+#include "limits/floors.h"
+#include "model/plant.h"
+
+/* A number, or null when it is not finite (JSON has no NaN or infinity). */
+json_t *ps_json_num(double x);
+/* A string, or null when empty or not valid UTF-8. */
+json_t *ps_json_str(const char *s);
+/* The `floors` object (schema $defs/floors) without the extras. */
+json_t *ps_json_floors(const ps_floors *fl);
+/* Add disk_margin_max, margins_from_allowed and time_to_double to fj. */
+void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const double *rhp_real,
+                          size_t n_real);
+/* The `requirements` object. */
+json_t *ps_json_requirements(const ps_requirements *q);
+
+#endif

@@ -1,0 +1,50 @@
+/* reports.h - the screening run written for people and for machines:
+ * terminal table, CSV (RFC 4180), JSON (schema in reports/schema/),
+ * Markdown and self-contained HTML with inline SVG figures. Every writer
+ * takes the ranked run and writes one complete document to f; shared
+ * wording (caution, verdict meanings, target sentences) lives here too. */
+#ifndef PS_REPORTS_H
+#define PS_REPORTS_H
+
+#include <stdbool.h>
+#include <stdio.h>
+
+#include "core/diag.h"
+#include "screen/screen.h"
+
+/* Version of the screening JSON layout. */
+#define PS_SCREEN_SCHEMA_VERSION 1
+
+/* The caution every report carries (one paragraph, plain text). */
+extern const char ps_caution_text[];
+
+/* One sentence on what a verdict means (README "Verdicts"). */
+const char *ps_verdict_meaning(ps_verdict v);
+
+/* One line on a target, e.g. "dominant unstable pole must stay below
+ * 6.12 rad/s (time to double 113 ms; now 7.9 rad/s)". Empty when the target
+ * does not apply. */
+void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n);
+
+/* Short label of a target kind ("largest unstable pole", ...). */
+const char *ps_target_label(ps_target_kind k);
+
+/* Requirements of one plant in one line, marking which were given in the
+ * catalog and which are built-in defaults. */
+void ps_requirements_text(const ps_summary *s, char *buf, size_t n);
+
+/* Writers. Each returns PS_OK or PS_ERR_IO (PS_ERR_NOMEM for JSON). */
+ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour);
+ps_status ps_write_csv(FILE *f, const ps_run *r);
+ps_status ps_write_json(FILE *f, const ps_run *r);
+ps_status ps_write_markdown(FILE *f, const ps_run *r);
+ps_status ps_write_html(FILE *f, const ps_run *r);
+
+typedef ps_status (*ps_writer_fn)(FILE *f, const ps_run *r);
+
+/* Write dir/name through a temporary file in dir and rename(2): readers see
+ * the old file or the complete new one, never half a report. The temporary
+ * is removed on failure. d gets the reason. */
+ps_status ps_write_atomic(const char *dir, const char *name, ps_writer_fn fn, const ps_run *r, ps_diag *d);
+
+#endif

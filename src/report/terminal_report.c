@@ -1,0 +1,144 @@
+/* terminal_report.c - the screening run for a person at a terminal: a ranked
+ * table, the redesign list with causes and targets, the headroom of passing
+ * plants, counts per verdict and the caution. Colour only when asked. */
+#include "report/reports.h"
+
+#include <math.h>
+#include <string.h>
+
+/* SGR sequences per verdict (our own choice; only used on a terminal). */
+static const char *tint(ps_verdict v)
+{
+    switch (v) {
+    case PS_VERDICT_CLEAR: return "\033[32m";
+    case PS_VERDICT_MARGINAL: return "\033[33m";
+    case PS_VERDICT_REDESIGN: return "\033[1;31m";
+    case PS_VERDICT_UNSTABILIZABLE: return "\033[1;35m";
+    case PS_VERDICT_UNREAD: return "\033[36m";
+    case PS_VERDICT_COUNT: break;
+    }
+    return "";
+}
+
+static void num(char *buf, size_t n, double x)
+{
+    if (isnan(x))
+        snprintf(buf, n, "-");
+    else if (isinf(x))
+        snprintf(buf, n, "inf");
+    else
+        snprintf(buf, n, "%.3g", x);
+}
+
+static void wrap(FILE *f, const char *text, const char *indent, size_t width)
+{
+    size_t col = 0;
+    const char *p = text;
+    fputs(indent, f);
+    while (*p) {
+        const char *sp = strchr(p, ' ');
+        size_t len = sp ? (size_t)(sp - p) : strlen(p);
+        if (col > 0 && col + 1 + len > width) {
+            fprintf(f, "\n%s", indent);
+            col = 0;
+        } else if (col > 0) {
+            fputc(' ', f);
+            col++;
+        }
+        fwrite(p, 1, len, f);
+        col += len;
+        p += len;
+        while (*p == ' ')
+            p++;
+    }
+    fputc('\n', f);
+}
+
+static bool flagged(ps_verdict v)
+{
+    return v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE;
+}
+
+ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
+{
+    fprintf(f, "plantsieve %s screening of %zu plant%s from", PS_VERSION, r->n_rows, r->n_rows == 1 ? "" : "s");
+    for (size_t i = 0; i < r->n_catalogs; i++)
+        fprintf(f, " %s%s", r->catalogs[i].file, r->catalogs[i].failed ? " (not read to the end)" : "");
+    fprintf(f, "\nseverity = share of the allowed log-peak used by the worst floor; marginal from %.2g, "
+               "redesign above 1\n\n",
+            r->opt.marginal_at);
+
+    size_t idw = 5;
+    for (size_t i = 0; i < r->n_rows; i++)
+        idw = strlen(r->rows[i].id) > idw ? strlen(r->rows[i].id) : idw;
+    if (idw > 40)
+        idw = 40;
+    fprintf(f, "%4s  %-*s  %-16s  %8s  %-6s  %9s  %9s  %9s  %9s\n", "rank", (int)idw, "plant", "verdict",
+            "severity", "worst", "Ms floor", "Ms allow", "Mt floor", "Mt allow");
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        char sev[16], msf[16], msa[16], mtf[16], mta[16];
+        num(sev, sizeof sev, s->severity);
+        bool read = s->verdict != PS_VERDICT_UNREAD;
+        num(msf, sizeof msf, read ? s->fl.ms : NAN);
+        num(msa, sizeof msa, read ? s->req.ms_allowed : NAN);
+        num(mtf, sizeof mtf, read ? s->fl.mt : NAN);
+        num(mta, sizeof mta, read ? s->req.mt_allowed : NAN);
+        fprintf(f, "%4zu  %-*.*s  %s%-16s%s  %8s  %-6s  %9s  %9s  %9s  %9s\n", i + 1, (int)idw, (int)idw, s->id,
+                colour ? tint(s->verdict) : "", ps_verdict_name(s->verdict), colour ? "\033[0m" : "", sev,
+                s->worst, msf, msa, mtf, mta);
+    }
+
+    size_t n_flag = r->per_verdict[PS_VERDICT_REDESIGN] + r->per_verdict[PS_VERDICT_UNSTABILIZABLE];
+    fprintf(f, "\nSend back for mechanical redesign (%zu)\n", n_flag);
+    if (n_flag == 0)
+        fputs("  none\n", f);
+    char line[400];
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (!flagged(s->verdict))
+            continue;
+        fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
+        snprintf(line, sizeof line, "cause: %s", s->cause);
+        wrap(f, line, "    ", 96);
+        for (int k = 0; k < PS_TARGET_COUNT; k++) {
+            ps_target_text(s, (ps_target_kind)k, line, sizeof line);
+            if (line[0])
+                wrap(f, line, "    - ", 96);
+        }
+    }
+
+    fputs("\nHeadroom of the plants that pass\n", f);
+    size_t n_pass = 0;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict != PS_VERDICT_CLEAR && s->verdict != PS_VERDICT_MARGINAL)
+            continue;
+        n_pass++;
+        fprintf(f, "\n  %s  [%s]  largest share: %s\n", s->id, ps_verdict_name(s->verdict), s->cause);
+        for (int k = 0; k < PS_TARGET_COUNT; k++) {
+            ps_target_text(s, (ps_target_kind)k, line, sizeof line);
+            if (line[0])
+                wrap(f, line, "    - ", 96);
+        }
+    }
+    if (n_pass == 0)
+        fputs("  none\n", f);
+
+    if (r->per_verdict[PS_VERDICT_UNREAD]) {
+        fprintf(f, "\nEntries that could not be read (%zu)\n", r->per_verdict[PS_VERDICT_UNREAD]);
+        for (size_t i = 0; i < r->n_rows; i++) {
+            const ps_summary *s = &r->rows[i];
+            if (s->verdict == PS_VERDICT_UNREAD)
+                fprintf(f, "  %s:%zu:%zu: %s%s%s (field '%s')\n", r->catalogs[s->file_index].file, s->err_line,
+                        s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text, s->err_field);
+        }
+    }
+
+    fputs("\nCounts:", f);
+    for (int v = 0; v < PS_VERDICT_COUNT; v++)
+        fprintf(f, "%s %s %zu", v ? "," : "", ps_verdict_name((ps_verdict)v), r->per_verdict[v]);
+    fputs("\n\n", f);
+    wrap(f, ps_caution_text, "", 96);
+    return ferror(f) ? PS_ERR_IO : PS_OK;
+}

@@ -1,0 +1,613 @@
+/* screen.c - verdict, severity, cause and redesign targets of one plant, and
+ * the ranked run (see screen.h; definitions in README "Verdicts"). */
+#include "screen/screen.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "limits/limits.h"
+
+struct ps_screen_ws {
+    ps_limits_ws *lws;
+    ps_analysis work;   /* the plant with one thing changed, for the targets */
+    ps_floors fl;
+};
+
+ps_screen_ws *ps_screen_ws_new(void)
+{
+    ps_screen_ws *ws = calloc(1, sizeof *ws);
+    if (!ws)
+        return NULL;
+    if (!(ws->lws = ps_limits_ws_new())) {
+        free(ws);
+        return NULL;
+    }
+    return ws;
+}
+
+void ps_screen_ws_free(ps_screen_ws *ws)
+{
+    if (!ws)
+        return;
+    ps_limits_ws_free(ws->lws);
+    free(ws);
+}
+
+const char *ps_verdict_name(ps_verdict v)
+{
+    static const char *const names[PS_VERDICT_COUNT] = {"clear", "marginal", "redesign", "not-stabilizable",
+                                                        "input-error"};
+    return (unsigned)v < PS_VERDICT_COUNT ? names[v] : "?";
+}
+
+const char *ps_target_key(ps_target_kind k)
+{
+    static const char *const keys[PS_TARGET_COUNT] = {"unstable_pole", "rhp_zero", "delay", "rolloff_start",
+                                                      "band_edge"};
+    return (unsigned)k < PS_TARGET_COUNT ? keys[k] : "?";
+}
+
+const char *ps_target_state_name(ps_target_state s)
+{
+    switch (s) {
+    case PS_TARGET_NA: return "not-applicable";
+    case PS_TARGET_FOUND: return "found";
+    case PS_TARGET_NONE: return "no-value-passes";
+    case PS_TARGET_UNBOUNDED: return "unbounded";
+    }
+    return "?";
+}
+
+double ps_share_peak(double floor, double allowed)
+{
+    if (isnan(floor))
+        return NAN;
+    return log(fmax(floor, 1.0)) / log(allowed);
+}
+
+double ps_share_effort(double floor, double allowed)
+{
+    if (isnan(floor) || !(allowed > 0))
+        return NAN;
+    return log1p(floor) / log1p(allowed);
+}
+
+ps_verdict ps_verdict_of(double severity, bool infinite, bool hidden, double marginal_at)
+{
+    if (infinite || hidden || isinf(severity))
+        return PS_VERDICT_UNSTABILIZABLE;
+    if (severity > 1.0)
+        return PS_VERDICT_REDESIGN;
+    if (severity >= marginal_at)
+        return PS_VERDICT_MARGINAL;
+    return PS_VERDICT_CLEAR;
+}
+
+static double severity_of(const ps_floors *fl, const ps_requirements *q, double *sm, double *st, double *se)
+{
+    *sm = ps_share_peak(fl->ms, q->ms_allowed);
+    *st = ps_share_peak(fl->mt, q->mt_allowed);
+    *se = q->effort_allowed > 0 ? ps_share_effort(fl->effort, q->effort_allowed) : NAN;
+    if (fl->infinite)
+        return INFINITY;
+    double s = fmax(*sm, *st);
+    if (!isnan(*se))
+        s = fmax(s, *se);
+    return s;
+}
+
+bool ps_screen_passes(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *req, double *severity)
+{
+    double a, b, c;
+    ps_floors_compute(ws->lws, an, req, &ws->fl);
+    double s = severity_of(&ws->fl, req, &a, &b, &c);
+    if (severity)
+        *severity = s;
+    return !ws->fl.infinite && !an->hidden_unstable && s <= 1.0;
+}
+
+/* ---- the plant in numbers a cause sentence needs ---- */
+
+static double dominant_pole(const ps_analysis *an)
+{
+    double m = 0;
+    for (size_t i = 0; i < an->n_poles; i++)
+        if (an->poles[i].region == PS_RHP)
+            m = fmax(m, hypot(an->poles[i].v.re, an->poles[i].v.im));
+    return m;
+}
+
+static double smallest_zero(const ps_analysis *an)
+{
+    double m = INFINITY;
+    for (size_t i = 0; i < an->n_zeros; i++)
+        if (an->zeros[i].region == PS_RHP)
+            m = fmin(m, hypot(an->zeros[i].v.re, an->zeros[i].v.im));
+    return m;
+}
+
+static double rhp_real_sum(const ps_analysis *an)
+{
+    double s = 0;
+    for (size_t i = 0; i < an->n_poles; i++)
+        if (an->poles[i].region == PS_RHP)
+            s += an->poles[i].v.re;
+    return s;
+}
+
+/* "40 ms" or "1.2 s". */
+static void delay_words(double th, char *buf, size_t n)
+{
+    if (th < 1.0)
+        snprintf(buf, n, "%.3g ms", th * 1e3);
+    else
+        snprintf(buf, n, "%.3g s", th);
+}
+
+/* "unstable pole 7.9 rad/s" (or "unstable poles, dominant 7.9 rad/s"). */
+static void pole_words(const ps_analysis *an, char *buf, size_t n)
+{
+    snprintf(buf, n, "%s %.3g rad/s", an->n_rhp_poles > 1 ? "unstable poles, dominant" : "unstable pole",
+             dominant_pole(an));
+}
+
+typedef struct component {
+    const char *key;
+    double floor, allowed, share;
+} component;
+
+static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_requirements *q, char *buf,
+                        size_t n)
+{
+    if (an->hidden_unstable) {
+        snprintf(buf, n, "hidden unstable mode: no controller can reach or see it");
+        return;
+    }
+    if (fl->infinite) {
+        snprintf(buf, n, "%s", fl->note[0] ? fl->note : "an infinite floor");
+        return;
+    }
+    component c[] = {
+        {"ms_interpolation", fl->ms_interpolation, q->ms_allowed, ps_share_peak(fl->ms_interpolation, q->ms_allowed)},
+        {"ms_band", fl->ms_band, q->ms_allowed, ps_share_peak(fl->ms_band, q->ms_allowed)},
+        {"ms_poisson", fl->ms_poisson, q->ms_allowed, ps_share_peak(fl->ms_poisson, q->ms_allowed)},
+        {"mt_interpolation", fl->mt_interpolation, q->mt_allowed, ps_share_peak(fl->mt_interpolation, q->mt_allowed)},
+        {"mt_poisson", fl->mt_poisson, q->mt_allowed, ps_share_peak(fl->mt_poisson, q->mt_allowed)},
+        {"effort", fl->effort, q->effort_allowed,
+         q->effort_allowed > 0 ? ps_share_effort(fl->effort, q->effort_allowed) : NAN},
+    };
+    size_t best = 0;
+    for (size_t i = 1; i < sizeof c / sizeof c[0]; i++)
+        if (!isnan(c[i].share) && (isnan(c[best].share) || c[i].share > c[best].share))
+            best = i;
+    if (isnan(c[best].share) || c[best].share <= 0) {
+        snprintf(buf, n, "nothing binding: no unstable pole, no RHP zero%s",
+                 q->wb > 0 ? ", and the band requirement costs no peak" : " and no band requirement");
+        return;
+    }
+    char pw[64], dw[32], tail[96];
+    pole_words(an, pw, sizeof pw);
+    delay_words(an->delay, dw, sizeof dw);
+    snprintf(tail, sizeof tail, " (floor %.3g, allowed %.3g)", c[best].floor, c[best].allowed);
+    const char *k = c[best].key;
+    double z = smallest_zero(an);
+    if (strcmp(k, "ms_band") == 0) {
+        if (q->wb > 0)
+            snprintf(buf, n, "%s and |S| <= %.3g up to %.3g rad/s against a %.3g rad/s available bandwidth%s",
+                     an->n_rhp_poles ? pw : "no unstable pole", q->eps, q->wb, q->wh, tail);
+        else
+            snprintf(buf, n, "%s against a %.3g rad/s available bandwidth (Bode area %.3g rad/s)%s", pw, q->wh,
+                     M_PI * rhp_real_sum(an), tail);
+    } else if (strcmp(k, "ms_poisson") == 0) {
+        snprintf(buf, n, "RHP zero at %.3g rad/s %s the required band (|S| <= %.3g up to %.3g rad/s)%s", z,
+                 z <= q->wb ? "inside" : "near", q->eps, q->wb, tail);
+    } else if (strcmp(k, "mt_poisson") == 0) {
+        snprintf(buf, n, "%s against a %.3g rad/s available bandwidth (|T| <= %.3g beyond it)%s", pw, q->wh,
+                 q->delta / (1 - q->delta), tail);
+    } else if (strcmp(k, "effort") == 0) {
+        snprintf(buf, n, "stabilizing %s needs a peak |C S| of at least %.3g against %.3g allowed", pw,
+                 c[best].floor, c[best].allowed);
+    } else if (an->n_rhp_zeros > 0 && an->delay > 0) {
+        snprintf(buf, n, "%s with an RHP zero at %.3g rad/s and a %s delay%s", pw, z, dw, tail);
+    } else if (an->n_rhp_zeros > 0) {
+        snprintf(buf, n, "RHP zero at %.3g rad/s close to the %s%s", z, pw, tail);
+    } else {
+        snprintf(buf, n, "delay %s with an %s%s", dw, pw, tail);
+    }
+}
+
+/* ---- redesign targets: monotone bisection along one quantity ---- */
+
+typedef struct probe {
+    ps_screen_ws *ws;
+    const ps_analysis *base;
+    ps_requirements req;
+    ps_target_kind kind;
+    double band_eps;
+} probe;
+
+static bool probe_passes(probe *pr, double x)
+{
+    ps_analysis *w = &pr->ws->work;
+    ps_requirements q = pr->req;
+    memcpy(w, pr->base, sizeof *w);
+    switch (pr->kind) {
+    case PS_TARGET_POLE:
+        for (size_t i = 0; i < w->n_poles; i++)
+            if (w->poles[i].region == PS_RHP) {
+                w->poles[i].v.re *= x;
+                w->poles[i].v.im *= x;
+            }
+        break;
+    case PS_TARGET_ZERO:
+        for (size_t i = 0; i < w->n_zeros; i++)
+            if (w->zeros[i].region == PS_RHP) {
+                w->zeros[i].v.re *= x;
+                w->zeros[i].v.im *= x;
+            }
+        break;
+    case PS_TARGET_DELAY: w->delay = x; break;
+    case PS_TARGET_ROLLOFF:
+        if (!(x > q.wb))
+            return false;
+        q.wh = x;
+        break;
+    case PS_TARGET_BAND:
+        q.wb = x;
+        q.eps = pr->band_eps;
+        ps_floors_compute(pr->ws->lws, w, &q, &pr->ws->fl);
+        return !pr->ws->fl.infinite && !w->hidden_unstable && pr->ws->fl.ms <= q.ms_allowed;
+    case PS_TARGET_COUNT: break;
+    }
+    return ps_screen_passes(pr->ws, w, &q, NULL);
+}
+
+enum { STEP_MAX = 400, BISECT_MAX = 200 };
+#define STEP 1.25
+#define BISECT_RTOL 1e-10
+
+/* Boundary between a passing x_pass and a failing x_fail; returns the
+ * passing end (the conservative value). Geometric midpoints unless an end is 0. */
+static double bisect(probe *pr, double x_pass, double x_fail)
+{
+    for (int i = 0; i < BISECT_MAX && fabs(x_fail - x_pass) > BISECT_RTOL * fmax(fabs(x_pass), fabs(x_fail));
+         i++) {
+        double mid = (x_pass > 0 && x_fail > 0) ? sqrt(x_pass * x_fail) : 0.5 * (x_pass + x_fail);
+        if (probe_passes(pr, mid))
+            x_pass = mid;
+        else
+            x_fail = mid;
+    }
+    return x_pass;
+}
+
+/* Search x in [lo, hi] for the pass/fail boundary, starting at x0.
+ * worse_up: larger x is harder (passing set below the boundary). */
+static void search(probe *pr, ps_target *t, double x0, double lo, double hi, bool worse_up)
+{
+    double good_end = worse_up ? lo : hi, bad_end = worse_up ? hi : lo;
+    if (!probe_passes(pr, good_end)) {
+        t->state = PS_TARGET_NONE;
+        t->searched = good_end;
+        snprintf(t->why, sizeof t->why, "fails even at %.3g, the easy end of the searched range", good_end);
+        return;
+    }
+    t->passes_now = probe_passes(pr, x0);
+    double x = x0, prev = x0;
+    bool found = false;
+    if (t->passes_now) { /* walk towards the hard end until it fails */
+        for (int i = 0; i < STEP_MAX && !found; i++) {
+            prev = x;
+            x = worse_up ? (x > 0 ? x * STEP : hi * 1e-12) : x / STEP;
+            if (worse_up ? x >= bad_end : x <= bad_end) {
+                x = bad_end;
+                if (probe_passes(pr, x))
+                    break;
+                found = true;
+            } else
+                found = !probe_passes(pr, x);
+        }
+        if (!found) {
+            t->state = PS_TARGET_UNBOUNDED;
+            t->searched = bad_end;
+            snprintf(t->why, sizeof t->why, "passes up to the end of the searched range (%.3g)", bad_end);
+            return;
+        }
+        t->limit = bisect(pr, prev, x);
+    } else { /* walk towards the easy end until it passes */
+        for (int i = 0; i < STEP_MAX && !found; i++) {
+            prev = x;
+            x = worse_up ? x / STEP : x * STEP;
+            if (worse_up ? x <= good_end : x >= good_end) {
+                x = good_end;
+                found = true; /* passes: checked above */
+            } else
+                found = probe_passes(pr, x);
+        }
+        t->limit = bisect(pr, x, prev);
+    }
+    t->state = PS_TARGET_FOUND;
+}
+
+/* Reference frequency of the plant: sets the searched ranges. */
+static double plant_scale(const ps_analysis *an, const ps_requirements *q)
+{
+    double s = fmax(dominant_pole(an), isfinite(smallest_zero(an)) ? smallest_zero(an) : 0.0);
+    s = fmax(s, q->wh);
+    s = fmax(s, q->wb);
+    if (an->delay > 0)
+        s = fmax(s, 1.0 / an->delay);
+    return s > 0 ? s : 1.0;
+}
+
+static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *q, ps_summary *s)
+{
+    probe pr = {ws, an, *q, PS_TARGET_POLE, s->band_eps};
+    double scale = plant_scale(an, q);
+    for (int k = 0; k < PS_TARGET_COUNT; k++) {
+        ps_target *t = &s->target[k];
+        memset(t, 0, sizeof *t);
+        t->limit = NAN;
+        pr.kind = (ps_target_kind)k;
+        switch ((ps_target_kind)k) {
+        case PS_TARGET_POLE: {
+            double p = dominant_pole(an);
+            t->now = p;
+            if (an->n_rhp_poles == 0) {
+                snprintf(t->why, sizeof t->why, "no unstable pole");
+                break;
+            }
+            search(&pr, t, 1.0, 1e-6, 1e6, true);
+            t->limit *= p;
+            t->searched *= p;
+            break;
+        }
+        case PS_TARGET_ZERO: {
+            double z = smallest_zero(an);
+            t->now = isfinite(z) ? z : NAN;
+            if (an->n_rhp_zeros == 0) {
+                snprintf(t->why, sizeof t->why, "no RHP zero");
+                break;
+            }
+            search(&pr, t, 1.0, 1e-6, 1e6, false);
+            t->limit *= z;
+            t->searched *= z;
+            break;
+        }
+        case PS_TARGET_DELAY:
+            t->now = an->delay;
+            if (an->n_rhp_poles == 0) {
+                t->state = PS_TARGET_UNBOUNDED;
+                t->passes_now = ps_screen_passes(ws, an, q, NULL);
+                t->searched = INFINITY;
+                snprintf(t->why, sizeof t->why, "no unstable pole: the floors do not depend on the delay");
+                if (!t->passes_now) {
+                    t->state = PS_TARGET_NONE;
+                    snprintf(t->why, sizeof t->why, "fails for any delay (the delay is not the cause)");
+                }
+                break;
+            }
+            search(&pr, t, an->delay, 0.0, 1e3 / dominant_pole(an), true);
+            break;
+        case PS_TARGET_ROLLOFF:
+            t->now = q->wh;
+            if (!(q->wh > 0)) {
+                snprintf(t->why, sizeof t->why, "no rolloff_start given");
+                break;
+            }
+            search(&pr, t, q->wh, q->wb > 0 ? q->wb * (1 + 1e-9) : scale * 1e-6, scale * 1e6, false);
+            break;
+        case PS_TARGET_BAND: {
+            t->now = q->wb > 0 ? q->wb : NAN;
+            double hi = q->wh > 0 ? q->wh * (1 - 1e-9) : scale * 1e6;
+            search(&pr, t, q->wb > 0 ? q->wb : scale * 1e-6, scale * 1e-6, hi, true);
+            if (!(q->wb > 0))
+                t->passes_now = false;
+            break;
+        }
+        case PS_TARGET_COUNT: break;
+        }
+    }
+}
+
+/* Ms floor against the band edge (eps fixed), on a log grid. */
+static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *q, ps_summary *s)
+{
+    double scale = plant_scale(an, q);
+    double lo = scale * 1e-3, hi = q->wh > 0 ? q->wh * 0.999 : scale * 1e2;
+    ps_requirements r = *q;
+    r.eps = s->band_eps;
+    s->n_curve = PS_CURVE_N;
+    for (size_t i = 0; i < PS_CURVE_N; i++) {
+        double wb = lo * pow(hi / lo, (double)i / (PS_CURVE_N - 1));
+        r.wb = wb;
+        ps_floors_compute(ws->lws, an, &r, &ws->fl);
+        s->curve_wb[i] = wb;
+        s->curve_ms[i] = ws->fl.ms;
+    }
+}
+
+static void copy_roots(const ps_root *r, size_t n, ps_cplx *out, size_t *n_out)
+{
+    *n_out = n;
+    for (size_t i = 0; i < n && i < PS_MAP_MAX; i++)
+        out[i] = r[i].v;
+}
+
+void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opts *opt, ps_summary *s)
+{
+    size_t order = s->order, file_index = s->file_index;
+    memset(s, 0, sizeof *s);
+    s->order = order;
+    s->file_index = file_index;
+    snprintf(s->id, sizeof s->id, "%s", o->p->id);
+    s->line = o->p->line;
+    s->worst = "none";
+    s->share_ms = s->share_mt = s->share_effort = NAN;
+    if (o->err) {
+        s->verdict = PS_VERDICT_UNREAD;
+        s->severity = NAN;
+        s->err_line = o->err->line;
+        s->err_col = o->err->col;
+        snprintf(s->err_field, sizeof s->err_field, "%s", o->err->field);
+        snprintf(s->err_text, sizeof s->err_text, "%s", o->err->text);
+        snprintf(s->cause, sizeof s->cause, "input error: %.200s", o->err->text);
+        return;
+    }
+    const ps_analysis *an = o->an;
+    const ps_requirements *q = &o->p->req;
+    s->fl = *o->fl;
+    s->req = *q;
+    for (int f = PS_F_MS_ALLOWED; f <= PS_F_EFFORT_ALLOWED; f++)
+        s->req_overridden[f] = ps_plant_has(o->p, (ps_field)f);
+    s->severity = severity_of(o->fl, q, &s->share_ms, &s->share_mt, &s->share_effort);
+    s->verdict = ps_verdict_of(s->severity, o->fl->infinite, an->hidden_unstable, opt->marginal_at);
+    if (!isnan(s->share_ms) || !isnan(s->share_mt)) {
+        double best = s->share_ms;
+        s->worst = "Ms";
+        if (s->share_mt > best) {
+            best = s->share_mt;
+            s->worst = "Mt";
+        }
+        if (s->share_effort > best)
+            s->worst = "effort";
+    }
+    cause_words(an, o->fl, q, s->cause, sizeof s->cause);
+    copy_roots(an->poles, an->n_poles, s->poles, &s->n_poles);
+    copy_roots(an->zeros, an->n_zeros, s->zeros, &s->n_zeros);
+    for (size_t i = 0; i < an->n_poles && s->n_rhp_real < PS_MAP_MAX; i++)
+        if (an->poles[i].region == PS_RHP && an->poles[i].v.im == 0)
+            s->rhp_real[s->n_rhp_real++] = an->poles[i].v.re;
+    s->n_rhp_poles = an->n_rhp_poles;
+    s->n_rhp_zeros = an->n_rhp_zeros;
+    s->delay = an->delay;
+    s->gain = an->gain;
+    s->rel_degree = an->rel_degree;
+    s->hidden_unstable = an->hidden_unstable;
+    /* The band target and curve use the plant's attenuation, or the -3 dB
+     * level that defines the sensitivity bandwidth (S&P 2nd ed. sec. 2.4.5, from memory). */
+    s->band_eps = q->wb > 0 ? q->eps : M_SQRT1_2;
+    if (s->verdict == PS_VERDICT_UNSTABILIZABLE) {
+        for (int k = 0; k < PS_TARGET_COUNT; k++) {
+            s->target[k] = (ps_target){.state = PS_TARGET_NA, .limit = NAN, .now = NAN};
+            snprintf(s->target[k].why, sizeof s->target[k].why, "not stabilizable: no change of this value helps");
+        }
+        return;
+    }
+    targets(ws, an, q, s);
+    band_curve(ws, an, q, s);
+}
+
+/* ---- the run ---- */
+
+static char *dup_str(const char *s)
+{
+    size_t n = strlen(s) + 1;
+    char *c = malloc(n);
+    if (c)
+        memcpy(c, s, n);
+    return c;
+}
+
+void ps_run_init(ps_run *r, const ps_screen_opts *opt)
+{
+    memset(r, 0, sizeof *r);
+    r->opt = *opt;
+}
+
+void ps_run_free(ps_run *r)
+{
+    for (size_t i = 0; i < r->n_catalogs; i++) {
+        free(r->catalogs[i].file);
+        free(r->catalogs[i].error);
+    }
+    free(r->catalogs);
+    free(r->rows);
+    memset(r, 0, sizeof *r);
+}
+
+ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag)
+{
+    ps_catalog_entry *e = &r->catalogs[r->n_catalogs - 1];
+    e->failed = true;
+    e->line = fdiag->line;
+    e->col = fdiag->col;
+    free(e->error);
+    e->error = dup_str(fdiag->text);
+    return e->error ? PS_OK : PS_ERR_NOMEM;
+}
+
+ps_status ps_run_add_catalog(ps_run *r, const char *file, const ps_diag *fdiag)
+{
+    if (r->n_catalogs == r->cap_catalogs) {
+        size_t cap = r->cap_catalogs ? 2 * r->cap_catalogs : 8;
+        ps_catalog_entry *c = realloc(r->catalogs, cap * sizeof *c);
+        if (!c)
+            return PS_ERR_NOMEM;
+        r->catalogs = c;
+        r->cap_catalogs = cap;
+    }
+    ps_catalog_entry *e = &r->catalogs[r->n_catalogs];
+    memset(e, 0, sizeof *e);
+    e->file = dup_str(file);
+    if (fdiag) {
+        e->failed = true;
+        e->line = fdiag->line;
+        e->col = fdiag->col;
+        e->error = dup_str(fdiag->text);
+    }
+    if (!e->file || (fdiag && !e->error)) {
+        free(e->file);
+        free(e->error);
+        return PS_ERR_NOMEM;
+    }
+    r->n_catalogs++;
+    return PS_OK;
+}
+
+ps_summary *ps_run_next(ps_run *r)
+{
+    if (r->n_rows == r->cap_rows) {
+        size_t cap = r->cap_rows ? 2 * r->cap_rows : 64;
+        ps_summary *rows = realloc(r->rows, cap * sizeof *rows);
+        if (!rows)
+            return NULL;
+        r->rows = rows;
+        r->cap_rows = cap;
+    }
+    ps_summary *s = &r->rows[r->n_rows];
+    s->order = r->n_rows;
+    s->file_index = r->n_catalogs ? r->n_catalogs - 1 : 0;
+    return s;
+}
+
+void ps_run_commit(ps_run *r)
+{
+    ps_summary *s = &r->rows[r->n_rows++];
+    r->per_verdict[s->verdict]++;
+}
+
+/* Rank key: 0 not stabilizable, 1 screened (by severity), 2 input error. */
+static int rank_class(const ps_summary *s)
+{
+    return s->verdict == PS_VERDICT_UNSTABILIZABLE ? 0 : s->verdict == PS_VERDICT_UNREAD ? 2 : 1;
+}
+
+static int by_rank(const void *a, const void *b)
+{
+    const ps_summary *x = a, *y = b;
+    int cx = rank_class(x), cy = rank_class(y);
+    if (cx != cy)
+        return cx < cy ? -1 : 1;
+    if (cx == 1 && x->severity != y->severity)
+        return x->severity > y->severity ? -1 : 1;
+    return x->order < y->order ? -1 : x->order > y->order;
+}
+
+void ps_run_rank(ps_run *r)
+{
+    if (r->n_rows > 1)
+        qsort(r->rows, r->n_rows, sizeof *r->rows, by_rank);
+}

@@ -1,0 +1,153 @@
+/* screen.h - the screening decision for one plant: verdict, severity, the
+ * limiting cause in engineering words, and redesign targets found by
+ * bisection on the floors; and the ranked run that reports are written from.
+ * Definitions (thresholds, formulas) are documented in README "Verdicts". */
+#ifndef PS_SCREEN_H
+#define PS_SCREEN_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "batch/batch.h"
+#include "limits/floors.h"
+#include "model/plant.h"
+#include "roots/roots.h"
+
+typedef enum ps_verdict {
+    PS_VERDICT_CLEAR = 0,      /* every floor well inside what is allowed */
+    PS_VERDICT_MARGINAL,       /* floors use at least marginal_at of the allowed log-peak */
+    PS_VERDICT_REDESIGN,       /* some floor exceeds what the requirements allow */
+    PS_VERDICT_UNSTABILIZABLE, /* hidden unstable mode or an infinite floor */
+    PS_VERDICT_UNREAD,         /* the entry could not be read or checked */
+    PS_VERDICT_COUNT
+} ps_verdict;
+
+/* Stable words used in every report ("clear", "marginal", "redesign",
+ * "not-stabilizable", "input-error"). */
+const char *ps_verdict_name(ps_verdict v);
+
+/* Default share of the allowed log-peak at which a plant becomes marginal. */
+#define PS_MARGINAL_AT 0.8
+
+typedef enum ps_target_kind {
+    PS_TARGET_POLE = 0, /* largest dominant unstable pole that passes (all RHP poles scaled together) */
+    PS_TARGET_ZERO,     /* smallest RHP zero that passes (all RHP zeros scaled together) */
+    PS_TARGET_DELAY,    /* largest delay that passes */
+    PS_TARGET_ROLLOFF,  /* smallest roll-off start w_h (available bandwidth) that passes */
+    PS_TARGET_BAND,     /* widest band edge w_b whose Ms floor stays within the allowed Ms */
+    PS_TARGET_COUNT
+} ps_target_kind;
+
+/* Stable key of a target ("unstable_pole", "rhp_zero", "delay", "rolloff_start", "band_edge"). */
+const char *ps_target_key(ps_target_kind k);
+
+typedef enum ps_target_state {
+    PS_TARGET_NA = 0,    /* does not apply (e.g. no RHP zero); why says so */
+    PS_TARGET_FOUND,     /* limit holds the boundary value */
+    PS_TARGET_NONE,      /* no value in the searched range passes */
+    PS_TARGET_UNBOUNDED  /* every value in the searched range passes */
+} ps_target_state;
+
+const char *ps_target_state_name(ps_target_state s);
+
+typedef struct ps_target {
+    ps_target_state state;
+    double now;       /* present value: |dominant RHP pole|, |smallest RHP zero|, delay s, w_h, w_b (rad/s) */
+    double limit;     /* boundary value, same unit; NAN unless FOUND */
+    double searched;  /* the end of the searched range (for UNBOUNDED / NONE) */
+    bool passes_now;  /* the present value passes: limit - now is headroom */
+    char why[120];
+} ps_target;
+
+enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 240 };
+
+/* What a report needs of one plant: a fixed record, no pointers into the
+ * model (the model is gone once the next entry is read). */
+typedef struct ps_summary {
+    size_t order;               /* position in the run (catalog order), 0-based */
+    size_t file_index;          /* into the run's catalog list */
+    char id[PS_ID_MAX];
+    size_t line;
+    ps_verdict verdict;
+    double severity;            /* max share; INFINITY when not stabilizable, NAN for input errors */
+    double share_ms, share_mt, share_effort; /* NAN when not applicable */
+    const char *worst;          /* "Ms", "Mt", "effort" or "none" */
+    char cause[PS_CAUSE_MAX];
+    ps_floors fl;
+    ps_requirements req;
+    bool req_overridden[PS_F_COUNT]; /* the field was given on the plant (or by catalog defaults) */
+    ps_target target[PS_TARGET_COUNT];
+    double band_eps;            /* attenuation used for the band target and curve */
+    size_t n_curve;             /* Ms floor against the band edge, log grid */
+    double curve_wb[PS_CURVE_N], curve_ms[PS_CURVE_N];
+    /* the plant as analysed (first PS_MAP_MAX of each; counts are the true counts) */
+    size_t n_poles, n_zeros, n_rhp_poles, n_rhp_zeros;
+    ps_cplx poles[PS_MAP_MAX], zeros[PS_MAP_MAX];
+    size_t n_rhp_real;          /* real RHP poles (for times to double) */
+    double rhp_real[PS_MAP_MAX];
+    double delay, gain;
+    int rel_degree;
+    bool hidden_unstable;
+    /* input errors */
+    size_t err_line, err_col;
+    char err_field[PS_DIAG_FIELD];
+    char err_text[PS_DIAG_TEXT];
+} ps_summary;
+
+typedef struct ps_screen_opts {
+    double marginal_at;         /* default PS_MARGINAL_AT */
+} ps_screen_opts;
+
+typedef struct ps_screen_ws ps_screen_ws;
+ps_screen_ws *ps_screen_ws_new(void);
+void ps_screen_ws_free(ps_screen_ws *ws);
+
+/* Shares of the allowed log-peak: ln(floor)/ln(allowed) for Ms and Mt (floor
+ * below 1 counts as 1), ln(1 + effort)/ln(1 + allowed) for effort. */
+double ps_share_peak(double floor, double allowed);
+double ps_share_effort(double floor, double allowed);
+
+/* Verdict from the floors, requirements and structure. */
+ps_verdict ps_verdict_of(double severity, bool infinite, bool hidden, double marginal_at);
+
+/* Assess one outcome into s (order and file_index set by the caller). For an
+ * input error only the identity and error fields are filled. */
+void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opts *opt, ps_summary *s);
+
+/* Floors of an analysis under requirements, and whether they pass
+ * (severity <= 1 and not infinite). Exposed for the targets' tests. */
+bool ps_screen_passes(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *req, double *severity);
+
+/* ---- the run: every summary, ranked ---- */
+
+typedef struct ps_catalog_entry {
+    char *file;
+    bool failed;
+    size_t line, col;
+    char *error;
+} ps_catalog_entry;
+
+typedef struct ps_run {
+    ps_screen_opts opt;
+    ps_catalog_entry *catalogs;
+    size_t n_catalogs, cap_catalogs;
+    ps_summary *rows;           /* after ps_run_rank: worst first */
+    size_t n_rows, cap_rows;
+    size_t per_verdict[PS_VERDICT_COUNT];
+    ps_batch_counts counts;
+} ps_run;
+
+void ps_run_init(ps_run *r, const ps_screen_opts *opt);
+void ps_run_free(ps_run *r);
+/* Add a catalog before reading it (fdiag NULL); summaries that follow belong
+ * to it. ps_run_catalog_failed marks the last one as not read to the end. */
+ps_status ps_run_add_catalog(ps_run *r, const char *file, const ps_diag *fdiag);
+ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag);
+/* Room for the next summary (NULL on no memory); ps_run_commit keeps it. */
+ps_summary *ps_run_next(ps_run *r);
+void ps_run_commit(ps_run *r);
+/* Rank: not stabilizable first, then severity descending, ties by catalog
+ * order; input errors last in catalog order. Deterministic. */
+void ps_run_rank(ps_run *r);
+
+#endif
