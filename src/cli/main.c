@@ -1,17 +1,24 @@
 /* main.c - the plantsieve command line: argument parsing and exit codes over
  * the core library. Data goes to stdout, diagnostics to stderr. */
+#include <errno.h>
 #include <locale.h>
+#include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "batch/batch.h"
 #include "report/listing.h"
+#include "report/reports.h"
+#include "screen/screen.h"
 #include "roots/roots.h"
 
 /* Exit codes (README, "Exit codes"). */
 enum {
     EXIT_CLEAN = 0,      /* every entry read (and, for screening, every plant passed) */
-    EXIT_GATE = 1,       /* reserved for the screening gate */
+    EXIT_GATE = 1,       /* screening: the gate tripped (by default: some plant needs redesign or is not stabilizable) */
     EXIT_USAGE = 2,      /* bad command line */
     EXIT_ENTRIES = 3,    /* some entries could not be read; the rest were processed */
     EXIT_IO = 4          /* a catalog could not be opened or parsed, or output failed */
@@ -23,16 +30,28 @@ static const char usage_text[] =
     "Screen candidate plant variants for the limits that no controller can beat.\n"
     "\n"
     "commands:\n"
+    "  screen CATALOG...   rank every plant, give verdicts, causes and redesign targets;\n"
+    "                      print the ranked table and write the reports\n"
+    "  explain ID CATALOG...  every number behind one plant's verdict, with formula,\n"
+    "                      inputs, source and assumption\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
-    "                      gain, relative degree, delay and warnings\n"
+    "                      gain, relative degree, delay, warnings and floors\n"
     "\n"
-    "options:\n"
+    "screen options:\n"
+    "  -o DIR              write the reports into DIR (default: reports)\n"
+    "  --gate WHEN         exit 1 when WHEN: redesign (default; redesign or not\n"
+    "                      stabilizable), marginal (also marginal), never\n"
+    "  --marginal-at X     share of the allowed log-peak that makes a plant marginal\n"
+    "                      (default 0.8)\n"
+    "  --no-files          print the table only, write no report files\n"
+    "survey options:\n"
     "  --json              write one JSON document to stdout instead of text\n"
     "  -h, --help          show this help and exit\n"
     "  --version           show the version and exit\n"
     "\n"
-    "Catalogs are YAML (.yaml, .yml) or CSV (.csv). Exit codes: 0 all entries read,\n"
-    "2 usage error, 3 some entries rejected, 4 a catalog or the output failed.\n";
+    "Catalogs are YAML (.yaml, .yml) or CSV (.csv). Exit codes: 0 success (screen:\n"
+    "the gate passed), 1 the gate tripped, 2 usage error, 3 some entries rejected\n"
+    "(the rest processed), 4 a catalog, a report or the output failed.\n";
 
 typedef struct cli_ctx {
     ps_listing *listing;
@@ -113,6 +132,322 @@ static int cmd_survey(int argc, char **argv)
     return rc;
 }
 
+/* ---- screen and explain ---- */
+
+typedef enum gate { GATE_REDESIGN, GATE_MARGINAL, GATE_NEVER } gate;
+
+typedef struct screen_ctx {
+    ps_run run;
+    ps_screen_ws *ws;
+    bool nomem;
+    const char *only_id; /* explain: keep this plant only */
+    void (*also)(const ps_outcome *o, const ps_summary *s); /* explain: print while the model is here */
+    size_t found;
+} screen_ctx;
+
+static void screen_entry(void *ctx, const ps_outcome *o)
+{
+    screen_ctx *c = ctx;
+    if (o->err)
+        fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", o->file, o->err->line, o->err->col,
+                o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "", o->err->text);
+    if (c->only_id && strcmp(o->p->id, c->only_id) != 0)
+        return;
+    ps_summary *s = ps_run_next(&c->run);
+    if (!s) {
+        c->nomem = true;
+        return;
+    }
+    ps_screen_assess(c->ws, o, &c->run.opt, s);
+    ps_run_commit(&c->run);
+    c->found++;
+    if (c->also)
+        c->also(o, s);
+}
+
+/* Read every catalog into c->run; true when every catalog was read to the end. */
+static bool screen_catalogs(screen_ctx *c, char **files, int n)
+{
+    bool ok = true;
+    ps_batch *b = ps_batch_new(screen_entry, c);
+    if (!b) {
+        c->nomem = true;
+        return false;
+    }
+    for (int i = 0; i < n; i++) {
+        if (ps_run_add_catalog(&c->run, files[i], NULL) != PS_OK) {
+            c->nomem = true;
+            break;
+        }
+        ps_diag fd = {0};
+        if (ps_batch_run(b, files[i], &fd) != PS_OK) {
+            ok = false;
+            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", files[i], fd.line, fd.col, fd.text);
+            if (ps_run_catalog_failed(&c->run, &fd) != PS_OK)
+                c->nomem = true;
+        }
+    }
+    c->run.counts = *ps_batch_counts_get(b);
+    ps_batch_free(b);
+    return ok;
+}
+
+/* Report base name: the first catalog's file name without directory and ending. */
+static void stem_of(const char *path, char *out, size_t n)
+{
+    const char *base = strrchr(path, '/');
+    base = base ? base + 1 : path;
+    snprintf(out, n, "%s", base);
+    char *dot = strrchr(out, '.');
+    if (dot && dot != out)
+        *dot = '\0';
+}
+
+static ps_status write_terminal_plain(FILE *f, const ps_run *r)
+{
+    return ps_write_terminal(f, r, false);
+}
+
+static bool want_colour(void)
+{
+    const char *nc = getenv("NO_COLOR");
+    return isatty(STDOUT_FILENO) && !(nc && nc[0]);
+}
+
+static int cmd_screen(int argc, char **argv)
+{
+    const char *outdir = "reports";
+    gate g = GATE_REDESIGN;
+    ps_screen_opts opt = {PS_MARGINAL_AT};
+    bool files = true, dashdash = false;
+    char **cats = calloc((size_t)argc + 1, sizeof *cats);
+    int n = 0;
+    if (!cats)
+        return EXIT_IO;
+    for (int i = 0; i < argc; i++) {
+        const char *a = argv[i];
+        if (dashdash || a[0] != '-' || a[1] == '\0') {
+            cats[n++] = argv[i];
+            continue;
+        }
+        if (strcmp(a, "--") == 0)
+            dashdash = true;
+        else if (strcmp(a, "--no-files") == 0)
+            files = false;
+        else if (strcmp(a, "-o") == 0 || strcmp(a, "--gate") == 0 || strcmp(a, "--marginal-at") == 0) {
+            if (i + 1 >= argc) {
+                free(cats);
+                return usage_error("option needs a value", a);
+            }
+            const char *v = argv[++i];
+            if (strcmp(a, "-o") == 0)
+                outdir = v;
+            else if (strcmp(a, "--gate") == 0) {
+                if (strcmp(v, "redesign") == 0)
+                    g = GATE_REDESIGN;
+                else if (strcmp(v, "marginal") == 0)
+                    g = GATE_MARGINAL;
+                else if (strcmp(v, "never") == 0)
+                    g = GATE_NEVER;
+                else {
+                    free(cats);
+                    return usage_error("--gate takes redesign, marginal or never", v);
+                }
+            } else {
+                char *end;
+                errno = 0;
+                double x = strtod(v, &end);
+                if (errno || *end || end == v || !(x > 0 && x <= 1)) {
+                    free(cats);
+                    return usage_error("--marginal-at takes a number in (0, 1]", v);
+                }
+                opt.marginal_at = x;
+            }
+        } else {
+            free(cats);
+            return usage_error("unknown option", a);
+        }
+    }
+    if (n == 0) {
+        free(cats);
+        return usage_error("screen needs at least one catalog file", NULL);
+    }
+    screen_ctx c = {0};
+    ps_run_init(&c.run, &opt);
+    c.ws = ps_screen_ws_new();
+    bool read_ok = c.ws && screen_catalogs(&c, cats, n);
+    if (!c.ws || c.nomem) {
+        fputs("plantsieve: out of memory\n", stderr);
+        ps_screen_ws_free(c.ws);
+        ps_run_free(&c.run);
+        free(cats);
+        return EXIT_IO;
+    }
+    ps_run_rank(&c.run);
+    int rc = EXIT_CLEAN;
+    bool io_failed = !read_ok;
+    if (ps_write_terminal(stdout, &c.run, want_colour()) != PS_OK)
+        io_failed = true;
+    if (files) {
+        char stem[256], name[320];
+        stem_of(cats[0], stem, sizeof stem);
+        struct { const char *ext; ps_writer_fn fn; } out[] = {
+            {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
+            {"md", ps_write_markdown},     {"html", ps_write_html},
+        };
+        if (mkdir(outdir, 0777) != 0 && errno != EEXIST) {
+            fprintf(stderr, "plantsieve: cannot create %s: %s\n", outdir, strerror(errno));
+            io_failed = true;
+        } else
+            for (size_t i = 0; i < sizeof out / sizeof out[0]; i++) {
+                ps_diag d = {0};
+                snprintf(name, sizeof name, "%s.screen.%s", stem, out[i].ext);
+                if (ps_write_atomic(outdir, name, out[i].fn, &c.run, &d) != PS_OK) {
+                    fprintf(stderr, "plantsieve: %s\n", d.text);
+                    io_failed = true;
+                }
+            }
+    }
+    const size_t *pv = c.run.per_verdict;
+    bool tripped = (g != GATE_NEVER && (pv[PS_VERDICT_REDESIGN] || pv[PS_VERDICT_UNSTABILIZABLE])) ||
+                   (g == GATE_MARGINAL && pv[PS_VERDICT_MARGINAL]);
+    if (tripped)
+        rc = EXIT_GATE;
+    if (c.run.counts.errors)
+        rc = EXIT_ENTRIES;
+    if (io_failed)
+        rc = EXIT_IO;
+    ps_screen_ws_free(c.ws);
+    ps_run_free(&c.run);
+    free(cats);
+    if (fflush(stdout) != 0 || ferror(stdout)) {
+        fputs("plantsieve: error writing the output\n", stderr);
+        rc = EXIT_IO;
+    }
+    return rc;
+}
+
+/* explain: every number of one plant in the order it is checked by hand. */
+static void print_roots(const char *label, const ps_root *r, size_t n)
+{
+    printf("  %-22s", label);
+    if (n == 0)
+        fputs(" none", stdout);
+    for (size_t i = 0; i < n; i++)
+        printf(" %.6g%+.6gj[%s]", r[i].v.re, r[i].v.im, ps_region_name(r[i].region));
+    putchar('\n');
+}
+
+static void print_floor(const char *name, double v, const char *formula, const char *source, const char *assume)
+{
+    if (isnan(v))
+        printf("\n  %s = not applicable\n", name);
+    else if (isinf(v))
+        printf("\n  %s = infinite\n", name);
+    else
+        printf("\n  %s = %.6g\n", name, v);
+    printf("    formula:    %s\n    source:     %s\n    assumption: %s\n", formula, source, assume);
+}
+
+static void explain_one(const ps_outcome *o, const ps_summary *s)
+{
+    const ps_plant *p = o->p;
+    printf("plantsieve %s: explanation of plant '%s' (%s:%zu)\n\n", PS_VERSION, p->id, o->file, p->line);
+    if (o->err) {
+        printf("  input error at line %zu, column %zu, field '%s': %s\n", o->err->line, o->err->col, o->err->field,
+               o->err->text);
+        return;
+    }
+    const ps_analysis *an = o->an;
+    const ps_floors *fl = o->fl;
+    const ps_requirements *q = &p->req;
+    char req[400];
+    ps_requirements_text(s, req, sizeof req);
+    puts("1. The plant as analysed (roots: GSL companion solver, Newton-polished; state space: balanced eigenvalues)");
+    print_roots("poles", an->poles, an->n_poles);
+    print_roots("zeros", an->zeros, an->n_zeros);
+    printf("  %-22s %.6g\n  %-22s %d\n  %-22s %.6g s\n  %-22s %s\n", "gain", an->gain, "relative degree",
+           an->rel_degree, "delay", an->delay, "hidden unstable mode", an->hidden_unstable ? "YES" : "no");
+    printf("\n2. Requirements: %s\n", req);
+    puts("\n3. Floors (each holds for every stabilizing LTI controller, under its assumption)");
+    print_floor("Bode area F", fl->bode_area, "F = pi * sum Re p over the RHP poles",
+                "Bode sensitivity integral; Freudenberg & Looze, IEEE TAC 30(6), 1985",
+                "closed loop stable, loop of relative degree >= 2 (degree 1 adds -pi/2 lim s L(s))");
+    print_floor("Ms interpolation floor", fl->ms_interpolation,
+                "sqrt(1 + sigma_max^2(Qz^-1/2 Qzp Qp^-1/2)); one pair: |z + conj p| / |z - p|",
+                "J. Chen, IEEE TAC 45(6), 2000; S&P 2nd ed. 2005, ch. 5",
+                "no RHP pole/zero cancellation with the controller; with delay equal to the Mt floor");
+    print_floor("Mt interpolation floor", fl->mt_interpolation,
+                "Nevanlinna-Pick minimum norm, points p_i, values e^{p_i theta} / B_z(p_i)",
+                "S&P 2nd ed. 2005, ch. 5", "internal stability");
+    print_floor("Ms band floor", fl->ms_band, "exp([F + w_b ln(1/eps) - I(delta, k)] / (w_h - w_b)), I the exact roll-off tail",
+                "Bode integral with the band and roll-off; delta = 0: Stein 2003",
+                "the future loop meets |L| <= delta (w_h/w)^(1+k) beyond w_h (assumption about the controller)");
+    print_floor("Ms Poisson floor", fl->ms_poisson,
+                "(1/eps)^{Theta/(pi-Theta)} |B_p(z)^-1|^{pi/(pi-Theta)} at each RHP zero",
+                "Poisson integral; Freudenberg & Looze, IEEE TAC 30(6), 1985", "|S| <= eps on [0, w_b]");
+    print_floor("Mt Poisson floor", fl->mt_poisson,
+                "(1/eps_T)^{(pi-Theta)/Theta} (|B_z(p)^-1| e^{Re p theta})^{pi/Theta}, eps_T = delta/(1-delta)",
+                "Poisson integral for T; Freudenberg & Looze 1985", "|T| <= delta/(1-delta) beyond w_h (from the roll-off)");
+    print_floor("effort floor (peak |C S|)", fl->effort, "Pick, points p_i, values e^{p_i theta} / G_s(p_i)",
+                "S&P 2nd ed. 2005, ch. 5 (single pole: 1/|G_s(p)|)", "internal stability");
+    printf("\n  overall Ms floor = %.6g, Mt floor = %.6g (max of the above, with ||S|| >= ||T|| - 1 and the converse);"
+           " limiting: %s\n", fl->ms, fl->mt, fl->limiting);
+    printf("  crossover window (rules of thumb, not laws): %.4g .. %.4g rad/s, %s\n", fl->crossover_min,
+           fl->crossover_max, fl->window_open ? "open" : "CLOSED");
+    if (fl->note[0])
+        printf("  note: %s\n", fl->note);
+    puts("\n4. Severity (share of the allowed log-peak)");
+    printf("  Ms: ln(%.6g)/ln(%.6g) = %.4g\n  Mt: ln(%.6g)/ln(%.6g) = %.4g\n", fmax(fl->ms, 1), q->ms_allowed,
+           s->share_ms, fmax(fl->mt, 1), q->mt_allowed, s->share_mt);
+    if (q->effort_allowed > 0)
+        printf("  effort: ln(1 + %.6g)/ln(1 + %.6g) = %.4g\n", fl->effort, q->effort_allowed, s->share_effort);
+    else
+        puts("  effort: no effort_allowed given, not counted");
+    printf("  severity = %.4g (worst: %s)\n", s->severity, s->worst);
+    printf("\n5. Verdict: %s - %s\n   cause: %s\n", ps_verdict_name(s->verdict), ps_verdict_meaning(s->verdict),
+           s->cause);
+    printf("   (marginal from a severity of %.2g, redesign above 1)\n", PS_MARGINAL_AT);
+    puts("\n6. Redesign targets (monotone bisection on the floors, the rest of the plant held fixed)");
+    char line[400];
+    for (int k = 0; k < PS_TARGET_COUNT; k++) {
+        ps_target_text(s, (ps_target_kind)k, line, sizeof line);
+        printf("  - %s\n", line[0] ? line : s->target[k].why);
+    }
+    printf("\n%s\n", ps_caution_text);
+}
+
+static int cmd_explain(int argc, char **argv)
+{
+    if (argc < 2)
+        return usage_error("explain needs a plant id and at least one catalog file", NULL);
+    for (int i = 1; i < argc; i++)
+        if (argv[i][0] == '-' && argv[i][1] != '\0')
+            return usage_error("unknown option", argv[i]);
+    screen_ctx c = {0};
+    ps_screen_opts opt = {PS_MARGINAL_AT};
+    ps_run_init(&c.run, &opt);
+    c.only_id = argv[0];
+    c.also = explain_one;
+    c.ws = ps_screen_ws_new();
+    bool ok = c.ws && screen_catalogs(&c, argv + 1, argc - 1);
+    int rc = EXIT_CLEAN;
+    if (!c.ws || c.nomem)
+        rc = EXIT_IO;
+    else if (c.found == 0) {
+        fprintf(stderr, "plantsieve: no plant with id '%s' in the catalogs given\n", argv[0]);
+        rc = EXIT_USAGE;
+    } else if (c.run.counts.errors)
+        rc = EXIT_ENTRIES;
+    if (!ok)
+        rc = EXIT_IO;
+    ps_screen_ws_free(c.ws);
+    ps_run_free(&c.run);
+    if (fflush(stdout) != 0 || ferror(stdout))
+        rc = EXIT_IO;
+    return rc;
+}
+
 int main(int argc, char **argv)
 {
     /* Numbers are read and written in the C locale whatever the environment says. */
@@ -131,5 +466,9 @@ int main(int argc, char **argv)
     }
     if (strcmp(cmd, "survey") == 0)
         return cmd_survey(argc - 2, argv + 2);
+    if (strcmp(cmd, "screen") == 0)
+        return cmd_screen(argc - 2, argv + 2);
+    if (strcmp(cmd, "explain") == 0)
+        return cmd_explain(argc - 2, argv + 2);
     return usage_error("unknown command", cmd);
 }

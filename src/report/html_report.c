@@ -98,25 +98,34 @@ static void svg_text(FILE *f, double x, double y, const char *anchor, const char
     fputs("</text>\n", f);
 }
 
-/* A tick label for a value on a log or symmetric-log axis. */
+/* A tick label for a value on a log or symmetric-log axis: "%.4g", and
+ * powers of ten outside 1e-3 .. 1e4 as "1e5", "-1e-4". */
 static void tick_label(char *buf, size_t n, double v)
 {
     double a = fabs(v);
-    if (a != 0 && (a < 1e-3 || a >= 1e5))
-        snprintf(buf, n, "%.0e", v);
-    else
-        snprintf(buf, n, "%.4g", v);
+    if (a != 0 && (a < 1e-3 || a >= 1e4)) {
+        double e = round(log10(a));
+        if (fabs(a / pow(10.0, e) - 1) < 1e-9) {
+            snprintf(buf, n, "%s1e%d", v < 0 ? "-" : "", (int)e);
+            return;
+        }
+        snprintf(buf, n, "%.1e", v);
+        return;
+    }
+    snprintf(buf, n, "%.4g", v);
 }
 
 /* ---- style ---- */
 
 static const char style_sheet[] =
     "html{background:#fff;color:#000}\n"
-    "body{font-family:sans-serif;font-size:14px;line-height:1.45;max-width:68em;margin:1.5em auto;padding:0 1em;"
+    "body{font-family:sans-serif;font-size:14px;line-height:1.45;max-width:76em;margin:1.5em auto;padding:0 1em;"
     "color:#000;background:#fff}\n"
     "h1{font-size:1.6em;margin:0 0 .2em}h2{font-size:1.25em;border-bottom:1px solid #000;margin-top:1.6em}"
     "h3{font-size:1.05em;margin:1.2em 0 .3em}\n"
-    "table{border-collapse:collapse;margin:.5em 0}th,td{border:1px solid #777;padding:.2em .45em;"
+    "table{border-collapse:collapse;margin:.5em 0}table.ranking{width:100%;font-size:.92em}td.cause{min-width:12em}\n"
+    "td.id{word-break:break-word;min-width:6em}td.src{word-break:break-all;font-size:.9em;min-width:8em}"
+    "td.verdict{white-space:nowrap}th,td{border:1px solid #777;padding:.2em .45em;"
     "vertical-align:top;text-align:left}\n"
     "th{font-weight:bold;border-bottom:2px solid #000}td.num{text-align:right;font-variant-numeric:tabular-nums;"
     "white-space:nowrap}\n"
@@ -126,13 +135,14 @@ static const char style_sheet[] =
     ".meta{margin:.2em 0}.caution{border:2px solid #000;padding:.4em .8em;margin:1em 0}"
     ".caution h2{border:none;margin:.2em 0}\n"
     "figure{margin:1em 0;break-inside:avoid;page-break-inside:avoid}figcaption{font-size:.9em;max-width:52em}\n"
-    ".figs{display:flex;flex-wrap:wrap;gap:1em 2em}.figs figure{margin:.5em 0}\n"
+    ".figs{display:flex;flex-wrap:wrap;gap:1em 2em}.figs figure{margin:.5em 0;max-width:400px}\n"
     "article.flagged{break-inside:avoid;page-break-inside:avoid;border-top:1px solid #777}\n"
     "svg{max-width:100%;height:auto;background:#fff}\n"
     "svg text{font-family:sans-serif;font-size:11px;fill:#000}svg text.title{font-size:12px;font-weight:bold}\n"
-    "svg text.small{font-size:10px}\n"
+    "svg text.small{font-size:10px}svg text.value{paint-order:stroke;stroke:#fff;stroke-width:3px;"
+    "stroke-linejoin:round}\n"
     "svg line{stroke:#000;stroke-width:1}svg line.grid{stroke:#aaa;stroke-width:.6;stroke-dasharray:2 2}\n"
-    "svg line.limit{stroke-width:1.8}svg line.marginal{stroke-width:1.2;stroke-dasharray:6 3}\n"
+    "svg line.halo{stroke:#fff;stroke-width:4.5}svg line.limit{stroke-width:1.8}svg line.marginal{stroke-width:1.2;stroke-dasharray:6 3}\n"
     "svg line.required{stroke-width:1.2;stroke-dasharray:1.5 2.5}svg line.promise{stroke-width:1.8}\n"
     "svg .frame{fill:none;stroke:#000;stroke-width:1}svg .rhp{fill:#e2e2e2;stroke:none}\n"
     "svg .bar-clear{fill:#c8c8c8;stroke:#000;stroke-width:.6}svg .bar-marginal{fill:#808080;stroke:#000;"
@@ -142,6 +152,8 @@ static const char style_sheet[] =
     "svg .curve{fill:none;stroke:#000;stroke-width:1.8}svg .clipmark{fill:#000}\n"
     "@media print{body{max-width:none;margin:0;padding:0;font-size:10pt}"
     "h2{break-after:avoid;page-break-after:avoid}tr{break-inside:avoid}"
+    "table.ranking{font-size:7pt}table.ranking th,table.ranking td{padding:.15em .25em}"
+    "td.cause,td.src{min-width:0}td.id{min-width:5.5em}td.verdict{white-space:normal}"
     "*{-webkit-print-color-adjust:exact;print-color-adjust:exact}}\n"
     "@page{margin:14mm}\n";
 
@@ -169,7 +181,7 @@ static void header(FILE *f, const ps_run *r)
             fprintf(f, "read to the end");
         fprintf(f, "</li>\n");
     }
-    fprintf(f, "</ul>\n<h2>Counts</h2>\n<p>%zu entries: %zu models screened, %zu input errors.</p>\n",
+    fprintf(f, "</ul>\n<h2>Counts</h2>\n<p>Entries: %zu; screened: %zu; input errors: %zu.</p>\n",
             r->counts.entries, r->counts.models, r->counts.errors);
     fprintf(f, "<table class=\"counts\">\n<thead><tr><th>Verdict</th><th>Plants</th></tr></thead>\n<tbody>\n");
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
@@ -202,7 +214,8 @@ static void ranking(FILE *f, const ps_run *r)
         bool unread = s->verdict == PS_VERDICT_UNREAD;
         fprintf(f, "<tr class=\"plant-row\" data-id=\"");
         h_text(f, s->id);
-        fprintf(f, "\" data-verdict=\"%s\"><td class=\"num\">%zu</td><td>", ps_verdict_name(s->verdict), i + 1);
+        fprintf(f, "\" data-verdict=\"%s\"><td class=\"num\">%zu</td><td class=\"id\">", ps_verdict_name(s->verdict),
+                i + 1);
         h_text(f, s->id);
         fprintf(f, "</td><td class=\"verdict\">%s</td><td class=\"num\">", ps_verdict_name(s->verdict));
         if (isfinite(s->severity))
@@ -226,9 +239,9 @@ static void ranking(FILE *f, const ps_run *r)
             h_text(f, s->fl.limiting ? s->fl.limiting : "none");
             fprintf(f, "</td>");
         }
-        fprintf(f, "<td>");
+        fprintf(f, "<td class=\"cause\">");
         h_text(f, s->cause);
-        fprintf(f, "</td><td>");
+        fprintf(f, "</td><td class=\"src\">");
         h_text(f, catalog_of(r, s));
         fprintf(f, ":%zu</td></tr>\n", s->line);
     }
@@ -261,7 +274,7 @@ static void severity_figure(FILE *f, const ps_run *r)
      * hopeless plant does not squeeze every other bar against zero. */
     top = fmin(ceil(top * 4.0) / 4.0, 3.0);
     double step = top <= 1.5 ? 0.25 : 0.5;
-    const double W = 780, L = 175, PW = 460, T = 44, RH = 20;
+    const double W = 820, L = 175, PW = 460, T = 44, RH = 20;
     double plot_bottom = T + RH * (double)n_bars;
     double H = plot_bottom + 52 + 16 * (double)n_errors;
     svg_open(f, W, H, "Severity of every plant against the allowed and marginal lines");
@@ -273,45 +286,56 @@ static void severity_figure(FILE *f, const ps_run *r)
     for (double v = 0; v <= top + 1e-9; v += step)
         svg_line(f, XS(v), T - 4, XS(v), plot_bottom, "grid");
     char buf[160];
-    snprintf(buf, sizeof buf, "marginal %.2f", r->opt.marginal_at);
-    if (r->opt.marginal_at > 0 && r->opt.marginal_at < top) {
-        svg_line(f, XS(r->opt.marginal_at), T - 10, XS(r->opt.marginal_at), plot_bottom, "marginal");
-        svg_text(f, XS(r->opt.marginal_at) - 3, T - 13, "end", "small", 0, buf);
-    }
-    svg_line(f, XS(1.0), T - 10, XS(1.0), plot_bottom, "limit");
-    svg_text(f, XS(1.0) + 3, T - 13, "start", "small", 0, "allowed 1.00");
-    size_t row = 0;
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
-        if (s->verdict == PS_VERDICT_UNREAD)
-            continue;
-        double y = T + RH * (double)row++;
-        char label[80];
-        fit_label(label, sizeof label, s->id, 24);
-        fprintf(f, "<g>");
-        fprintf(f, "<title>");
-        h_text(f, s->id);
-        fprintf(f, ": %s</title>", ps_verdict_name(s->verdict));
-        svg_text(f, L - 6, y + 14, "end", "", 0, label);
-        const char *cls = s->verdict == PS_VERDICT_CLEAR      ? "bar-clear"
-                          : s->verdict == PS_VERDICT_MARGINAL ? "bar-marginal"
-                          : s->verdict == PS_VERDICT_REDESIGN ? "bar-redesign"
-                                                              : "bar-unstab";
-        if (s->verdict == PS_VERDICT_UNSTABILIZABLE) {
-            fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L, y + 4, PW);
-            svg_text(f, L + PW + 6, y + 14, "start", "", 0, "not stabilizable (off-scale)");
-        } else if (isfinite(s->severity)) {
-            double v = fmax(0.0, s->severity);
+    /* Bars, then the reference lines over them (with a white edge so they
+     * stay visible across a black bar), then the values over both. */
+    for (int pass = 0; pass < 2; pass++) {
+        if (pass == 1) {
+            if (r->opt.marginal_at > 0 && r->opt.marginal_at < top) {
+                svg_line(f, XS(r->opt.marginal_at), T, XS(r->opt.marginal_at), plot_bottom, "halo");
+                svg_line(f, XS(r->opt.marginal_at), T - 10, XS(r->opt.marginal_at), plot_bottom, "marginal");
+                snprintf(buf, sizeof buf, "marginal %.2f", r->opt.marginal_at);
+                svg_text(f, XS(r->opt.marginal_at) - 3, T - 13, "end", "small", 0, buf);
+            }
+            svg_line(f, XS(1.0), T, XS(1.0), plot_bottom, "halo");
+            svg_line(f, XS(1.0), T - 10, XS(1.0), plot_bottom, "limit");
+            svg_text(f, XS(1.0) + 3, T - 13, "start", "small", 0, "allowed 1.00");
+        }
+        size_t row = 0;
+        for (size_t i = 0; i < r->n_rows; i++) {
+            const ps_summary *s = &r->rows[i];
+            if (s->verdict == PS_VERDICT_UNREAD)
+                continue;
+            double y = T + RH * (double)row++;
+            bool unstab = s->verdict == PS_VERDICT_UNSTABILIZABLE;
+            double v = isfinite(s->severity) ? fmax(0.0, s->severity) : 0;
             bool off = v > top;
-            fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L, y + 4,
-                    XS(fmin(v, top)) - L);
-            if (off)
+            if (pass == 1) {
+                if (unstab)
+                    snprintf(buf, sizeof buf, "not stabilizable (off-scale)");
+                else if (!isfinite(s->severity))
+                    snprintf(buf, sizeof buf, "no share (nothing to bound)");
+                else
+                    snprintf(buf, sizeof buf, off ? "%.3f (off-scale)" : "%.3f", s->severity);
+                svg_text(f, unstab ? L + PW + 6 : off ? L + PW + 10 : XS(v) + 5, y + 14, "start", "value", 0, buf);
+                continue;
+            }
+            char label[80];
+            fit_label(label, sizeof label, s->id, 24);
+            fprintf(f, "<g><title>");
+            h_text(f, s->id);
+            fprintf(f, ": %s</title>\n", ps_verdict_name(s->verdict));
+            svg_text(f, L - 6, y + 14, "end", "", 0, label);
+            const char *cls = s->verdict == PS_VERDICT_CLEAR      ? "bar-clear"
+                              : s->verdict == PS_VERDICT_MARGINAL ? "bar-marginal"
+                              : s->verdict == PS_VERDICT_REDESIGN ? "bar-redesign"
+                                                                  : "bar-unstab";
+            if (unstab || isfinite(s->severity))
+                fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L,
+                        y + 4, unstab ? PW : XS(fmin(v, top)) - L);
+            if (off && !unstab)
                 fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl7 6l-7 6z\"/>\n", L + PW + 1, y + 4);
-            snprintf(buf, sizeof buf, off ? "%.3f (off-scale)" : "%.3f", s->severity);
-            svg_text(f, (off ? L + PW + 10 : XS(v) + 5), y + 14, "start", "", 0, buf);
-        } else
-            svg_text(f, L + 4, y + 14, "start", "", 0, "no share (nothing to bound)");
-        fprintf(f, "</g>\n");
+            fprintf(f, "</g>\n");
+        }
     }
     svg_line(f, L, plot_bottom, L + PW, plot_bottom, "");
     for (double v = 0; v <= top + 1e-9; v += step) {
@@ -375,7 +399,7 @@ static void pz_map(FILE *f, const ps_summary *s)
     while (c * pow(10.0, K) < big * (1 - 1e-12))
         K++;
     double umax = symlog(c * pow(10.0, K), c);
-    const double W = 360, H = 350, L = 70, T = 34, P = 240;
+    const double W = 400, H = 390, L = 70, T = 34, P = 280;
     double cx = L + P / 2, cy = T + P / 2;
 #define PX(x) (cx + (P / 2) * symlog((x), c) / umax)
 #define PY(y) (cy - (P / 2) * symlog((y), c) / umax)
@@ -387,23 +411,26 @@ static void pz_map(FILE *f, const ps_summary *s)
     svg_text(f, 10, 16, "start", "title", 0, buf);
     fprintf(f, "<rect class=\"rhp\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", cx, T, P / 2, P);
     svg_text(f, L + P - 4, T + 13, "end", "small", 0, "right half plane");
-    /* Ticks at 0, +-c, +-10c, ...; with many decades every other one is labelled. */
-    int every = K > 4 ? 2 : 1;
+    /* Ticks at 0, +-c, +-10c, ...; +-c sits only 0.3 decade from 0, so it
+     * is labelled only when it is the sole decade, and with many decades
+     * every other one is labelled on the Re axis. */
+    int every = K > 3 ? 2 : 1;
     for (int k = -1; k <= K; k++) {
         for (int sign = -1; sign <= 1; sign += 2) {
             double v = k < 0 ? 0 : sign * c * pow(10.0, k);
             if (k < 0 && sign > 0)
                 continue;
-            bool labelled = k < 0 || (K - k) % every == 0;
+            bool on_y = k < 0 || k > 0 || K == 0;
+            bool on_x = on_y && (k < 0 || (K - k) % every == 0);
             svg_line(f, PX(v), T, PX(v), T + P, "grid");
             svg_line(f, L, PY(v), L + P, PY(v), "grid");
             svg_line(f, PX(v), T + P, PX(v), T + P + 4, "");
             svg_line(f, L - 4, PY(v), L, PY(v), "");
-            if (labelled) {
-                tick_label(buf, sizeof buf, v);
+            tick_label(buf, sizeof buf, v);
+            if (on_x)
                 svg_text(f, PX(v), T + P + 15, "middle", "small", 0, buf);
+            if (on_y)
                 svg_text(f, L - 6, PY(v) + 3.5, "end", "small", 0, buf);
-            }
         }
     }
     svg_line(f, cx, T, cx, T + P, "");
@@ -584,7 +611,10 @@ static void band_figure(FILE *f, const ps_summary *s)
         svg_line(f, PX(bt->limit), T, PX(bt->limit), T + PH, "promise");
         fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", PX(bt->limit), T + PH);
         snprintf(buf, sizeof buf, "promise-able %.3g rad/s", bt->limit);
-        svg_text(f, PX(bt->limit) + 3, T + 12, "start", "small", 0, buf);
+        /* Left of the line the floor is still below the allowed Ms, so the
+         * top-left corner is free; near the left edge use the right side. */
+        bool left = PX(bt->limit) - L > 125;
+        svg_text(f, PX(bt->limit) + (left ? -3 : 3), T + 12, left ? "end" : "start", "small", 0, buf);
     }
     svg_text(f, L + PW / 2, T + PH + 34, "middle", "", 0, "band edge w_b (rad/s, log)");
     svg_text(f, 16, T + PH / 2, "middle", "", -90, "Ms floor (ratio, log)");
@@ -594,13 +624,16 @@ static void band_figure(FILE *f, const ps_summary *s)
     char text[400];
     ps_target_text(s, PS_TARGET_BAND, text, sizeof text);
     fprintf(f, "<figcaption>Ms floor forced by |S| &le; %.3g up to the band edge w_b, against w_b (both axes log). "
-               "Dashed: the allowed Ms; dotted: the required band edge; solid with a triangle: the widest "
-               "band edge that can be promised.",
+               "Dashed: the allowed Ms.",
             s->band_eps);
+    if (required)
+        fprintf(f, " Dotted: the required band edge.");
+    if (promise)
+        fprintf(f, " Solid with a triangle: the widest band edge that can be promised.");
     if (clipped)
         fprintf(f, " Values above %.3g are drawn on the top edge.", ytop);
     if (text[0]) {
-        fprintf(f, " ");
+        fprintf(f, " Target: ");
         h_text(f, text);
         fprintf(f, ".");
     }

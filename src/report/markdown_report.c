@@ -8,8 +8,10 @@
 #include <string.h>
 
 /* Write s as inline Markdown text. Characters that CommonMark could read as
- * markup get a backslash (allowed before any ASCII punctuation): emphasis,
- * code and link brackets always; '<' only where it could open raw HTML or an
+ * markup get a backslash (allowed before any ASCII punctuation): '*', code
+ * and link brackets always; '_' unless it sits inside a word (CommonMark never
+ * reads an intraword underscore as emphasis, so "w_h" stays readable); '<'
+ * only where it could open raw HTML or an
  * autolink, '&' only where it could start an entity, '|' only inside a table
  * cell. Line breaks and tabs become spaces so a value never ends a row. */
 static void md_put(FILE *f, const char *s, bool in_table)
@@ -18,7 +20,8 @@ static void md_put(FILE *f, const char *s, bool in_table)
         return;
     for (const char *c = s; *c; c++) {
         char next = c[1];
-        bool esc = strchr("\\`*_[]", *c) != NULL ||
+        bool intraword = c > s && isalnum((unsigned char)c[-1]) && isalnum((unsigned char)next);
+        bool esc = strchr("\\`*[]", *c) != NULL || (*c == '_' && !intraword) ||
                    (*c == '<' && (isalpha((unsigned char)next) || (next && strchr("/!?", next)))) ||
                    (*c == '&' && (isalnum((unsigned char)next) || next == '#')) || (*c == '|' && in_table);
         if (*c == '\r' || *c == '\n' || *c == '\t')
@@ -74,7 +77,7 @@ static void header(FILE *f, const ps_run *r)
             fprintf(f, "read to the end\n");
     }
     fprintf(f, "\n## Counts\n\n");
-    fprintf(f, "%zu entries: %zu models screened, %zu input errors.\n\n", r->counts.entries, r->counts.models,
+    fprintf(f, "Entries: %zu; screened: %zu; input errors: %zu.\n\n", r->counts.entries, r->counts.models,
             r->counts.errors);
     fprintf(f, "| Verdict | Plants |\n|---|---:|\n");
     for (int v = 0; v < PS_VERDICT_COUNT; v++)

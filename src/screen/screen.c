@@ -9,6 +9,13 @@
 
 #include "limits/limits.h"
 
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+#ifndef M_SQRT1_2
+#define M_SQRT1_2 0.70710678118654752440
+#endif
+
 struct ps_screen_ws {
     ps_limits_ws *lws;
     ps_analysis work;   /* the plant with one thing changed, for the targets */
@@ -187,7 +194,7 @@ static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_req
                  q->wb > 0 ? ", and the band requirement costs no peak" : " and no band requirement");
         return;
     }
-    char pw[64], dw[32], tail[96];
+    char pw[48], dw[24], tail[64];
     pole_words(an, pw, sizeof pw);
     delay_words(an->delay, dw, sizeof dw);
     snprintf(tail, sizeof tail, " (floor %.3g, allowed %.3g)", c[best].floor, c[best].allowed);
