@@ -35,11 +35,13 @@ static void wrap(FILE *f, const char *text, const char *indent, size_t width)
     size_t col = 0;
     const char *p = text;
     fputs(indent, f);
+    /* continuation lines are indented as far as the first, without its bullet */
+    size_t ind = strlen(indent);
     while (*p) {
         const char *sp = strchr(p, ' ');
         size_t len = sp ? (size_t)(sp - p) : strlen(p);
         if (col > 0 && col + 1 + len > width) {
-            fprintf(f, "\n%s", indent);
+            fprintf(f, "\n%*s", (int)ind, "");
             col = 0;
         } else if (col > 0) {
             fputc(' ', f);

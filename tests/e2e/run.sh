@@ -93,5 +93,48 @@ for p in d["plants"]:
 ' "$tmp/broken.json" "$src/reports/schema/plantsieve-survey.schema.json"; check "broken catalog counts $cat" 0 $?
 done
 
+# Screening: closed-form answers, gates, reports parsed back, determinism.
+cf="$src/tests/data/e2e/closed-form.yaml"
+"$ps" screen -o "$tmp/scr" "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: default gate trips on redesign" 1 $?
+"$ps" screen -o "$tmp/scr" --gate never "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: gate never" 0 $?
+"$ps" screen -o "$tmp/scr" --gate marginal "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: gate marginal" 1 $?
+"$ps" screen -o "$tmp/scr" --gate sometimes "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: bad gate is a usage error" 2 $?
+"$ps" screen -o "$tmp/scr" --gate never "$src/catalogs/broken/broken-entries.yaml" >"$tmp/out" 2>"$tmp/err"; check "screen: unreadable entries" 3 $?
+"$ps" explain pole-zero "$cf" >"$tmp/out" 2>"$tmp/err"; check "explain exits 0" 0 $?
+contains "explain shows the floor formula" "$tmp/out" "|z + conj p| / |z - p|"
+"$ps" explain nosuch "$cf" >"$tmp/out" 2>"$tmp/err"; check "explain: unknown id" 2 $?
+"$ps" screen -o "$tmp/scr2" --gate never "$cf" >/dev/null 2>&1
+for ext in txt csv json md html; do
+    cmp -s "$tmp/scr/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
+done
+ls -A "$tmp/scr" | grep -q '^\.' ; check "screen: no temporary file left" 1 $?
+"$py" -c '
+import csv, json, math, sys
+d = json.load(open(sys.argv[1]))
+P = {p["id"]: p for p in d["plants"]}
+assert [p["id"] for p in d["plants"]] == ["one-pole-tight", "pole-zero", "one-pole-wide", "stable"], list(P)
+assert P["one-pole-tight"]["verdict"] == "redesign" and P["pole-zero"]["verdict"] == "redesign"
+assert P["one-pole-wide"]["verdict"] == "clear" and P["stable"]["verdict"] == "clear"
+# exp(pi p / W_a) = Ms_allowed (Stein 2003): p* = W_a ln 2 / pi
+pstar = 40 * math.log(2) / math.pi
+for i in ("one-pole-tight", "one-pole-wide"):
+    lim = P[i]["targets"]["unstable_pole"]["limit"]
+    assert abs(lim - pstar) <= 1e-6 * pstar, (i, lim, pstar)
+# (z + p)/(z - p) = Ms_allowed = 2 with p = 2: z* = 6 (S&P 2nd ed. ch. 5)
+lim = P["pole-zero"]["targets"]["rhp_zero"]["limit"]
+assert abs(lim - 6) <= 1e-6 * 6, lim
+# w_h with exp(pi 12 / w_h) = 2
+wh = P["one-pole-tight"]["targets"]["rolloff_start"]["limit"]
+assert abs(wh - math.pi * 12 / math.log(2)) <= 1e-6 * wh, wh
+assert "caution" in d and "necessary" in d["caution"]
+rows = list(csv.DictReader(open(sys.argv[2], newline="")))
+assert [r["id"] for r in rows] == [p["id"] for p in d["plants"]], rows
+assert rows[1]["verdict"] == "redesign"
+' "$tmp/scr/closed-form.screen.json" "$tmp/scr/closed-form.screen.csv"; check "screen: closed-form verdicts, ranking and targets" 0 $?
+(cd "$src" && "$ps" screen -o "$tmp/demo" --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
+for ext in txt csv json md html; do
+    cmp -s "$tmp/demo/demo-variants.screen.$ext" "$src/reports/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
+done
+
 echo "$pass passed, $fail failed"
 [ "$fail" -eq 0 ]
