@@ -560,7 +560,7 @@ Test(reports, documents_as_report_files)
     static ps_run r;
     build_run(&r);
     const char *keep = getenv("PS_REPORTS_SAMPLE_DIR");
-    char tmp[] = "/tmp/psrepXXXXXX";
+    char tmp[] = "psrepXXXXXX" /* made in the working directory (ctest: the build tree) */;
     const char *dir = keep && keep[0] ? keep : mkdtemp(tmp);
     cr_assert_not_null(dir);
     static const char *const names[] = {"sample.screen.csv", "sample.screen.md", "sample.screen.html"};
@@ -625,7 +625,7 @@ Test(reports, atomic_write_replaces_whole_or_not_at_all)
 {
     static ps_run r;
     build_run(&r);
-    char dir[] = "/tmp/psrepXXXXXX";
+    char dir[] = "psrepXXXXXX" /* made in the working directory (ctest: the build tree) */;
     cr_assert_not_null(mkdtemp(dir));
     char path[256], name[256];
     snprintf(path, sizeof path, "%s/run.screen.csv", dir);
