@@ -10,6 +10,7 @@
 #include <unistd.h>
 
 #include "batch/batch.h"
+#include "report/json_parts.h"
 #include "report/listing.h"
 #include "report/reports.h"
 #include "screen/screen.h"
@@ -378,7 +379,7 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
                 "J. Chen, IEEE TAC 45(6), 2000; S&P 2nd ed. 2005, ch. 5",
                 "no RHP pole/zero cancellation with the controller; with delay equal to the Mt floor");
     print_floor("Mt interpolation floor", fl->mt_interpolation,
-                "Nevanlinna-Pick minimum norm, points p_i, values e^{p_i theta} / B_z(p_i)",
+                "Nevanlinna-Pick minimum norm, points p_i, values e^{p_i theta} / B_z(p_i) (repeated p: with derivatives)",
                 "S&P 2nd ed. 2005, ch. 5", "internal stability");
     print_floor("Ms band floor", fl->ms_band, "exp([F + w_b ln(1/eps) - I(delta, k)] / (w_h - w_b)), I the exact roll-off tail",
                 "Bode integral with the band and roll-off; delta = 0: Stein 2003",
@@ -395,6 +396,10 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
            " limiting: %s\n", fl->ms, fl->mt, fl->limiting);
     printf("  crossover window (rules of thumb, not laws): %.4g .. %.4g rad/s, %s\n", fl->crossover_min,
            fl->crossover_max, fl->window_open ? "open" : "CLOSED");
+    printf("  parity interlacing (Youla, Bongiorno & Lu, Automatica 10, 1974): %s\n",
+           fl->parity_interlacing ? "holds - a stable controller can stabilize"
+                                  : "FAILS - every stabilizing controller is itself unstable");
+    printf("  Bode area floor covers: %s\n", ps_bode_coverage_text(fl->bode_controller_rd));
     if (fl->note[0])
         printf("  note: %s\n", fl->note);
     puts("\n4. Severity (share of the allowed log-peak)");

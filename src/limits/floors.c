@@ -21,14 +21,130 @@ static size_t rhp(const ps_root *r, size_t n, ps_cplx *out)
     return k;
 }
 
-/* Are the points distinct (no repeated RHP root)? Pick/Chen need that. */
+/* Are the points distinct (no repeated RHP root)? Points closer than
+ * PS_MERGE_RTOL (relative) count as one point of higher multiplicity. */
+static bool same_point(ps_cplx a, ps_cplx b)
+{
+    return cabs(cx(a) - cx(b)) <= PS_MERGE_RTOL * fmax(1.0, cabs(cx(a)));
+}
+
 static bool distinct(const ps_cplx *s, size_t n)
 {
     for (size_t i = 0; i < n; i++)
         for (size_t j = i + 1; j < n; j++)
-            if (cabs(cx(s[i]) - cx(s[j])) <= 1e-9 * fmax(1.0, cabs(cx(s[i]))))
+            if (same_point(s[i], s[j]))
                 return false;
     return true;
+}
+
+/* Group points into distinct ones with multiplicities (mean of the members). */
+static size_t group(const ps_cplx *s, size_t n, ps_cplx *g, unsigned *mult)
+{
+    size_t ng = 0;
+    for (size_t i = 0; i < n; i++) {
+        size_t k = 0;
+        while (k < ng && !same_point(g[k], s[i]))
+            k++;
+        if (k == ng) {
+            g[ng] = s[i];
+            mult[ng++] = 1;
+        } else {
+            g[k].re = (g[k].re * mult[k] + s[i].re) / (mult[k] + 1);
+            g[k].im = (g[k].im * mult[k] + s[i].im) / (mult[k] + 1);
+            mult[k]++;
+        }
+    }
+    return ng;
+}
+
+/* Truncated power series in u = s - s0, m coefficients (m <= NP). */
+static void ser_one(double complex *a, unsigned m)
+{
+    a[0] = 1;
+    for (unsigned k = 1; k < m; k++)
+        a[k] = 0;
+}
+
+/* a *= (b + u), b = s0 - c for a factor (s - c). */
+static void ser_mul_lin(double complex *a, unsigned m, double complex b)
+{
+    for (unsigned k = m; k-- > 0;)
+        a[k] = b * a[k] + (k ? a[k - 1] : 0);
+}
+
+/* a /= (b + u), b != 0. */
+static void ser_div_lin(double complex *a, unsigned m, double complex b)
+{
+    for (unsigned k = 0; k < m; k++)
+        a[k] = (a[k] - (k ? a[k - 1] : 0)) / b;
+}
+
+/* a *= e^{theta s} = e^{theta s0} sum (theta u)^k / k!. */
+static void ser_mul_exp(double complex *a, unsigned m, double complex s0, double theta)
+{
+    double complex e[NP], out[NP];
+    e[0] = cexp(theta * s0);
+    for (unsigned k = 1; k < m; k++)
+        e[k] = e[k - 1] * theta / k;
+    for (unsigned k = 0; k < m; k++) {
+        out[k] = 0;
+        for (unsigned i = 0; i <= k; i++)
+            out[k] += e[i] * a[k - i];
+    }
+    for (unsigned k = 0; k < m; k++)
+        a[k] = out[k];
+}
+
+/* The functions interpolated at repeated points (README "Floors"):
+ * T at the RHP poles: e^{theta s} / B_z(s); S at the RHP zeros: 1 / B_p(s);
+ * effort at the RHP poles: e^{theta s} / G_s(s). */
+enum interp_kind { AT_POLES_T, AT_ZEROS_S, AT_POLES_EFFORT };
+
+static void taylor(enum interp_kind kind, const ps_analysis *an, const ps_cplx *z, size_t nz,
+                   const ps_cplx *p, size_t np, double complex s0, unsigned m, double complex *a)
+{
+    ser_one(a, m);
+    if (kind == AT_ZEROS_S) {
+        for (size_t i = 0; i < np; i++) {
+            ser_mul_lin(a, m, s0 + conj(cx(p[i])));
+            ser_div_lin(a, m, s0 - cx(p[i]));
+        }
+        return;
+    }
+    ser_mul_exp(a, m, s0, an->delay);
+    if (kind == AT_POLES_T) {
+        for (size_t j = 0; j < nz; j++) {
+            ser_mul_lin(a, m, s0 + conj(cx(z[j])));
+            ser_div_lin(a, m, s0 - cx(z[j]));
+        }
+        return;
+    }
+    for (size_t i = 0; i < an->n_poles; i++) {
+        double complex q = cx(an->poles[i].v);
+        ser_mul_lin(a, m, an->poles[i].region == PS_RHP ? s0 + conj(q) : s0 - q);
+    }
+    for (size_t j = 0; j < an->n_zeros; j++)
+        ser_div_lin(a, m, s0 - cx(an->zeros[j].v));
+    for (unsigned k = 0; k < m; k++)
+        a[k] /= an->gain;
+}
+
+/* Confluent Pick value for repeated points. */
+static ps_status confluent(ps_limits_ws *ws, enum interp_kind kind, const ps_analysis *an, const ps_cplx *z,
+                           size_t nz, const ps_cplx *p, size_t np, double *out, double *cond, ps_diag *d)
+{
+    const ps_cplx *pts = kind == AT_ZEROS_S ? z : p;
+    size_t npts = kind == AT_ZEROS_S ? nz : np;
+    ps_cplx g[NP], data[NP];
+    unsigned mult[NP];
+    size_t ng = group(pts, npts, g, mult), at = 0;
+    for (size_t k = 0; k < ng; k++) {
+        double complex a[NP];
+        taylor(kind, an, z, nz, p, np, cx(g[k]), mult[k], a);
+        for (unsigned i = 0; i < mult[k]; i++)
+            data[at++] = (ps_cplx){creal(a[i]), cimag(a[i])};
+    }
+    return ps_pick_confluent(ws, g, mult, ng, data, out, cond, d);
 }
 
 /* G_s(p) = k prod(p - z) / [prod_{non-RHP poles}(p - q) prod_{RHP i}(p + conj p_i)]:
@@ -43,6 +159,39 @@ static double complex mirror_at(const ps_analysis *an, double complex p)
         v /= an->poles[i].region == PS_RHP ? p + conj(q) : p - q;
     }
     return v;
+}
+
+/* Parity interlacing (Youla, Bongiorno & Lu, Automatica 10, 1974): a plant
+ * is stabilizable by a stable controller iff between every pair of real
+ * zeros in [0, +inf] lies an even number of real poles (with multiplicity).
+ * +inf counts as a zero for a strictly proper plant, and for a delay
+ * (e^{-s theta} -> 0 along the positive real axis). */
+static bool parity_interlacing(const ps_analysis *an)
+{
+    double zr[NP + 1];
+    size_t n = 0;
+    for (size_t j = 0; j < an->n_zeros; j++)
+        if (an->zeros[j].v.im == 0 && an->zeros[j].region != PS_LHP)
+            zr[n++] = fmax(an->zeros[j].v.re, 0.0);
+    if (an->rel_degree > 0 || an->delay > 0)
+        zr[n++] = INFINITY;
+    for (size_t i = 1; i < n; i++) /* insertion sort: n is small */
+        for (size_t k = i; k > 0 && zr[k - 1] > zr[k]; k--) {
+            double t = zr[k];
+            zr[k] = zr[k - 1];
+            zr[k - 1] = t;
+        }
+    for (size_t k = 0; k + 1 < n; k++) {
+        unsigned count = 0;
+        for (size_t i = 0; i < an->n_poles; i++) {
+            const ps_root *q = &an->poles[i];
+            if (q->v.im == 0 && q->region != PS_LHP && q->v.re > zr[k] && q->v.re < zr[k + 1])
+                count++;
+        }
+        if (count % 2)
+            return false;
+    }
+    return true;
 }
 
 void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
@@ -67,10 +216,26 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
         out->ms_interpolation = ms_single; /* = 1: nothing to interpolate against */
         out->mt_interpolation = 1.0;
     } else if (!ok_points) {
-        out->ms_interpolation = ms_single;
-        out->mt_interpolation = mt_single;
-        snprintf(out->note, sizeof out->note,
-                 "repeated RHP roots: single-point products shown (joint floor needs the confluent form)");
+        /* Repeated RHP roots: derivative conditions at each repeated point
+         * (confluent Pick). Without delay the floor on ||S|| is the Pick value
+         * at the zeros, which equals the one at the poles (Chen's equality). */
+        double g = 1.0, c1 = 1.0, c2 = 1.0;
+        ps_status st = confluent(ws, AT_POLES_T, an, z, nz, p, np, &g, &c1, &d);
+        if (st == PS_OK) {
+            out->mt_interpolation = fmax(g, mt_single);
+            out->ms_interpolation = theta > 0 ? out->mt_interpolation : fmax(ms_single, 1.0);
+            if (theta == 0 && nz > 0 && (st = confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &g, &c2, &d)) == PS_OK)
+                out->ms_interpolation = fmax(g, ms_single);
+        }
+        if (st == PS_OK)
+            snprintf(out->note, sizeof out->note, "repeated RHP root: confluent interpolation (derivative conditions)");
+        else {
+            out->ms_interpolation = ms_single;
+            out->mt_interpolation = mt_single;
+            snprintf(out->note, sizeof out->note,
+                     "repeated RHP roots, joint floor not computed (%.70s): single-point products shown", d.text);
+        }
+        out->cond = fmax(c1, c2);
     } else {
         /* Pick route: points p_i, values e^{p_i theta} / B_z(p_i). Without
          * delay this equals Chen's joint floor; with delay it is the floor on
@@ -114,8 +279,9 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
             single = fmax(single, cabs(v));
         }
         double g, cond = 1.0;
-        out->effort = (ok_points && ps_pick_gamma(ws, p, w, np, &g, &cond, &d) == PS_OK) ? fmax(g, single)
-                                                                                           : single;
+        ps_status st = ok_points ? ps_pick_gamma(ws, p, w, np, &g, &cond, &d)
+                                 : confluent(ws, AT_POLES_EFFORT, an, z, nz, p, np, &g, &cond, &d);
+        out->effort = st == PS_OK ? fmax(g, single) : single;
     }
 
     /* Requirement-dependent floors (README "Floors"). */
@@ -161,4 +327,10 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
     if (rolloff)
         out->crossover_max = fmin(out->crossover_max, req->wh);
     out->window_open = out->crossover_min < out->crossover_max;
+
+    /* Structure: parity interlacing, and which controllers the Bode area
+     * floor covers (loop relative degree >= 2; at exactly 1 the integral
+     * gains the term -pi kappa / 2, kappa = lim s L(s); S&P 2nd ed. ch. 5). */
+    out->parity_interlacing = parity_interlacing(an);
+    out->bode_controller_rd = an->rel_degree >= 2 ? 0 : 2 - an->rel_degree;
 }

@@ -9,6 +9,10 @@
 #include "limits/limits.h"
 #include "roots/roots.h"
 
+/* RHP roots closer than this (relative) are one point of higher
+ * multiplicity for the interpolation floors (confluent Pick). */
+#define PS_MERGE_RTOL 1e-6
+
 typedef struct ps_floors {
     double bode_area;        /* pi * sum Re p over RHP poles */
     double ms_interpolation; /* tight joint floor on ||S|| (Chen; with delay the Pick value) */
@@ -23,6 +27,11 @@ typedef struct ps_floors {
     double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
     bool window_open;
     double cond;             /* largest condition estimate of the interpolation matrices */
+    bool parity_interlacing; /* even number of real unstable poles between every pair of real zeros in
+                                [0, +inf] (inf a zero when strictly proper or delayed): a stable controller
+                                can stabilize; false: every stabilizing controller is itself unstable */
+    int bode_controller_rd;  /* smallest controller relative degree for which the loop has relative degree
+                                >= 2, so the Bode area floor holds with no correction term */
     char note[160];          /* a fallback taken, or why a value is missing */
 } ps_floors;
 

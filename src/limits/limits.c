@@ -24,9 +24,19 @@ struct ps_limits_ws {
     gsl_eigen_herm_workspace *herm[NP + 1];
 };
 
+/* Everything the per-plant path needs is allocated here, once: the
+ * eigen-solver workspaces for every matrix size included. */
 ps_limits_ws *ps_limits_ws_new(void)
 {
-    return calloc(1, sizeof(ps_limits_ws));
+    ps_limits_ws *ws = calloc(1, sizeof(ps_limits_ws));
+    if (!ws)
+        return NULL;
+    for (size_t i = 1; i <= NP; i++)
+        if (!(ws->herm[i] = gsl_eigen_herm_alloc(i))) {
+            ps_limits_ws_free(ws);
+            return NULL;
+        }
+    return ws;
 }
 
 void ps_limits_ws_free(ps_limits_ws *ws)
@@ -128,19 +138,10 @@ static ps_status chol(double *buf, size_t n, double *cond, ps_diag *d, const cha
     return PS_OK;
 }
 
-static gsl_eigen_herm_workspace *herm_ws(ps_limits_ws *ws, size_t n)
-{
-    if (!ws->herm[n])
-        ws->herm[n] = gsl_eigen_herm_alloc(n);
-    return ws->herm[n];
-}
-
 /* Largest eigenvalue of the Hermitian n x n matrix in buf (destroyed). */
 static ps_status lambda_max(ps_limits_ws *ws, double *buf, size_t n, double *out, ps_diag *d)
 {
-    gsl_eigen_herm_workspace *w = herm_ws(ws, n);
-    if (!w)
-        return ps_diag_set(d, PS_ERR_NOMEM, 0, 0, "", "out of memory for the eigen-solver");
+    gsl_eigen_herm_workspace *w = ws->herm[n];
     gsl_matrix_complex_view M = gsl_matrix_complex_view_array(buf, n, n);
     gsl_vector_view ev = gsl_vector_view_array(ws->ev, n);
     int rc = gsl_eigen_herm(&M.matrix, &ev.vector, w);
@@ -206,19 +207,48 @@ ps_status ps_chen_floor(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_
     return PS_OK;
 }
 
-ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
-                        double *cond, ps_diag *d)
+/* Taylor coefficient (a, b) of 1/(conj s + t) at (s_k, s_l):
+ * (-1)^{a+b} C(a+b, a) / (conj s_k + s_l)^{a+b+1}. */
+static double complex kernel_coef(double complex sk, double complex sl, unsigned a, unsigned b)
+{
+    double binom = 1;
+    for (unsigned i = 1; i <= b; i++)
+        binom = binom * (a + i) / i;
+    double complex base = conj(sk) + sl, pw = base;
+    for (unsigned i = 0; i < a + b; i++)
+        pw *= base;
+    return ((a + b) % 2 ? -binom : binom) / pw;
+}
+
+ps_status ps_pick_confluent(ps_limits_ws *ws, const ps_cplx *s, const unsigned *mult, size_t npts,
+                            const ps_cplx *taylor, double *out, double *cond, ps_diag *d)
 {
     *cond = 1.0;
+    size_t n = 0, start[NP];
+    for (size_t k = 0; k < npts; k++) {
+        start[k] = n;
+        n += mult[k];
+    }
     if (n == 0) {
         *out = 0.0;
         return PS_OK;
     }
-    for (size_t k = 0; k < n; k++)
-        for (size_t l = 0; l < n; l++) {
-            double complex a = 1.0 / (conj(cx(s[k])) + cx(s[l]));
-            set(ws->qa, n, k, l, a);
-            set(ws->qb, n, k, l, conj(cx(w[k])) * cx(w[l]) * a);
+    if (n > NP)
+        return ps_diag_set(d, PS_ERR_NUMERIC, 0, 0, "", "more interpolation conditions (%zu) than supported (%d)",
+                           n, NP);
+    for (size_t k = 0; k < npts; k++)
+        for (size_t l = 0; l < npts; l++) {
+            double complex sk = cx(s[k]), sl = cx(s[l]);
+            const ps_cplx *hk = taylor + start[k], *hl = taylor + start[l];
+            for (unsigned a = 0; a < mult[k]; a++)
+                for (unsigned b = 0; b < mult[l]; b++) {
+                    double complex bab = 0;
+                    for (unsigned al = 0; al <= a; al++)
+                        for (unsigned be = 0; be <= b; be++)
+                            bab += conj(cx(hk[al])) * cx(hl[be]) * kernel_coef(sk, sl, a - al, b - be);
+                    set(ws->qa, n, start[k] + a, start[l] + b, kernel_coef(sk, sl, a, b));
+                    set(ws->qb, n, start[k] + a, start[l] + b, bab);
+                }
         }
     ps_status st = chol(ws->qa, n, cond, d, "Pick (point)");
     if (st != PS_OK)
@@ -226,7 +256,6 @@ ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, si
     gsl_matrix_complex_view L = gsl_matrix_complex_view_array(ws->qa, n, n);
     gsl_matrix_complex_view B = gsl_matrix_complex_view_array(ws->qb, n, n);
     gsl_complex one = gsl_complex_rect(1, 0);
-    /* L^-1 B L^-H is Hermitian with the generalized eigenvalues of (B, A). */
     gsl_blas_ztrsm(CblasLeft, CblasLower, CblasNoTrans, CblasNonUnit, one, &L.matrix, &B.matrix);
     gsl_blas_ztrsm(CblasRight, CblasLower, CblasConjTrans, CblasNonUnit, one, &L.matrix, &B.matrix);
     double lmax;
@@ -234,6 +263,18 @@ ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, si
         return st;
     *out = sqrt(fmax(lmax, 0.0));
     return PS_OK;
+}
+
+ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
+                        double *cond, ps_diag *d)
+{
+    unsigned ones[NP];
+    if (n > NP)
+        return ps_diag_set(d, PS_ERR_NUMERIC, 0, 0, "", "more interpolation points (%zu) than supported (%d)", n,
+                           NP);
+    for (size_t k = 0; k < n; k++)
+        ones[k] = 1;
+    return ps_pick_confluent(ws, s, ones, n, w, out, cond, d);
 }
 
 double ps_gain_margin_from_ms(double ms) { return ms > 1 ? ms / (ms - 1) : INFINITY; }
@@ -262,7 +303,9 @@ double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t 
 double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
                           double eps_t, double wh)
 {
-    double best = 1.0;
+    /* Reported as computed, below 1 too (eps_t > 1 when delta > 0.5), like
+     * the band floor: a value below 1 is not binding. */
+    double best = np ? -INFINITY : 1.0;
     for (size_t i = 0; i < np; i++) {
         if (p[i].im < 0)
             continue;

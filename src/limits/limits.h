@@ -50,6 +50,16 @@ ps_status ps_chen_floor(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_
 ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, size_t n, double *out,
                         double *cond, ps_diag *d);
 
+/* Confluent Nevanlinna-Pick (Caratheodory-Fejer data): the smallest gamma
+ * such that a stable f with ||f|| <= gamma and f - h = O((s - s_k)^{m_k})
+ * exists, for distinct points s_k in the open RHP with multiplicities m_k.
+ * taylor holds h's Taylor coefficients h^{(a)}(s_k)/a!, a = 0..m_k-1, point
+ * after point (sum m_k <= PS_MAX_ORDER). The Pick matrices are the Taylor
+ * coefficients of the kernels 1/(conj s + t) and conj h(s) h(t)/(conj s + t);
+ * with every m_k = 1 this is ps_pick_gamma. Same status contract. */
+ps_status ps_pick_confluent(ps_limits_ws *ws, const ps_cplx *s, const unsigned *mult, size_t npts,
+                            const ps_cplx *taylor, double *out, double *cond, ps_diag *d);
+
 /* Poisson floors (Freudenberg & Looze, IEEE TAC 30(6), 1985).
  * S at the RHP zeros z (one per real zero or complex pair) with |S| <= eps on
  * [0, wb]: Theta = atan((wb - y)/x) + atan((wb + y)/x), and
@@ -57,7 +67,8 @@ ps_status ps_pick_gamma(ps_limits_ws *ws, const ps_cplx *s, const ps_cplx *w, si
  * the largest over the zeros (1 when there is no RHP zero).
  * T at the RHP poles p with delay theta and |T| <= eps_t beyond wh:
  *   sup_{w <= wh} |T| >= (1/eps_t)^{(pi-Theta)/Theta} * (|B_z(p)^-1| e^{x theta})^{pi/Theta},
- * Theta = Theta(p, wh); the largest over the poles (1 when there is none). */
+ * Theta = Theta(p, wh); the largest over the poles, as computed (below 1 when
+ * eps_t > 1: not binding); 1 when there is no RHP pole. */
 double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb);
 double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
                           double eps_t, double wh);

@@ -14,6 +14,10 @@ json_t *ps_json_num(double x);
 json_t *ps_json_str(const char *s);
 /* The `floors` object (schema $defs/floors) without the extras. */
 json_t *ps_json_floors(const ps_floors *fl);
+
+/* Which controllers the Bode area floor covers, in words, from the smallest
+ * controller relative degree that gives the loop relative degree >= 2. */
+const char *ps_bode_coverage_text(int controller_rd);
 /* Add disk_margin_max, margins_from_allowed and time_to_double to fj. */
 void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const double *rhp_real,
                           size_t n_real);

@@ -99,6 +99,15 @@ static void jfloor(json_t *obj, json_t *reasons, const char *key, double x, cons
     json_object_set_new(reasons, key, json_string(isinf(x) ? why_inf : "not computed"));
 }
 
+const char *ps_bode_coverage_text(int controller_rd)
+{
+    switch (controller_rd) {
+    case 0: return "every proper controller";
+    case 1: return "strictly proper controllers (a biproper one adds -pi kappa/2, kappa = lim s L(s))";
+    default: return "controllers of relative degree >= 2 (relative degree 1 adds -pi kappa/2)";
+    }
+}
+
 json_t *ps_json_floors(const ps_floors *fl)
 {
     json_t *f = json_object(), *why = json_object();
@@ -134,6 +143,11 @@ json_t *ps_json_floors(const ps_floors *fl)
                                   "with delay, the Ms floor equals the Mt floor (commutant-lifting equality, "
                                   "checked numerically, not proven here)",
                                   "crossover window from rules of thumb, not a law"));
+    json_object_set_new(f, "structure",
+                        json_pack("{s:b,s:b,s:i,s:s}", "parity_interlacing", fl->parity_interlacing,
+                                  "unstable_controller_required", !fl->parity_interlacing,
+                                  "bode_controller_relative_degree_min", fl->bode_controller_rd, "bode_coverage",
+                                  ps_bode_coverage_text(fl->bode_controller_rd)));
     if (fl->note[0])
         json_object_set_new(f, "note", json_string(fl->note));
     json_object_set_new(f, "reasons", why);
@@ -275,6 +289,11 @@ static void plant_text(FILE *f, const ps_outcome *o)
                    "crossover window %.4g..%.4g rad/s %s (rules of thumb)\n",
                 fl->ms, fl->mt, fl->bode_area, fl->effort, fl->crossover_min, fl->crossover_max,
                 fl->window_open ? "open" : "CLOSED");
+    if (!fl->infinite)
+        fprintf(f, "  structure  %s; Bode area floor covers %s\n",
+                fl->parity_interlacing ? "a stable controller can stabilize (parity interlacing holds)"
+                                       : "EVERY STABILIZING CONTROLLER IS UNSTABLE (parity interlacing fails)",
+                ps_bode_coverage_text(fl->bode_controller_rd));
     if (fl->note[0] && !fl->infinite)
         fprintf(f, "  note  %s\n", fl->note);
     for (size_t i = 0; i < p->n_warn; i++)

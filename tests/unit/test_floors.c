@@ -145,3 +145,132 @@ Test(floors, band_floor_from_requirements)
     cr_assert(isnan(fl.ms_poisson));
     cr_assert_float_eq(fl.crossover_max, 40.0, 0);
 }
+
+/* Repeated RHP roots: derivative (confluent) interpolation conditions. */
+
+/* Double RHP pole 2, one RHP zero 7, no delay. With one RHP zero the floor
+ * on ||S|| is the single interpolation condition S(z) = 1: |B_p(z)^-1| =
+ * ((7+2)/(7-2))^2 = 3.24, tight (S&P 2nd ed. ch. 5, one point). The floor on
+ * ||T|| comes from the other side: the confluent Pick problem at the double
+ * pole (T(p) = 1, T'(p) = 0). Chen's equality Ms_min = Mt_min (IEEE TAC
+ * 45(6), 2000) says both agree. */
+Test(floors, double_pole_confluent_equals_single_zero_bound)
+{
+    run((ps_cplx[]){{7, 0}}, 1, (ps_cplx[]){{2, 0}, {2, 0}, {-5, 0}}, 3, 1.0, 0.0);
+    cr_assert_float_eq(fl.ms_interpolation, 3.24, 1e-9);
+    cr_assert_float_eq(fl.mt_interpolation, 3.24, 1e-9, "confluent Pick at the double pole: %.15g",
+                       fl.mt_interpolation);
+    cr_assert(strstr(fl.note, "confluent"), "note: %s", fl.note);
+}
+
+/* Mirror case: double RHP zero 7, one RHP pole 2. Now ||T|| has the single
+ * condition (|B_z(p)^-1| = 3.24, tight) and ||S|| the confluent one at the
+ * double zero (S(z) = 1, S'(z) = 0). */
+Test(floors, double_zero_confluent_equals_single_pole_bound)
+{
+    run((ps_cplx[]){{7, 0}, {7, 0}}, 2, (ps_cplx[]){{2, 0}, {-5, 0}, {-6, 0}}, 3, 1.0, 0.0);
+    cr_assert_float_eq(fl.mt_interpolation, 3.24, 1e-9);
+    cr_assert_float_eq(fl.ms_interpolation, 3.24, 1e-9, "confluent Pick at the double zero: %.15g",
+                       fl.ms_interpolation);
+}
+
+/* Effort for G = 1/(s-1)^2: X = KS / B_p^2 must match h = (s+1)^2 and h'
+ * at s = 1. Worked by hand from the 2x2 confluent Pick pencil:
+ * lambda^2 - 96 lambda + 256 = 0, gamma = sqrt(48 + 32 sqrt 2) = 4 (1 + sqrt 2).
+ * The same value is 1/sigma_min of the Hankel operator of 1/(s+1)^2,
+ * whose Hankel singular values are (sqrt 2 +- 1)/4 (Glover's minimum-effort
+ * stabilization, IJC 1986; from memory). */
+Test(floors, double_pole_effort_closed_form)
+{
+    run(NULL, 0, (ps_cplx[]){{1, 0}, {1, 0}}, 2, 1.0, 0.0);
+    cr_assert_float_eq(fl.effort, 4 * (1 + sqrt(2.0)), 1e-9, "effort %.15g", fl.effort);
+}
+
+/* The confluent value is the limit of ordinary Pick problems whose points
+ * split the repeated root: p +- h, with the same analytic data. */
+static double split_pick(double p0, double h, const ps_cplx *z, size_t nz, double theta)
+{
+    ps_cplx s[2] = {{p0 - h, 0}, {p0 + h, 0}}, w[2];
+    for (int i = 0; i < 2; i++) {
+        double v = exp(s[i].re * theta);
+        for (size_t j = 0; j < nz; j++)
+            v *= (s[i].re + z[j].re) / (s[i].re - z[j].re);
+        w[i] = (ps_cplx){v, 0};
+    }
+    double g, cond;
+    ps_diag d = {0};
+    cr_assert_eq(ps_pick_gamma(lws, s, w, 2, &g, &cond, &d), PS_OK, "%s", d.text);
+    return g;
+}
+
+Test(floors, confluent_is_the_limit_of_split_points)
+{
+    ps_cplx z[] = {{5.5, 0}, {9, 0}};
+    double theta = 0.05;
+    run(z, 2, (ps_cplx[]){{1.5, 0}, {1.5, 0}, {-4, 0}, {-30, 0}}, 4, 2.0, theta);
+    double conf = fl.mt_interpolation;
+    double e3 = fabs(split_pick(1.5, 1e-2, z, 2, theta) - conf) / conf;
+    double e4 = fabs(split_pick(1.5, 1e-3, z, 2, theta) - conf) / conf;
+    cr_assert_lt(e4, e3, "no convergence: %g then %g", e3, e4);
+    cr_assert_lt(e4, 1e-4, "split 1e-3 differs by %g", e4);
+    /* not the single-point product, which is smaller here */
+    double single = exp(1.5 * theta) * (1.5 + 5.5) / (5.5 - 1.5) * (1.5 + 9) / (9 - 1.5);
+    cr_assert_gt(conf, single * (1 + 1e-6), "confluent %.12g, single %.12g", conf, single);
+}
+
+/* With one real repeated point the Pick value cannot tell the sign of the
+ * derivative data (s -> s0^2/s maps the RHP onto itself and fixes s0), so
+ * these cases also fix the derivative convention: a double pole with a
+ * simple pole, and a repeated complex pair, each against one real RHP zero
+ * whose single condition is tight (as above). */
+Test(floors, mixed_and_complex_repeated_poles_match_single_zero_bound)
+{
+    run((ps_cplx[]){{9, 0}}, 1, (ps_cplx[]){{2, 0}, {2, 0}, {5, 0}, {-3, 0}}, 4, 1.0, 0.0);
+    double want = (11.0 / 7.0) * (11.0 / 7.0) * (14.0 / 4.0);
+    cr_assert_float_eq(fl.ms_interpolation, want, 1e-9 * want);
+    cr_assert_float_eq(fl.mt_interpolation, want, 1e-9 * want, "mt %.15g want %.15g", fl.mt_interpolation, want);
+
+    ps_cplx pair[] = {{1, 2}, {1, -2}, {1, 2}, {1, -2}, {-4, 0}};
+    run((ps_cplx[]){{6, 0}}, 1, pair, 5, 1.0, 0.0);
+    double b = hypot(6 + 1, 2) / hypot(6 - 1, 2); /* |z + conj p| / |z - p| for each of the four poles */
+    want = b * b * b * b;
+    cr_assert_float_eq(fl.ms_interpolation, want, 1e-9 * want);
+    cr_assert_float_eq(fl.mt_interpolation, want, 1e-9 * want, "mt %.15g want %.15g", fl.mt_interpolation, want);
+}
+
+/* Parity interlacing (Youla, Bongiorno & Lu, Automatica 10, 1974). A
+ * strictly proper plant with one real RHP zero z and one real RHP pole p:
+ * the real zeros in [0, +inf] are z and +inf. With p < z the interval
+ * (z, inf) holds no pole and a stable controller can stabilize; with p > z
+ * it holds one, so every stabilizing controller is itself unstable (S&P 2nd
+ * ed. ch. 5, from memory). */
+Test(floors, parity_interlacing_flags_unstable_controller_need)
+{
+    run((ps_cplx[]){{8, 0}}, 1, (ps_cplx[]){{3, 0}, {-3, 0}, {-20, 0}}, 3, 1.0, 0.0);
+    cr_assert(fl.parity_interlacing, "z = 8 > p = 3: a stable controller can stabilize");
+    run((ps_cplx[]){{2, 0}}, 1, (ps_cplx[]){{3, 0}, {-3, 0}, {-20, 0}}, 3, 1.0, 0.0);
+    cr_assert_not(fl.parity_interlacing, "z = 2 < p = 3: one real pole between z and infinity");
+    /* two RHP poles beyond the zero: even, holds again */
+    run((ps_cplx[]){{2, 0}}, 1, (ps_cplx[]){{3, 0}, {4, 0}, {-20, 0}}, 3, 1.0, 0.0);
+    cr_assert(fl.parity_interlacing);
+    /* a complex pair between the zeros does not count */
+    run((ps_cplx[]){{2, 0}}, 1, (ps_cplx[]){{3, 1}, {3, -1}, {-20, 0}}, 3, 1.0, 0.0);
+    cr_assert(fl.parity_interlacing);
+    /* biproper plant: no zero at infinity, so z = 2 < p = 3 has no pair */
+    run((ps_cplx[]){{2, 0}, {-1, 0}}, 2, (ps_cplx[]){{3, 0}, {-20, 0}}, 2, 1.0, 0.0);
+    cr_assert(fl.parity_interlacing);
+    /* ... unless delayed: e^{-s theta} vanishes along the positive real axis */
+    run((ps_cplx[]){{2, 0}, {-1, 0}}, 2, (ps_cplx[]){{3, 0}, {-20, 0}}, 2, 1.0, 0.01);
+    cr_assert_not(fl.parity_interlacing);
+}
+
+/* Bode area floor coverage: the loop needs relative degree >= 2. */
+Test(floors, bode_coverage_by_relative_degree)
+{
+    run(NULL, 0, (ps_cplx[]){{3, 0}, {-20, 0}}, 2, 1.0, 0.0);
+    cr_assert_eq(fl.bode_controller_rd, 0);
+    run(NULL, 0, (ps_cplx[]){{3, 0}}, 1, 1.0, 0.0);
+    cr_assert_eq(fl.bode_controller_rd, 1);
+    run((ps_cplx[]){{-1, 0}}, 1, (ps_cplx[]){{3, 0}}, 1, 1.0, 0.0);
+    cr_assert_eq(fl.bode_controller_rd, 2);
+}
