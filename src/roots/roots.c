@@ -20,7 +20,8 @@
 enum { NMAX = PS_MAX_ORDER + 1 };
 
 struct ps_roots_ws {
-    /* GSL workspaces are sized exactly; each size is made once, on first use. */
+    /* GSL workspaces are sized exactly; every size is made once, in
+     * ps_roots_ws_new (about 1 MB in all), so analysis never allocates. */
     gsl_poly_complex_workspace *poly[NMAX + 1];
     gsl_eigen_nonsymm_workspace *eig[NMAX + 1];
     gsl_eigen_gen_workspace *gen[NMAX + 1];
@@ -28,7 +29,8 @@ struct ps_roots_ws {
     double z[2 * NMAX];
     double m1[NMAX * NMAX], m2[NMAX * NMAX];
     double alpha[2 * NMAX], beta[NMAX];
-    double emb[4 * NMAX * NMAX], v[4 * NMAX * NMAX], sv[2 * NMAX], svw[2 * NMAX];
+    double qz_q[NMAX * NMAX], qz_z[NMAX * NMAX]; /* Schur vectors: gsl_eigen_gen without them allocates */
+    double emb[4 * NMAX * NMAX], v[4 * NMAX * NMAX], sv[2 * NMAX];
 };
 
 const char *ps_region_name(ps_region r)
@@ -43,7 +45,17 @@ void ps_roots_init(void)
 
 ps_roots_ws *ps_roots_ws_new(void)
 {
-    return calloc(1, sizeof(ps_roots_ws));
+    ps_roots_ws *ws = calloc(1, sizeof(ps_roots_ws));
+    if (!ws)
+        return NULL;
+    for (size_t i = 1; i <= NMAX; i++) {
+        if ((i >= 2 && !(ws->poly[i] = gsl_poly_complex_workspace_alloc(i))) ||
+            !(ws->eig[i] = gsl_eigen_nonsymm_alloc(i)) || !(ws->gen[i] = gsl_eigen_gen_alloc(i))) {
+            ps_roots_ws_free(ws);
+            return NULL;
+        }
+    }
+    return ws;
 }
 
 void ps_roots_ws_free(ps_roots_ws *ws)
@@ -175,9 +187,7 @@ static void finish_roots(ps_root *r, size_t n, double merge_tol)
 
 static gsl_poly_complex_workspace *poly_ws(ps_roots_ws *ws, size_t n)
 {
-    if (!ws->poly[n])
-        ws->poly[n] = gsl_poly_complex_workspace_alloc(n);
-    return ws->poly[n];
+    return n <= NMAX ? ws->poly[n] : NULL;
 }
 
 int ps_roots_poly(ps_roots_ws *ws, const double *c, size_t n, ps_root *out, ps_diag *d)
@@ -282,10 +292,14 @@ static double pbh_ratio(ps_roots_ws *ws, const ps_plant *p, double complex lam, 
     gsl_matrix_view E = gsl_matrix_view_array(ws->emb, R, C);
     gsl_matrix_view V = gsl_matrix_view_array(ws->v, C, C);
     gsl_vector_view S = gsl_vector_view_array(ws->sv, C);
-    gsl_vector_view W = gsl_vector_view_array(ws->svw, C);
-    if (gsl_linalg_SV_decomp(&E.matrix, &V.matrix, &S.vector, &W.vector) != GSL_SUCCESS)
+    /* One-sided Jacobi: no internal allocation, and accurate small singular values. */
+    if (gsl_linalg_SV_decomp_jacobi(&E.matrix, &V.matrix, &S.vector) != GSL_SUCCESS)
         return NAN;
-    double smax = ws->sv[0], smin = ws->sv[C - 1];
+    double smax = 0, smin = INFINITY;
+    for (size_t k = 0; k < C; k++) {
+        smax = fmax(smax, ws->sv[k]);
+        smin = fmin(smin, ws->sv[k]);
+    }
     return smax > 0 ? smin / smax : 0.0;
 }
 
@@ -293,8 +307,6 @@ static ps_status ss_poles(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out, 
 {
     size_t n = p->a_rows;
     memcpy(ws->m1, p->a, n * n * sizeof(double));
-    if (!ws->eig[n])
-        ws->eig[n] = gsl_eigen_nonsymm_alloc(n);
     if (!ws->eig[n])
         return ps_diag_set(d, PS_ERR_NOMEM, p->line, 0, "a", "out of memory for the eigen-solver");
     /* Balancing is off by default in GSL; on, it matches LAPACK's dgeev. */
@@ -335,14 +347,13 @@ static ps_status ss_zeros(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out, 
         }
     double mnorm = frob(ws->m1, N * N);
     if (!ws->gen[N])
-        ws->gen[N] = gsl_eigen_gen_alloc(N);
-    if (!ws->gen[N])
         return ps_diag_set(d, PS_ERR_NOMEM, p->line, 0, "a", "out of memory for the pencil solver");
     gsl_matrix_view M = gsl_matrix_view_array(ws->m1, N, N);
     gsl_matrix_view Nn = gsl_matrix_view_array(ws->m2, N, N);
     gsl_vector_complex_view al = gsl_vector_complex_view_array(ws->alpha, N);
     gsl_vector_view be = gsl_vector_view_array(ws->beta, N);
-    int rc = gsl_eigen_gen(&M.matrix, &Nn.matrix, &al.vector, &be.vector, ws->gen[N]);
+    gsl_matrix_view Q = gsl_matrix_view_array(ws->qz_q, N, N), Z = gsl_matrix_view_array(ws->qz_z, N, N);
+    int rc = gsl_eigen_gen_QZ(&M.matrix, &Nn.matrix, &al.vector, &be.vector, &Q.matrix, &Z.matrix, ws->gen[N]);
     if (rc != GSL_SUCCESS)
         return ps_diag_set(d, PS_ERR_NUMERIC, p->field_line[PS_F_A], 0, "a",
                            "zeros (generalized eigenvalues) did not converge: %s", gsl_strerror(rc));
