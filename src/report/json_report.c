@@ -1,5 +1,6 @@
 /* json_report.c - the screening run as one JSON document (schema:
- * reports/schema/plantsieve-survey.schema.json, $defs/screening). */
+ * reports/schema/plantsieve-screening.schema.json; its floors object is the
+ * survey schema's $defs/floors). */
 #include "report/json_parts.h"
 #include "report/reports.h"
 

@@ -165,8 +165,10 @@ typedef struct component {
     double floor, allowed, share;
 } component;
 
-static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_requirements *q, char *buf,
-                        size_t n)
+/* The cause sentence names the floor with the largest share; worst is the
+ * summary's "Ms", "Mt", "effort" or "none". */
+static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_requirements *q, const char *worst,
+                        char *buf, size_t n)
 {
     if (an->hidden_unstable) {
         snprintf(buf, n, "hidden unstable mode: no controller can reach or see it");
@@ -194,10 +196,27 @@ static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_req
                  q->wb > 0 ? ", and the band requirement costs no peak" : " and no band requirement");
         return;
     }
+    /* The Mt share is the worst, but the overall Mt floor is above every
+     * Mt floor of its own (interpolation, Poisson): it is the Ms floor less
+     * one, from ||T|| >= ||S|| - 1 (S + T = 1; see ps_floors_compute). Then
+     * fl->limiting names the Ms floor that sets it; the sentence describes
+     * that floor and ends by saying how it forces the Mt floor. */
+    static const char *const ms_source[] = {"interpolation", "band", "poisson"};
+    static const char *const ms_words[] = {"interpolation", "band-forced", "Poisson"};
+    const char *mt_from = NULL;
+    if (strcmp(worst, "Mt") == 0 && fl->mt > fmax(fl->mt_interpolation, fl->mt_poisson))
+        for (size_t i = 0; i < sizeof ms_source / sizeof ms_source[0]; i++)
+            if (strcmp(fl->limiting, ms_source[i]) == 0) {
+                best = i; /* c[0..2] are the Ms floors in the same order */
+                mt_from = ms_words[i];
+            }
     char pw[48], dw[24], tail[64];
     pole_words(an, pw, sizeof pw);
     delay_words(an->delay, dw, sizeof dw);
-    snprintf(tail, sizeof tail, " (floor %.3g, allowed %.3g)", c[best].floor, c[best].allowed);
+    if (mt_from)
+        tail[0] = '\0'; /* appended below */
+    else
+        snprintf(tail, sizeof tail, " (floor %.3g, allowed %.3g)", c[best].floor, c[best].allowed);
     const char *k = c[best].key;
     double z = smallest_zero(an);
     if (strcmp(k, "ms_band") == 0) {
@@ -222,6 +241,12 @@ static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_req
         snprintf(buf, n, "RHP zero at %.3g rad/s close to the %s%s", z, pw, tail);
     } else {
         snprintf(buf, n, "delay %s with an %s%s", dw, pw, tail);
+    }
+    if (mt_from) {
+        size_t len = strlen(buf);
+        snprintf(buf + len, n - len,
+                 "; Mt floor %.3g (allowed %.3g) follows from the %s Ms floor %.3g (||T|| >= ||S|| - 1)", fl->mt,
+                 q->mt_allowed, mt_from, fl->ms);
     }
 }
 
@@ -481,7 +506,7 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
         if (s->share_effort > best)
             s->worst = "effort";
     }
-    cause_words(an, o->fl, q, s->cause, sizeof s->cause);
+    cause_words(an, o->fl, q, s->worst, s->cause, sizeof s->cause);
     copy_roots(an->poles, an->n_poles, s->poles, &s->n_poles);
     copy_roots(an->zeros, an->n_zeros, s->zeros, &s->n_zeros);
     for (size_t i = 0; i < an->n_poles && s->n_rhp_real < PS_MAP_MAX; i++)

@@ -136,5 +136,110 @@ for ext in txt csv json md html; do
     cmp -s "$tmp/demo/demo-variants.screen.$ext" "$src/reports/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
 done
 
+# The screening JSON validates against its schema. The floors object is the
+# survey schema's $defs/floors, referenced by file name: the resolver gets
+# that file from a local store and may not fetch anything.
+for doc in "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" \
+           "$tmp/scr/broken-entries.screen.json"; do
+    "$py" -c '
+import json, sys, jsonschema
+from jsonschema.validators import validator_for
+schema, survey = (json.load(open(f)) for f in sys.argv[1:3])
+cls = validator_for(schema)
+cls.check_schema(schema)
+resolver = jsonschema.RefResolver.from_schema(schema, store={survey["$id"]: survey})
+def no_fetch(uri):
+    sys.exit("schema reference not resolved locally: " + uri)
+resolver.resolve_remote = no_fetch
+cls(schema, resolver=resolver).validate(json.load(open(sys.argv[3])))
+' "$src/reports/schema/plantsieve-screening.schema.json" "$src/reports/schema/plantsieve-survey.schema.json" "$doc"
+    check "screening JSON validates against the schema: $doc" 0 $?
+done
+
+# The Markdown ranking parsed back: one row per plant, same ids in the same
+# order as the CSV report, every row as many cells as the header.
+for stem in "$tmp/scr/closed-form" "$tmp/demo/demo-variants"; do
+    "$py" - "$stem.screen.md" "$stem.screen.csv" <<'PY'
+import csv, sys
+lines = open(sys.argv[1], encoding="utf-8").read().split("\n")
+start = lines.index("## Ranking")
+table = []
+for line in lines[start + 1:]:
+    if line.startswith("## "):
+        break
+    if line.startswith("|"):
+        table.append(line)
+    elif table:
+        break
+def cells(row):  # split on unescaped '|'; a backslash escapes ASCII punctuation
+    assert row.startswith("|") and row.endswith("|") and not row.endswith("\\|"), row
+    out, cur, i = [], "", 1
+    while i < len(row) - 1:
+        c = row[i]
+        if c == "\\" and i + 1 < len(row) and not row[i + 1].isalnum():
+            cur += row[i + 1]; i += 2; continue
+        if c == "|":
+            out.append(cur.strip()); cur = ""
+        else:
+            cur += c
+        i += 1
+    out.append(cur.strip())
+    return out
+head, rule, rows = cells(table[0]), cells(table[1]), [cells(r) for r in table[2:]]
+assert head[:2] == ["Rank", "Plant"], head
+assert all(set(c) <= set("-:") and c for c in rule), rule
+widths = {len(head), len(rule)} | {len(r) for r in rows}
+assert widths == {len(head)}, widths
+ref = list(csv.DictReader(open(sys.argv[2], newline="", encoding="utf-8")))
+assert [r[1] for r in rows] == [r["id"] for r in ref], ([r[1] for r in rows], [r["id"] for r in ref])
+assert [r[0] for r in rows] == [r["rank"] for r in ref] == [str(i + 1) for i in range(len(ref))]
+assert [r[2] for r in rows] == [r["verdict"] for r in ref]
+PY
+    check "Markdown ranking matches the CSV: $stem" 0 $?
+done
+
+# Cause: an Mt floor that only follows from an Ms floor by ||T|| >= ||S|| - 1
+# names that Ms floor. one-pole-tight: band floor exp(pi p / w_h) (Stein 2003)
+# = exp(12 pi / 40) = 2.566, so Mt >= 1.566 > 1.25 allowed while its own Mt
+# floors are 1.
+contains "cause names the Ms floor behind the Mt floor" "$tmp/scr/closed-form.screen.csv" \
+    "; Mt floor 1.57 (allowed 1.25) follows from the band-forced Ms floor 2.57 (||T|| >= ||S|| - 1)"
+"$py" - "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" <<'PY'
+import json, math, sys
+P = {p["id"]: p for p in json.load(open(sys.argv[1]))["plants"]}
+fl = P["one-pole-tight"]["floors"]
+assert abs(fl["ms"] - math.exp(12 * math.pi / 40)) <= 1e-9 * fl["ms"], fl["ms"]
+assert fl["mt"] == fl["ms"] - 1 and fl["limiting"] == "band", fl
+assert P["one-pole-tight"]["worst"] == "Mt"
+# Everywhere: the sentence appears exactly when the worst share is an Mt floor set by an Ms floor.
+for f in sys.argv[1:]:
+    for p in json.load(open(f))["plants"]:
+        fl = p["floors"]
+        own_mt = fl and max(x for x in (fl["mt_interpolation"], fl["mt_poisson"], 0) if x is not None)
+        derived = bool(fl) and p["worst"] == "Mt" and fl["mt"] is not None and fl["mt"] > own_mt
+        assert derived == ("follows from the" in p["cause"]), (p["id"], p["cause"])
+        if not derived and fl and p["verdict"] != "not-stabilizable" and p["worst"] != "effort" and fl["ms"] > 1:
+            assert "(floor " in p["cause"], (p["id"], p["cause"])
+PY
+check "cause names the Ms floor exactly when Mt follows from it" 0 $?
+
+# Colour: only on a terminal and only without NO_COLOR (https://no-color.org).
+esc=$(printf '\033')
+"$ps" screen --no-files --gate never "$cf" 2>/dev/null | cat >"$tmp/piped"
+grep -qF "$esc" "$tmp/piped"; check "screen: piped output has no ESC byte" 1 $?
+# script(1) (util-linux, Debian package bsdutils, Essential) runs the command on a pseudo-terminal.
+if command -v script >/dev/null 2>&1 && script -qec true /dev/null </dev/null >/dev/null 2>&1; then
+    ttycmd="'$ps' screen -o '$tmp/tty' --gate never '$cf'"
+    script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1; check "screen under a pseudo-terminal" 0 $?
+    grep -qF "$esc[" "$tmp/tty.out"; check "screen: terminal output has ESC[ sequences" 0 $?
+    grep -qF "$esc" "$tmp/tty/closed-form.screen.txt"; check "screen: .txt report has no ESC even on a terminal" 1 $?
+    NO_COLOR=1 script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1; check "screen with NO_COLOR=1 under a pseudo-terminal" 0 $?
+    grep -qF "$esc" "$tmp/tty.out"; check "screen: NO_COLOR=1 on a terminal gives no ESC byte" 1 $?
+    NO_COLOR= script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1
+    grep -qF "$esc[" "$tmp/tty.out"; check "screen: empty NO_COLOR still colours a terminal" 0 $?
+else
+    echo "SKIP: colour on a terminal (script(1) missing or no pseudo-terminal available)"
+fi
+
 echo "$pass passed, $fail failed"
 [ "$fail" -eq 0 ]
