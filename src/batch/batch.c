@@ -3,6 +3,7 @@
 #include "batch/batch.h"
 
 #include <stdint.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -73,6 +74,7 @@ static void idset_free(idset *set)
 
 struct ps_batch {
     ps_outcome_fn fn;
+    ps_family_done_fn family_fn;
     void *ctx;
     ps_plant *scratch;
     ps_roots_ws *ws;
@@ -151,10 +153,55 @@ static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
     return 0;
 }
 
+/* A family: its grid plants go through on_entry like read entries; a family
+ * that cannot be read, or a grid point whose expressions fail, is an entry
+ * error naming the family's line and field. */
+static int on_family(void *ctx, const ps_ynode *node, const ps_plant *defaults)
+{
+    ps_batch *b = ctx;
+    ps_family *fam = malloc(sizeof *fam);
+    ps_diag d = {0};
+    if (!fam) {
+        b->counts.entries++;
+        ps_plant_reset(b->scratch);
+        ps_diag_set(&d, PS_ERR_NOMEM, node->line, node->col, "", "out of memory for a family");
+        deliver_error(b, b->scratch, &d);
+        return 0;
+    }
+    if (ps_family_parse(fam, node, defaults, &d) != PS_OK) {
+        b->counts.entries++;
+        ps_plant_reset(b->scratch);
+        snprintf(b->scratch->id, sizeof b->scratch->id, "%s", fam->id);
+        b->scratch->line = node->line;
+        deliver_error(b, b->scratch, &d);
+    } else {
+        size_t n = ps_family_grid_size(fam);
+        double values[PS_FAM_PARAMS];
+        for (size_t k = 0; k < n; k++) {
+            ps_family_grid_point(fam, k, values);
+            if (ps_family_eval(fam, values, false, b->scratch, &d) != PS_OK) {
+                b->counts.entries++;
+                deliver_error(b, b->scratch, &d);
+            } else
+                on_entry(b, b->scratch, NULL);
+        }
+        if (b->family_fn)
+            b->family_fn(b->ctx, fam, b->file);
+    }
+    ps_family_free(fam);
+    free(fam);
+    return 0;
+}
+
+void ps_batch_on_family(ps_batch *b, ps_family_done_fn fn)
+{
+    b->family_fn = fn;
+}
+
 ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag)
 {
     b->file = path;
-    ps_status st = ps_catalog_read(path, b->scratch, on_entry, b, fdiag);
+    ps_status st = ps_catalog_read_families(path, b->scratch, on_entry, on_family, b, fdiag);
     if (st != PS_OK)
         b->counts.files_failed++;
     return st;

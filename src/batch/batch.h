@@ -7,6 +7,7 @@
 #include <stddef.h>
 
 #include "core/diag.h"
+#include "family/family.h"
 #include "model/plant.h"
 #include "limits/floors.h"
 #include "roots/roots.h"
@@ -39,5 +40,11 @@ void ps_batch_free(ps_batch *b);
 ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag);
 
 const ps_batch_counts *ps_batch_counts_get(const ps_batch *b);
+
+/* After the grid plants of a family have been delivered (as ordinary
+ * outcomes, ids "<family>[name=value,...]"), fn gets the family itself, for
+ * the boundary and yield studies. file is the catalog. Optional. */
+typedef void (*ps_family_done_fn)(void *ctx, ps_family *fam, const char *file);
+void ps_batch_on_family(ps_batch *b, ps_family_done_fn fn);
 
 #endif

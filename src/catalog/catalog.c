@@ -23,8 +23,14 @@ static bool has_ending(const char *path, const char *ext)
 ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                           ps_diag *fdiag)
 {
+    return ps_catalog_read_families(path, scratch, fn, NULL, ctx, fdiag);
+}
+
+ps_status ps_catalog_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
+                                   void *ctx, ps_diag *fdiag)
+{
     if (has_ending(path, ".yaml") || has_ending(path, ".yml"))
-        return ps_yaml_read(path, scratch, fn, ctx, fdiag);
+        return ps_yaml_read_families(path, scratch, fn, ffn, ctx, fdiag);
     if (has_ending(path, ".csv"))
         return ps_csv_read(path, scratch, fn, ctx, fdiag);
     ps_diag_clear(fdiag);
@@ -58,4 +64,14 @@ ps_status ps_catalog_open(const char *path, FILE **out, ps_diag *fdiag)
     }
     *out = f;
     return PS_OK;
+}
+
+const ps_ynode *ps_ynode_get(const ps_ynode *map, const char *key)
+{
+    if (!map || map->kind != PS_YN_MAP)
+        return NULL;
+    for (size_t i = 0; i < map->n; i++)
+        if (strcmp(map->keys[i]->text, key) == 0)
+            return map->items[i];
+    return NULL;
 }

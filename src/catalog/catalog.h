@@ -4,6 +4,9 @@
 #ifndef PS_CATALOG_H
 #define PS_CATALOG_H
 
+#include <stdbool.h>
+#include <stddef.h>
+
 #include "core/diag.h"
 #include "model/plant.h"
 
@@ -13,6 +16,29 @@
  * empty). p and err are only valid during the call. Return 0 to go on,
  * non-zero to stop reading. */
 typedef int (*ps_entry_fn)(void *ctx, ps_plant *p, const ps_diag *err);
+
+/* A YAML node kept whole: families are small, so a family mapping is handed
+ * over as a tree (src/family interprets it). Map pairs are keys[i] ->
+ * items[i]. Freed by the reader after the call. */
+typedef enum ps_ynode_kind { PS_YN_SCALAR, PS_YN_SEQ, PS_YN_MAP } ps_ynode_kind;
+
+typedef struct ps_ynode {
+    ps_ynode_kind kind;
+    size_t line, col;             /* 1-based */
+    char *text;                   /* scalar text (NUL-terminated) */
+    bool plain;                   /* unquoted scalar */
+    size_t n;                     /* items of a sequence, pairs of a mapping */
+    struct ps_ynode **items;
+    struct ps_ynode **keys;       /* mapping keys (scalars) */
+} ps_ynode;
+
+/* Called once per item of a top-level 'families' sequence, in file order
+ * between the plants around it, with the catalog defaults read so far.
+ * Return 0 to go on, non-zero to stop. */
+typedef int (*ps_family_fn)(void *ctx, const ps_ynode *family, const ps_plant *defaults);
+
+/* Mapping lookup: the value under key, or NULL. */
+const ps_ynode *ps_ynode_get(const ps_ynode *map, const char *key);
 
 /* Upper bounds that keep hostile files cheap. */
 enum {
@@ -31,6 +57,11 @@ enum {
 ps_status ps_yaml_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                        ps_diag *fdiag);
 
+/* As ps_yaml_read, with families handed to ffn (NULL: each family is an
+ * entry error, "families are not read here"). */
+ps_status ps_yaml_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
+                                void *ctx, ps_diag *fdiag);
+
 /* Read an RFC 4180 CSV catalog: header row of field names, one plant per row.
  * Same contract as ps_yaml_read. */
 ps_status ps_csv_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
@@ -40,5 +71,9 @@ ps_status ps_csv_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void 
  * fdiag set for an unknown ending. */
 ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                           ps_diag *fdiag);
+
+/* ps_catalog_read with a family hook (YAML only; CSV has no families). */
+ps_status ps_catalog_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
+                                   void *ctx, ps_diag *fdiag);
 
 #endif

@@ -29,7 +29,8 @@ enum {
     YR_ANCHOR_BYTES = 4 << 20,       /* scalar text held by all anchors together */
     YR_READ_CHUNK = 64 * 1024,       /* bytes per fread */
     YR_KEY_MAX = 64,                 /* longer keys are unknown fields anyway */
-    YR_MSG = 160
+    YR_MSG = 160,
+    YR_FAMILY_NODES = 4096           /* nodes in one family mapping */
 };
 
 /* Bytes libyaml may consume without producing an event: one scalar of the
@@ -77,6 +78,7 @@ typedef struct yaml_rd {
     ps_plant *p;
     ps_plant *defaults;
     ps_entry_fn fn;
+    ps_family_fn ffn;
     void *ctx;
 
     yaml_parser_t parser;
@@ -1017,6 +1019,171 @@ static bool read_defaults(yaml_rd *r, const ev *v)
     return true;
 }
 
+/* ---- families: kept whole as node trees ---------------------------------- */
+
+static void ynode_free(ps_ynode *n)
+{
+    if (!n)
+        return;
+    for (size_t i = 0; i < n->n; i++) {
+        ynode_free(n->items[i]);
+        if (n->keys)
+            ynode_free(n->keys[i]);
+    }
+    free(n->items);
+    free(n->keys);
+    free(n->text);
+    free(n);
+}
+
+/* Build the node that starts with e. On a problem, *why gets the message
+ * and *at the place; returns NULL (the rest of the node is consumed). */
+static ps_ynode *ynode_build(yaml_rd *r, const ev *e, size_t *budget, char *why, size_t nwhy, size_t *wl,
+                             size_t *wc)
+{
+    if (e->type == EV_BAD) {
+        snprintf(why, nwhy, "%s", e->value);
+        *wl = e->line, *wc = e->col;
+        return NULL;
+    }
+    ps_ynode *n = calloc(1, sizeof *n);
+    if (!n || (*budget)-- == 0) {
+        snprintf(why, nwhy, n ? "family larger than %d nodes" : "out of memory", YR_FAMILY_NODES);
+        *wl = e->line, *wc = e->col;
+        free(n);
+        skip_node(r, e);
+        return NULL;
+    }
+    n->line = e->line;
+    n->col = e->col;
+    if (e->type == EV_SCALAR) {
+        n->kind = PS_YN_SCALAR;
+        n->plain = e->plain;
+        if (memchr(e->value, '\0', e->len) || !(n->text = malloc(e->len + 1))) {
+            snprintf(why, nwhy, "scalar contains a NUL character");
+            *wl = e->line, *wc = e->col;
+            free(n);
+            return NULL;
+        }
+        memcpy(n->text, e->value, e->len + 1);
+        return n;
+    }
+    n->kind = e->type == EV_SEQ_START ? PS_YN_SEQ : PS_YN_MAP;
+    size_t cap = 0;
+    bool failed = false;
+    for (;;) {
+        ev k, v;
+        if (!next_event(r, &k)) {
+            ynode_free(n);
+            return NULL;
+        }
+        if (k.type == EV_SEQ_END || k.type == EV_MAP_END)
+            break;
+        ps_ynode *key = NULL, *val;
+        if (n->kind == PS_YN_MAP) {
+            if (k.type != EV_SCALAR && !failed) {
+                snprintf(why, nwhy, "a key must be a plain name, found %s", kind_name(k.type));
+                *wl = k.line, *wc = k.col;
+                failed = true;
+            }
+            key = failed ? NULL : ynode_build(r, &k, budget, why, nwhy, wl, wc);
+            if (failed)
+                skip_node(r, &k);
+            if (!next_event(r, &v)) {
+                ynode_free(key);
+                ynode_free(n);
+                return NULL;
+            }
+        } else
+            v = k;
+        val = failed ? NULL : ynode_build(r, &v, budget, why, nwhy, wl, wc);
+        if (failed)
+            skip_node(r, &v);
+        if (!val || (n->kind == PS_YN_MAP && !key)) {
+            failed = true;
+            ynode_free(key);
+            ynode_free(val);
+            continue;
+        }
+        if (n->n == cap) {
+            cap = cap ? 2 * cap : 8;
+            ps_ynode **ni = realloc(n->items, cap * sizeof *ni);
+            if (ni)
+                n->items = ni;
+            ps_ynode **nk = n->kind == PS_YN_MAP ? realloc(n->keys, cap * sizeof *nk) : NULL;
+            if (nk)
+                n->keys = nk;
+            if (!ni || (n->kind == PS_YN_MAP && !nk)) {
+                snprintf(why, nwhy, "out of memory");
+                failed = true;
+                ynode_free(key);
+                ynode_free(val);
+                continue;
+            }
+        }
+        n->items[n->n] = val;
+        if (n->kind == PS_YN_MAP)
+            n->keys[n->n] = key;
+        n->n++;
+    }
+    if (failed) {
+        ynode_free(n);
+        return NULL;
+    }
+    return n;
+}
+
+/* One family item: a tree for ffn, or an entry error through fn. */
+static void read_family(yaml_rd *r, const ev *e)
+{
+    char why[YR_MSG] = "";
+    size_t wl = e->line, wc = e->col, budget = YR_FAMILY_NODES;
+    ps_ynode *tree = ynode_build(r, e, &budget, why, sizeof why, &wl, &wc);
+    if (r->status != PS_OK) {
+        ynode_free(tree);
+        return;
+    }
+    int rc = 0;
+    if (tree && tree->kind == PS_YN_MAP && r->ffn) {
+        rc = r->ffn(r->ctx, tree, r->defaults);
+    } else {
+        ps_plant *p = r->p;
+        entry_begin(r, p, e->line);
+        const ps_ynode *id = ps_ynode_get(tree, "id");
+        if (id && id->kind == PS_YN_SCALAR)
+            snprintf(p->id, sizeof p->id, "%s", id->text);
+        if (!tree)
+            entry_fail(r, wl, wc, "", "family: %s", why);
+        else if (tree->kind != PS_YN_MAP)
+            entry_fail(r, e->line, e->col, "", "a family must be a mapping (id: ..., parameters: ...)");
+        else
+            entry_fail(r, e->line, e->col, "", "families are not read by this reader");
+        rc = r->fn(r->ctx, p, &r->entry_diag);
+    }
+    ynode_free(tree);
+    if (rc != 0)
+        r->stop = true;
+}
+
+static bool read_families(yaml_rd *r, const ev *v)
+{
+    if (v->type != EV_SEQ_START) {
+        fatal(r, PS_ERR_SYNTAX, v->line, v->col, "families",
+              "families must be a sequence of family mappings, found %s", kind_name(v->type));
+        return false;
+    }
+    for (;;) {
+        ev e;
+        if (!next_event(r, &e))
+            return false;
+        if (e.type == EV_SEQ_END)
+            return true;
+        read_family(r, &e);
+        if (r->status != PS_OK || r->stop)
+            return false;
+    }
+}
+
 /* The whole stream: one document holding the top-level mapping. */
 static void read_stream(yaml_rd *r)
 {
@@ -1038,7 +1205,7 @@ static void read_stream(yaml_rd *r)
         return;
     }
     size_t map_line = e.line;
-    bool have_catalog = false, have_defaults = false, have_plants = false;
+    bool have_catalog = false, have_defaults = false, have_plants = false, have_families = false;
     for (;;) {
         ev k, v;
         if (!next_event(r, &k))
@@ -1047,7 +1214,7 @@ static void read_stream(yaml_rd *r)
             break;
         if (k.type != EV_SCALAR) {
             fatal(r, PS_ERR_SYNTAX, k.line, k.col, NULL,
-                  "top-level keys must be catalog, defaults or plants, found %s",
+                  "top-level keys must be catalog, defaults, plants or families, found %s",
                   kind_name(k.type));
             return;
         }
@@ -1056,10 +1223,11 @@ static void read_stream(yaml_rd *r)
         bool *seen = strcmp(key, "catalog") == 0    ? &have_catalog
                      : strcmp(key, "defaults") == 0 ? &have_defaults
                      : strcmp(key, "plants") == 0   ? &have_plants
+                     : strcmp(key, "families") == 0 ? &have_families
                                                     : NULL;
         if (!seen || k.len >= sizeof key) {
             fatal(r, PS_ERR_SYNTAX, k.line, k.col, key,
-                  "unknown top-level key '%s' (expected catalog, defaults, plants)", key);
+                  "unknown top-level key '%s' (expected catalog, defaults, plants, families)", key);
             return;
         }
         if (*seen) {
@@ -1075,8 +1243,11 @@ static void read_stream(yaml_rd *r)
                       kind_name(v.type));
                 return;
             }
+        } else if (seen == &have_families) {
+            if (!read_families(r, &v))
+                return;
         } else if (seen == &have_defaults) {
-            if (have_plants) {
+            if (have_plants || have_families) {
                 fatal(r, PS_ERR_SYNTAX, k.line, k.col, key,
                       "defaults must come before plants (the reader streams the entries)");
                 return;
@@ -1087,7 +1258,7 @@ static void read_stream(yaml_rd *r)
             return;
         }
     }
-    if (!have_plants) {
+    if (!have_plants && !have_families) {
         fatal(r, PS_ERR_SYNTAX, map_line, 1, "plants", "the catalog has no 'plants' list");
         return;
     }
@@ -1101,6 +1272,12 @@ static void read_stream(yaml_rd *r)
 
 ps_status ps_yaml_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                        ps_diag *fdiag)
+{
+    return ps_yaml_read_families(path, scratch, fn, NULL, ctx, fdiag);
+}
+
+ps_status ps_yaml_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
+                                void *ctx, ps_diag *fdiag)
 {
     FILE *f;
     ps_status open_st = ps_catalog_open(path, &f, fdiag);
@@ -1122,6 +1299,7 @@ ps_status ps_yaml_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void
     r->p = scratch;
     r->defaults = defaults;
     r->fn = fn;
+    r->ffn = ffn;
     r->ctx = ctx;
     r->buf = buf;
     r->fdiag = fdiag;
