@@ -355,7 +355,7 @@ Test(yaml_reader, unknown_top_level_key)
                              "    poles: [-1]\n"
                              "plannts: []\n");
     expect_file_error(st, PS_ERR_SYNTAX, 5, 1,
-                      "unknown top-level key 'plannts' (expected catalog, defaults, plants)");
+                      "unknown top-level key 'plannts' (expected catalog, defaults, plants, families)");
     cr_expect_str_eq(fd.field, "plannts");
     cr_expect_eq(col.calls, 1, "the entry before the bad key is delivered");
 }
