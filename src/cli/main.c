@@ -14,6 +14,7 @@
 #include "report/listing.h"
 #include "report/reports.h"
 #include "screen/screen.h"
+#include "screen/study.h"
 #include "roots/roots.h"
 
 /* Exit codes (README, "Exit codes"). */
@@ -140,6 +141,7 @@ typedef enum gate { GATE_REDESIGN, GATE_MARGINAL, GATE_NEVER } gate;
 typedef struct screen_ctx {
     ps_run run;
     ps_screen_ws *ws;
+    ps_study_ws *study;
     bool nomem;
     const char *only_id; /* explain: keep this plant only */
     void (*also)(const ps_outcome *o, const ps_summary *s); /* explain: print while the model is here */
@@ -166,6 +168,26 @@ static void screen_entry(void *ctx, const ps_outcome *o)
         c->also(o, s);
 }
 
+/* A family's boundaries and yield, after its grid plants (screen only). */
+static void screen_family(void *ctx, ps_family *fam, const char *file)
+{
+    (void)file;
+    screen_ctx *c = ctx;
+    if (c->only_id)
+        return;
+    if (!c->study && !(c->study = ps_study_ws_new())) {
+        c->nomem = true;
+        return;
+    }
+    ps_family_result *fr = ps_run_next_family(&c->run);
+    if (!fr) {
+        c->nomem = true;
+        return;
+    }
+    ps_study_family(c->study, fam, &c->run.opt, fr);
+    fr->file_index = c->run.n_catalogs ? c->run.n_catalogs - 1 : 0;
+}
+
 /* Read every catalog into c->run; true when every catalog was read to the end. */
 static bool screen_catalogs(screen_ctx *c, char **files, int n)
 {
@@ -175,6 +197,7 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
         c->nomem = true;
         return false;
     }
+    ps_batch_on_family(b, screen_family);
     for (int i = 0; i < n; i++) {
         if (ps_run_add_catalog(&c->run, files[i], NULL) != PS_OK) {
             c->nomem = true;
@@ -190,6 +213,8 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
     }
     c->run.counts = *ps_batch_counts_get(b);
     ps_batch_free(b);
+    ps_study_ws_free(c->study);
+    c->study = NULL;
     return ok;
 }
 

@@ -5,6 +5,8 @@
 
 #include <jansson.h>
 
+#include "screen/screen.h"
+
 #include "limits/floors.h"
 #include "model/plant.h"
 
@@ -14,6 +16,9 @@ json_t *ps_json_num(double x);
 json_t *ps_json_str(const char *s);
 /* The `floors` object (schema $defs/floors) without the extras. */
 json_t *ps_json_floors(const ps_floors *fl);
+
+/* The family studies of a run as a JSON array (src/report/family_report.c). */
+json_t *ps_json_families(const ps_run *r);
 
 /* Which controllers the Bode area floor covers, in words, from the smallest
  * controller relative degree that gives the loop relative degree >= 2. */

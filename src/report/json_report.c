@@ -120,6 +120,7 @@ ps_status ps_write_json(FILE *f, const ps_run *r)
                             "caution", ps_caution_text, "plants", plants);
     if (!doc)
         return PS_ERR_NOMEM;
+    json_object_set_new(doc, "families", ps_json_families(r));
     int rc = json_dumpf(doc, f, JSON_INDENT(2) | JSON_REAL_PRECISION(15));
     json_decref(doc);
     if (rc != 0 || fputc('\n', f) == EOF)

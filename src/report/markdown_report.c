@@ -210,6 +210,7 @@ ps_status ps_write_markdown(FILE *f, const ps_run *r)
     header(f, r);
     ranked_table(f, r);
     redesign_list(f, r);
+    ps_md_families(f, r, md_cell);
     requirements(f, r);
     meanings(f);
     fprintf(f, "## Caution\n\n");

@@ -42,6 +42,14 @@ ps_status ps_write_html(FILE *f, const ps_run *r);
 
 typedef ps_status (*ps_writer_fn)(FILE *f, const ps_run *r);
 
+/* Family studies (src/report/family_report.c): a section of the text report,
+ * of the Markdown report (cell escapes a table cell), one boundary in words. */
+struct ps_family_result;
+struct ps_boundary;
+void ps_text_families(FILE *f, const ps_run *r);
+void ps_md_families(FILE *f, const ps_run *r, void (*cell)(FILE *, const char *));
+void ps_boundary_text(const struct ps_family_result *fr, const struct ps_boundary *b, char *out, size_t n);
+
 /* Write dir/name through a temporary file in dir and rename(2): readers see
  * the old file or the complete new one, never half a report. The temporary
  * is removed on failure. d gets the reason. */

@@ -137,6 +137,8 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
         }
     }
 
+    ps_text_families(f, r);
+
     fputs("\nCounts:", f);
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
         fprintf(f, "%s %s %zu", v ? "," : "", ps_verdict_name((ps_verdict)v), r->per_verdict[v]);

@@ -115,6 +115,11 @@ bool ps_screen_passes(ps_screen_ws *ws, const ps_analysis *an, const ps_requirem
     return !ws->fl.infinite && !an->hidden_unstable && s <= 1.0;
 }
 
+const ps_floors *ps_screen_last_floors(const ps_screen_ws *ws)
+{
+    return &ws->fl;
+}
+
 /* ---- the plant in numbers a cause sentence needs ---- */
 
 static double dominant_pole(const ps_analysis *an)
@@ -557,6 +562,7 @@ void ps_run_free(ps_run *r)
     }
     free(r->catalogs);
     free(r->rows);
+    free(r->families);
     memset(r, 0, sizeof *r);
 }
 

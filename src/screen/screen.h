@@ -118,6 +118,9 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
  * (severity <= 1 and not infinite). Exposed for the targets' tests. */
 bool ps_screen_passes(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *req, double *severity);
 
+/* The floors of the last ps_screen_passes call. */
+const ps_floors *ps_screen_last_floors(const ps_screen_ws *ws);
+
 /* ---- the run: every summary, ranked ---- */
 
 typedef struct ps_catalog_entry {
@@ -133,6 +136,8 @@ typedef struct ps_run {
     size_t n_catalogs, cap_catalogs;
     ps_summary *rows;           /* after ps_run_rank: worst first */
     size_t n_rows, cap_rows;
+    struct ps_family_result *families; /* boundary and yield studies, catalog order */
+    size_t n_families, cap_families;
     size_t per_verdict[PS_VERDICT_COUNT];
     ps_batch_counts counts;
 } ps_run;

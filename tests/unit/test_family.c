@@ -1,0 +1,198 @@
+/* test_family.c - plant families: expressions against hand values, errors
+ * with positions, a feasibility boundary known in closed form, a
+ * non-monotone sweep, and a tolerance yield against the normal CDF. */
+#include <criterion/criterion.h>
+#include <gsl/gsl_cdf.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "catalog/catalog.h"
+#include "screen/study.h"
+#include "support.h"
+
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
+static ps_family fam;
+static ps_family_result res;
+static ps_diag fam_diag;
+static ps_status fam_status;
+static bool study;
+static ps_plant scratch, evaluated;
+
+static int no_plant(void *ctx, ps_plant *p, const ps_diag *err)
+{
+    (void)ctx, (void)p, (void)err;
+    return 0;
+}
+
+static int one_family(void *ctx, const ps_ynode *node, const ps_plant *defaults)
+{
+    (void)ctx;
+    fam_status = ps_family_parse(&fam, node, defaults, &fam_diag);
+    if (fam_status == PS_OK && study) {
+        ps_study_ws *ws = ps_study_ws_new();
+        cr_assert_not_null(ws);
+        ps_screen_opts opt = {PS_MARGINAL_AT};
+        ps_study_family(ws, &fam, &opt, &res);
+        ps_study_ws_free(ws);
+    }
+    return 0;
+}
+
+/* Read the first family of text (the family stays in fam until the next call). */
+static void read_family(const char *text, bool with_study)
+{
+    ps_family_free(&fam);
+    memset(&fam_diag, 0, sizeof fam_diag);
+    study = with_study;
+    ps_diag fd = {0};
+    const char *path = ps_test_write_temp(".yaml", text);
+    cr_assert_eq(ps_catalog_read_families(path, &scratch, no_plant, one_family, NULL, &fd), PS_OK, "%s", fd.text);
+}
+
+TestSuite(family, .init = ps_test_init);
+
+/* Cart and rod, linearised: -(M+m) g as a denominator coefficient; hand values. */
+Test(family, expressions_against_hand_values)
+{
+    read_family("families:\n"
+                "  - id: cart\n"
+                "    parameters: {M: 1.2, m: 0.1, g: 9.81, l: {nominal: 0.5, sweep: [0.25, 0.5]}}\n"
+                "    numerator: [\"-1/(M*l)\"]\n"
+                "    denominator: [1, 0, \"-(M+m)*g/(M*l)\"]\n"
+                "    delay: \"0.002 + 0*l\"\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_eq(ps_family_grid_size(&fam), 2);
+    double v[PS_FAM_PARAMS];
+    ps_family_grid_point(&fam, 1, v);
+    ps_diag d = {0};
+    cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_OK, "%s", d.text);
+    cr_assert_str_eq(evaluated.id, "cart[l=0.5]");
+    cr_assert_float_eq(evaluated.num[0], -1 / (1.2 * 0.5), 1e-15);
+    cr_assert_float_eq(evaluated.den[2], -(1.2 + 0.1) * 9.81 / (1.2 * 0.5), 1e-13);
+    cr_assert_float_eq(evaluated.delay, 0.002, 1e-18);
+    /* re-evaluation with new values reuses the compiled expressions */
+    ps_family_grid_point(&fam, 0, v);
+    cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(evaluated.den[2], -(1.3) * 9.81 / (1.2 * 0.25), 1e-13);
+    cr_assert_eq(ps_plant_check(&evaluated, &d), PS_OK, "%s", d.text);
+}
+
+Test(family, unknown_name_and_syntax_errors_have_positions)
+{
+    read_family("families:\n  - id: f\n    parameters: {a: 1}\n    numerator: [1]\n    denominator: [1, \"a*bb\"]\n",
+                false);
+    cr_assert_eq(fam_status, PS_ERR_INPUT);
+    cr_assert_eq(fam_diag.line, 5);
+    cr_assert_str_eq(fam_diag.field, "denominator");
+    cr_assert(strstr(fam_diag.text, "'a*bb'") && strstr(fam_diag.text, "\"bb\"") &&
+                  strstr(fam_diag.text, "character 3"),
+              "%s", fam_diag.text);
+    read_family("families:\n  - id: f\n    parameters: {a: 1}\n    numerator: [1]\n    denominator: [1, \"(a+\"]\n",
+                false);
+    cr_assert_eq(fam_status, PS_ERR_INPUT);
+    cr_assert(strstr(fam_diag.text, "character"), "%s", fam_diag.text);
+}
+
+Test(family, division_by_zero_names_the_values)
+{
+    read_family("families:\n  - id: f\n    parameters: {a: {nominal: 1, sweep: [0, 1]}}\n"
+                "    numerator: [\"1/a\"]\n    denominator: [1, 2]\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    double v[PS_FAM_PARAMS];
+    ps_family_grid_point(&fam, 0, v);
+    ps_diag d = {0};
+    cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_ERR_INPUT);
+    cr_assert(strstr(d.text, "'1/a'") && strstr(d.text, "a=0") && strstr(d.text, "infinite"), "%s", d.text);
+    cr_assert_eq(d.line, 4);
+}
+
+/* Point-mass pendulum, p = sqrt(g/l), against an available bandwidth W_a
+ * with delta = 0 (Stein 2003): Ms floor exp(pi p / W_a). It passes while
+ * exp(pi p / W_a) <= Ms_allowed, i.e. l >= g pi^2 / (W_a ln Ms_allowed)^2. */
+static void read_pendulum(const char *nominal, const char *sigma, const char *samples, const char *seed)
+{
+    char text[1024];
+    snprintf(text, sizeof text,
+             "defaults:\n  rolloff_start: 40\n  rolloff_gain: 0\n"
+             "families:\n"
+             "  - id: pend\n"
+             "    parameters:\n"
+             "      g: 9.81\n"
+             "      l: {nominal: %s, sweep: {from: 0.05, to: 1.0, count: 9, scale: log}, tolerance: {normal: %s}}\n"
+             "    poles: [\"sqrt(g/l)\", \"-sqrt(g/l)\", -60]\n"
+             "    gain: \"60*g/l\"\n"
+             "    yield: {samples: %s, seed: %s}\n",
+             nominal, sigma, samples, seed);
+    read_family(text, true);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+}
+
+Test(family, pendulum_boundary_in_closed_form)
+{
+    read_pendulum("0.5", "0.01", "10", "1");
+    double want = 9.81 * M_PI * M_PI / pow(40 * log(2.0), 2);
+    cr_assert_eq(res.n_bound, 1);
+    const ps_boundary *b = &res.bound[0];
+    cr_assert_eq(b->state, PS_BOUND_FOUND, "%s", ps_bound_state_name(b->state));
+    cr_assert_not(b->pass_below);
+    cr_assert_float_eq(b->value, want, 1e-6 * want, "boundary %.12g, closed form %.12g", b->value, want);
+    cr_assert_leq(b->ms_pass, 2.0);
+    cr_assert_gt(b->ms_fail, 2.0);
+}
+
+/* A pole that rises and falls along the sweep: the verdict flips twice. */
+Test(family, non_monotone_sweep_is_reported)
+{
+    read_family("defaults:\n  rolloff_start: 40\n  rolloff_gain: 0\n"
+                "families:\n  - id: hump\n"
+                "    parameters: {x: {nominal: 0.5, sweep: {from: 0, to: 1, count: 11}}}\n"
+                "    poles: [\"20*(1 - 3.6*(x-0.5)^2)\", -5]\n    gain: 1\n",
+                true);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_eq(res.bound[0].state, PS_BOUND_NON_MONOTONE, "%s", ps_bound_state_name(res.bound[0].state));
+    cr_assert_eq(res.bound[0].n_changes, 2);
+}
+
+/* l ~ N(0.14, 0.01): the failing share is Phi((l* - 0.14)/0.01) (GSL's
+ * normal CDF); the Wilson interval of 4000 seeded samples must hold it. */
+Test(family, yield_matches_the_normal_cdf)
+{
+    read_pendulum("0.14", "0.01", "4000", "20261202");
+    double lstar = 9.81 * M_PI * M_PI / pow(40 * log(2.0), 2);
+    double want_pass = 1 - gsl_cdf_ugaussian_P((lstar - 0.14) / 0.01);
+    const ps_yield *y = &res.yield;
+    cr_assert(res.has_yield);
+    cr_assert_eq(y->samples, 4000);
+    cr_assert_leq(y->pass_lo, want_pass, "pass %.4f [%.4f, %.4f], expected %.4f", y->pass_frac, y->pass_lo,
+                  y->pass_hi, want_pass);
+    cr_assert_geq(y->pass_hi, want_pass, "pass %.4f [%.4f, %.4f], expected %.4f", y->pass_frac, y->pass_lo,
+                  y->pass_hi, want_pass);
+    cr_assert_eq(y->culprit, 1, "the only toleranced parameter, l");
+    cr_assert_lt(y->culprit_shift, 0, "failing units have shorter rods");
+    /* the same seed gives the same units; another seed other units */
+    size_t first = y->count[PS_VERDICT_CLEAR] + y->count[PS_VERDICT_MARGINAL];
+    read_pendulum("0.14", "0.01", "4000", "20261202");
+    cr_assert_eq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
+    read_pendulum("0.14", "0.01", "4000", "7");
+    cr_assert_neq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
+}
+
+/* Wilson score interval against scipy-free hand values: k = 0 starts at 0,
+ * k = n ends at 1, and the centre is (k + z^2/2)/(n + z^2). */
+Test(family, wilson_interval_edges_and_centre)
+{
+    double lo, hi, z = 1.959963984540054;
+    ps_wilson(0, 50, z, &lo, &hi);
+    cr_assert_eq(lo, 0.0);
+    cr_assert_float_eq(hi, z * z / (50 + z * z), 1e-12);
+    ps_wilson(50, 50, z, &lo, &hi);
+    cr_assert_eq(hi, 1.0);
+    ps_wilson(30, 100, z, &lo, &hi);
+    cr_assert_float_eq(0.5 * (lo + hi), (30 + z * z / 2) / (100 + z * z), 1e-12);
+}
