@@ -7,13 +7,16 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <time.h>
 #include <unistd.h>
 
 #include "batch/batch.h"
+#include "catalog/catalog.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
 #include "report/reports.h"
 #include "screen/screen.h"
+#include "screen/pool.h"
 #include "screen/study.h"
 #include "roots/roots.h"
 
@@ -38,6 +41,8 @@ static const char usage_text[] =
     "                      inputs, source and assumption\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
     "                      gain, relative degree, delay, warnings and floors\n"
+    "  read CATALOG...     read every entry and discard it; print the count (the\n"
+    "                      reading cost alone, for benchmarks)\n"
     "\n"
     "screen options:\n"
     "  -o DIR              write the reports into DIR (default: reports)\n"
@@ -46,6 +51,9 @@ static const char usage_text[] =
     "  --marginal-at X     share of the allowed log-peak that makes a plant marginal\n"
     "                      (default 0.8)\n"
     "  --no-files          print the table only, write no report files\n"
+    "  --threads N         assess plants on N threads (default: the online CPUs);\n"
+    "                      the reports are the same for any N\n"
+    "  --quiet             no progress line on stderr (shown only on a terminal)\n"
     "survey options:\n"
     "  --json              write one JSON document to stdout instead of text\n"
     "  -h, --help          show this help and exit\n"
@@ -138,10 +146,43 @@ static int cmd_survey(int argc, char **argv)
 
 typedef enum gate { GATE_REDESIGN, GATE_MARGINAL, GATE_NEVER } gate;
 
+/* Progress on stderr for long runs on a terminal: plants done, rate and the
+ * time left, from a count of the entries made by reading the catalogs first
+ * (reading costs a few per cent of screening). */
+typedef struct progress {
+    size_t total, done;
+    double start, last;
+} progress;
+
+static double now_s(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+static void progress_tick(progress *pg, bool final)
+{
+    if (!final)
+        pg->done++;
+    double t = now_s();
+    if (!final && t - pg->last < 0.5)
+        return;
+    pg->last = t;
+    double rate = (double)pg->done / fmax(t - pg->start, 1e-9);
+    double left = pg->total > pg->done ? (double)(pg->total - pg->done) / fmax(rate, 1e-9) : 0.0;
+    fprintf(stderr, "\r  screened %zu of %zu plants, %.0f plants/s, about %.1f s left   ", pg->done, pg->total, rate,
+            left);
+    if (final)
+        fputc('\n', stderr);
+}
+
 typedef struct screen_ctx {
     ps_run run;
     ps_screen_ws *ws;
     ps_study_ws *study;
+    ps_pool *pool;       /* screen: assessments on worker threads */
+    progress *prog;      /* screen on a terminal: plants done, rate, time left */
     bool nomem;
     const char *only_id; /* explain: keep this plant only */
     void (*also)(const ps_outcome *o, const ps_summary *s); /* explain: print while the model is here */
@@ -154,6 +195,13 @@ static void screen_entry(void *ctx, const ps_outcome *o)
     if (o->err)
         fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", o->file, o->err->line, o->err->col,
                 o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "", o->err->text);
+    if (c->prog)
+        progress_tick(c->prog, false);
+    if (c->pool) {
+        if (ps_pool_add(c->pool, o) != PS_OK)
+            c->nomem = true;
+        return;
+    }
     if (c->only_id && strcmp(o->p->id, c->only_id) != 0)
         return;
     ps_summary *s = ps_run_next(&c->run);
@@ -204,7 +252,10 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
             break;
         }
         ps_diag fd = {0};
-        if (ps_batch_run(b, files[i], &fd) != PS_OK) {
+        ps_status st = ps_batch_run(b, files[i], &fd);
+        if (c->pool && ps_pool_flush(c->pool) != PS_OK)
+            c->nomem = true;
+        if (st != PS_OK) {
             ok = false;
             fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", files[i], fd.line, fd.col, fd.text);
             if (ps_run_catalog_failed(&c->run, &fd) != PS_OK)
@@ -240,12 +291,16 @@ static bool want_colour(void)
     return isatty(STDOUT_FILENO) && !(nc && nc[0]);
 }
 
+static size_t count_entries(char **files, int n);
+
 static int cmd_screen(int argc, char **argv)
 {
     const char *outdir = "reports";
     gate g = GATE_REDESIGN;
     ps_screen_opts opt = {PS_MARGINAL_AT};
-    bool files = true, dashdash = false;
+    bool files = true, dashdash = false, quiet = false;
+    long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
+    size_t threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1;
     char **cats = calloc((size_t)argc + 1, sizeof *cats);
     int n = 0;
     if (!cats)
@@ -260,7 +315,18 @@ static int cmd_screen(int argc, char **argv)
             dashdash = true;
         else if (strcmp(a, "--no-files") == 0)
             files = false;
-        else if (strcmp(a, "-o") == 0 || strcmp(a, "--gate") == 0 || strcmp(a, "--marginal-at") == 0) {
+        else if (strcmp(a, "--quiet") == 0)
+            quiet = true;
+        else if (strcmp(a, "--threads") == 0) {
+            char *end;
+            long t = i + 1 < argc ? strtol(argv[i + 1], &end, 10) : 0;
+            if (i + 1 >= argc || *end || t < 1 || t > PS_POOL_MAX_THREADS) {
+                free(cats);
+                return usage_error("--threads takes a whole number from 1 to 64", i + 1 < argc ? argv[i + 1] : NULL);
+            }
+            threads = (size_t)t;
+            i++;
+        } else if (strcmp(a, "-o") == 0 || strcmp(a, "--gate") == 0 || strcmp(a, "--marginal-at") == 0) {
             if (i + 1 >= argc) {
                 free(cats);
                 return usage_error("option needs a value", a);
@@ -301,7 +367,17 @@ static int cmd_screen(int argc, char **argv)
     screen_ctx c = {0};
     ps_run_init(&c.run, &opt);
     c.ws = ps_screen_ws_new();
-    bool read_ok = c.ws && screen_catalogs(&c, cats, n);
+    c.pool = ps_pool_new(threads, &c.run);
+    progress pg = {0};
+    if (!quiet && isatty(STDERR_FILENO)) {
+        pg.total = count_entries(cats, n);
+        pg.start = pg.last = now_s();
+        c.prog = &pg;
+    }
+    bool read_ok = c.ws && c.pool && screen_catalogs(&c, cats, n);
+    if (c.prog && pg.done)
+        progress_tick(&pg, true);
+    ps_pool_free(c.pool);
     if (!c.ws || c.nomem) {
         fputs("plantsieve: out of memory\n", stderr);
         ps_screen_ws_free(c.ws);
@@ -478,6 +554,61 @@ static int cmd_explain(int argc, char **argv)
     return rc;
 }
 
+/* ---- read: the reading cost alone ---- */
+
+typedef struct read_count {
+    size_t entries, errors;
+} read_count;
+
+static int count_entry(void *ctx, ps_plant *p, const ps_diag *err)
+{
+    (void)p;
+    read_count *c = ctx;
+    c->entries++;
+    c->errors += err != NULL;
+    return 0;
+}
+
+static int count_family(void *ctx, const ps_ynode *family, const ps_plant *defaults)
+{
+    (void)family, (void)defaults;
+    ((read_count *)ctx)->entries++;
+    return 0;
+}
+
+static size_t count_entries(char **files, int n)
+{
+    ps_plant *scratch = malloc(sizeof *scratch);
+    read_count c = {0};
+    for (int i = 0; scratch && i < n; i++) {
+        ps_diag fd = {0};
+        ps_catalog_read_families(files[i], scratch, count_entry, count_family, &c, &fd);
+    }
+    free(scratch);
+    return c.entries;
+}
+
+static int cmd_read(int argc, char **argv)
+{
+    if (argc < 1)
+        return usage_error("read needs at least one catalog file", NULL);
+    ps_plant *scratch = malloc(sizeof *scratch);
+    if (!scratch)
+        return EXIT_IO;
+    int rc = EXIT_CLEAN;
+    for (int i = 0; i < argc; i++) {
+        read_count c = {0};
+        ps_diag fd = {0};
+        if (ps_catalog_read_families(argv[i], scratch, count_entry, count_family, &c, &fd) != PS_OK) {
+            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", argv[i], fd.line, fd.col, fd.text);
+            rc = EXIT_IO;
+        }
+        printf("%s: %zu entries read, %zu with errors\n", argv[i], c.entries, c.errors);
+    }
+    free(scratch);
+    return rc;
+}
+
 int main(int argc, char **argv)
 {
     /* Numbers are read and written in the C locale whatever the environment says. */
@@ -496,6 +627,8 @@ int main(int argc, char **argv)
     }
     if (strcmp(cmd, "survey") == 0)
         return cmd_survey(argc - 2, argv + 2);
+    if (strcmp(cmd, "read") == 0)
+        return cmd_read(argc - 2, argv + 2);
     if (strcmp(cmd, "screen") == 0)
         return cmd_screen(argc - 2, argv + 2);
     if (strcmp(cmd, "explain") == 0)

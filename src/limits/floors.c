@@ -288,7 +288,7 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
     out->ms_band = out->ms_poisson = out->mt_poisson = NAN;
     bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
     if (rolloff)
-        out->ms_band = ps_band_floor(out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0, req->wh,
+        out->ms_band = ps_band_floor_ws(ws, out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0, req->wh,
                                      req->delta, req->k);
     if (band)
         out->ms_poisson = out->infinite ? INFINITY : ps_poisson_s_floor(z, nz, p, np, req->eps, req->wb);

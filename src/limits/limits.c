@@ -22,6 +22,8 @@ struct ps_limits_ws {
     double qa[2 * NP * NP], qb[2 * NP * NP], qc[2 * NP * NP];
     double ev[NP];
     gsl_eigen_herm_workspace *herm[NP + 1];
+    double tail_delta, tail_k, tail_sum; /* last roll-off tail series (per unit w_h) */
+    bool tail_valid;
 };
 
 /* Everything the per-plant path needs is allocated here, once: the
@@ -73,6 +75,20 @@ double ps_rolloff_tail(double wh, double delta, double k)
             break;
     }
     return wh * sum;
+}
+
+double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)
+{
+    /* The tail series depends on delta and k only (I = w_h * sum): a run
+     * with shared requirements sums it once. */
+    if (!ws->tail_valid || ws->tail_delta != delta || ws->tail_k != k) {
+        ws->tail_sum = ps_rolloff_tail(1.0, delta, k);
+        ws->tail_delta = delta;
+        ws->tail_k = k;
+        ws->tail_valid = true;
+    }
+    double band = wb > 0 ? wb * log(1 / eps) : 0.0;
+    return exp((F + band - wh * ws->tail_sum) / (wh - wb));
 }
 
 double ps_band_floor(double F, double wb, double eps, double wh, double delta, double k)

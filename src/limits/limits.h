@@ -27,6 +27,8 @@ double ps_rolloff_tail(double wh, double delta, double k);
  * roll-off (DFT 1992, "Design Constraints"; delta = 0: Stein 2003):
  * exp([F + wb ln(1/eps) - I] / (wh - wb)). wb = 0 means no band. */
 double ps_band_floor(double F, double wb, double eps, double wh, double delta, double k);
+/* The same, with the tail series kept in ws between calls with the same delta, k. */
+double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k);
 
 /* Single-point interpolation floors (S&P 2nd ed. 2005, ch. 5):
  *   ||S|| >= max_j prod_i |z_j + conj(p_i)| / |z_j - p_i|

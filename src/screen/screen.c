@@ -605,6 +605,21 @@ ps_status ps_run_add_catalog(ps_run *r, const char *file, const ps_diag *fdiag)
     return PS_OK;
 }
 
+ps_status ps_run_reserve(ps_run *r, size_t k)
+{
+    if (r->n_rows + k <= r->cap_rows)
+        return PS_OK;
+    size_t cap = r->cap_rows ? r->cap_rows : 64;
+    while (cap < r->n_rows + k)
+        cap *= 2;
+    ps_summary *rows = realloc(r->rows, cap * sizeof *rows);
+    if (!rows)
+        return PS_ERR_NOMEM;
+    r->rows = rows;
+    r->cap_rows = cap;
+    return PS_OK;
+}
+
 ps_summary *ps_run_next(ps_run *r)
 {
     if (r->n_rows == r->cap_rows) {

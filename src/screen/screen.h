@@ -151,6 +151,8 @@ ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag);
 /* Room for the next summary (NULL on no memory); ps_run_commit keeps it. */
 ps_summary *ps_run_next(ps_run *r);
 void ps_run_commit(ps_run *r);
+/* Room for k more summaries (rows[n_rows .. n_rows + k)). */
+ps_status ps_run_reserve(ps_run *r, size_t k);
 /* Rank: not stabilizable first, then severity descending, ties by catalog
  * order; input errors last in catalog order. Deterministic. */
 void ps_run_rank(ps_run *r);

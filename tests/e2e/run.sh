@@ -109,6 +109,19 @@ contains "explain shows the floor formula" "$tmp/out" "|z + conj p| / |z - p|"
 for ext in txt csv json md html; do
     cmp -s "$tmp/scr/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
 done
+# Thread-count invariance: the demo (with its family) on 1, 2 and 5 threads, byte for byte.
+for t in 1 2 5; do
+    "$ps" screen --threads $t -o "$tmp/thr$t" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/thr$t.out" 2>&1
+    check "screen --threads $t" 0 $?
+done
+for t in 2 5; do
+    cmp -s "$tmp/thr1.out" "$tmp/thr$t.out"; check "screen: stdout same on $t threads as on 1" 0 $?
+    for ext in txt csv json md html; do
+        cmp -s "$tmp/thr1/demo-variants.screen.$ext" "$tmp/thr$t/demo-variants.screen.$ext"
+        check "screen: $ext same on $t threads as on 1" 0 $?
+    done
+done
+"$ps" screen --threads 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --threads 0 is a usage error" 2 $?
 ls -A "$tmp/scr" | grep -q '^\.' ; check "screen: no temporary file left" 1 $?
 "$py" -c '
 import csv, json, math, sys
@@ -227,7 +240,8 @@ check "cause names the Ms floor exactly when Mt follows from it" 0 $?
 
 # Colour: only on a terminal and only without NO_COLOR (https://no-color.org).
 esc=$(printf '\033')
-"$ps" screen --no-files --gate never "$cf" 2>/dev/null | cat >"$tmp/piped"
+"$ps" screen --no-files --gate never "$cf" 2>"$tmp/piped.err" | cat >"$tmp/piped"
+grep -qF "plants/s" "$tmp/piped.err"; check "screen: no progress line when stderr is not a terminal" 1 $?
 grep -qF "$esc" "$tmp/piped"; check "screen: piped output has no ESC byte" 1 $?
 # script(1) (util-linux, Debian package bsdutils, Essential) runs the command on a pseudo-terminal.
 if command -v script >/dev/null 2>&1 && script -qec true /dev/null </dev/null >/dev/null 2>&1; then
@@ -239,6 +253,12 @@ if command -v script >/dev/null 2>&1 && script -qec true /dev/null </dev/null >/
     grep -qF "$esc" "$tmp/tty.out"; check "screen: NO_COLOR=1 on a terminal gives no ESC byte" 1 $?
     NO_COLOR= script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1
     grep -qF "$esc[" "$tmp/tty.out"; check "screen: empty NO_COLOR still colours a terminal" 0 $?
+    # Progress on stderr: on a terminal only, silenced by --quiet, never in the reports.
+    script -qec "'$ps' screen --no-files --gate never '$cf'" /dev/null </dev/null >"$tmp/tty.out" 2>&1
+    contains "screen: progress line on a terminal" "$tmp/tty.out" "plants/s, about"
+    script -qec "'$ps' screen --quiet --no-files --gate never '$cf'" /dev/null </dev/null >"$tmp/tty.out" 2>&1
+    grep -qF "plants/s" "$tmp/tty.out"; check "screen: --quiet hides the progress line" 1 $?
+    grep -qF "plants/s" "$tmp/tty/closed-form.screen.txt"; check "screen: no progress in the .txt report" 1 $?
 else
     echo "SKIP: colour on a terminal (script(1) missing or no pseudo-terminal available)"
 fi
