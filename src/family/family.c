@@ -1,13 +1,11 @@
 /* family.c - reading a family mapping, expanding its grid and evaluating its
- * model expressions with muParser (one handle per expression: muParser keeps
- * one compiled expression per handle, so re-evaluation with new parameter
- * values runs the kept bytecode without parsing again). */
+ * model expressions (src/family/expr.c: muParser, one handle per expression,
+ * so re-evaluation with new parameter values runs the kept bytecode). */
 #include "family/family.h"
 
 #include <ctype.h>
 #include <math.h>
 #include <stdarg.h>
-#include <muParserDLL.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -24,18 +22,6 @@ static ps_status fail(ps_diag *d, const ps_ynode *at, const char *field, const c
     vsnprintf(text, sizeof text, fmt, ap);
     va_end(ap);
     return ps_diag_set(d, PS_ERR_INPUT, at ? at->line : 0, at ? at->col : 0, field, "%s", text);
-}
-
-/* muParser's message without its own (0-based) position: ours is 1-based. */
-static const char *mup_message(void *h, char *buf, size_t n)
-{
-    snprintf(buf, n, "%s", mupGetErrorMsg(h));
-    char *at = strstr(buf, " found at position");
-    if (!at)
-        at = strstr(buf, " at position");
-    if (at)
-        *at = '\0';
-    return buf;
 }
 
 static bool is_scalar(const ps_ynode *n) { return n && n->kind == PS_YN_SCALAR; }
@@ -164,6 +150,14 @@ static ps_status parse_params(ps_family *fam, const ps_ynode *n, ps_diag *d)
         fam->value[i] = par->nominal;
     }
     fam->n_params = n->n;
+    const char *names[PS_FAM_PARAMS];
+    for (size_t i = 0; i < fam->n_params; i++)
+        names[i] = fam->param[i].name;
+    if (!(fam->ectx = ps_expr_ctx_new()))
+        return ps_diag_set(d, PS_ERR_NOMEM, n->line, n->col, "parameters", "out of memory");
+    ps_diag ed = {0};
+    if (ps_expr_set_params(fam->ectx, names, fam->value, fam->n_params, &ed) != PS_OK)
+        return ps_diag_set(d, PS_ERR_INPUT, n->line, n->col, "parameters", "parameters: %.400s", ed.text);
     return PS_OK;
 }
 
@@ -189,23 +183,17 @@ static ps_status add_expr(ps_family *fam, const ps_ynode *n, ps_field f, size_t 
         return fail(d, n, name, "%s: more than 512 expressions in one family", name);
     ps_fam_expr *e = &fam->expr[fam->n_expr];
     *e = (ps_fam_expr){.field = f, .index = index, .line = n->line, .col = n->col};
-    if (!(e->text = strdup(n->text)) || !(e->handle = mupCreate(muBASETYPE_FLOAT))) {
-        free(e->text);
+    if (!(e->text = strdup(n->text)))
         return ps_diag_set(d, PS_ERR_NOMEM, n->line, n->col, name, "out of memory");
-    }
     fam->n_expr++;
-    for (size_t i = 0; i < fam->n_params; i++)
-        mupDefineVar(e->handle, fam->param[i].name, &fam->value[i]);
-    mupSetExpr(e->handle, e->text);
-    /* Parse now, at the nominal values: a syntax error or an unknown name
+    /* Parsed now, at the nominal values: a syntax error or an unknown name
      * rejects the whole family with its position. */
-    mupEval(e->handle);
-    if (mupError(e->handle)) {
-        char msg[160];
-        ps_diag_set(d, PS_ERR_INPUT, n->line, n->col, name, "%s: expression '%s': %s at character %d", name,
-                    e->text, mup_message(e->handle, msg, sizeof msg), (int)mupGetErrorPos(e->handle) + 1);
-        mupErrorReset(e->handle);
-        return PS_ERR_INPUT;
+    ps_diag ed = {0};
+    ps_status st = ps_expr_compile(fam->ectx, e->text, &e->compiled, &ed);
+    if (st != PS_OK) {
+        /* a plain scalar's text starts at its column; quoted ones one later */
+        size_t col = ed.col ? n->col + ed.col - 1 + (n->plain ? 0 : 1) : n->col;
+        return ps_diag_set(d, st, n->line, col, name, "%s: %.400s", name, ed.text);
     }
     return PS_OK;
 }
@@ -326,12 +314,11 @@ ps_status ps_family_parse(ps_family *fam, const ps_ynode *node, const ps_plant *
 
 void ps_family_free(ps_family *fam)
 {
-    for (size_t i = 0; i < fam->n_expr; i++) {
-        if (fam->expr[i].handle)
-            mupRelease(fam->expr[i].handle);
+    for (size_t i = 0; i < fam->n_expr; i++)
         free(fam->expr[i].text);
-    }
     fam->n_expr = 0;
+    ps_expr_ctx_free(fam->ectx);
+    fam->ectx = NULL;
     free(fam->tmpl);
     fam->tmpl = NULL;
 }
@@ -373,14 +360,6 @@ static void name_point(const ps_family *fam, const double *values, bool all_name
         snprintf(out, n, "%s", fam->id);
 }
 
-static void values_text(const ps_family *fam, char *out, size_t n)
-{
-    int w = 0;
-    out[0] = '\0';
-    for (size_t i = 0; i < fam->n_params && w >= 0 && (size_t)w < n; i++)
-        w += snprintf(out + w, n - (size_t)w, "%s%s=%.6g", i ? ", " : "", fam->param[i].name, fam->value[i]);
-}
-
 ps_status ps_family_eval(ps_family *fam, const double *values, bool all_names, ps_plant *out, ps_diag *d)
 {
     ps_plant_reset(out);
@@ -392,23 +371,11 @@ ps_status ps_family_eval(ps_family *fam, const double *values, bool all_names, p
         fam->value[i] = values[i];
     for (size_t i = 0; i < fam->n_expr; i++) {
         ps_fam_expr *e = &fam->expr[i];
-        double v = mupEval(e->handle);
         const char *name = ps_field_name(e->field);
-        if (mupError(e->handle) || !isfinite(v)) {
-            char vals[256];
-            values_text(fam, vals, sizeof vals);
-            if (mupError(e->handle)) {
-                char msg[160];
-                ps_diag_set(d, PS_ERR_INPUT, e->line, e->col, name, "%s: expression '%s': %s at character %d (%s)",
-                            name, e->text, mup_message(e->handle, msg, sizeof msg),
-                            (int)mupGetErrorPos(e->handle) + 1, vals);
-                mupErrorReset(e->handle);
-            } else
-                ps_diag_set(d, PS_ERR_INPUT, e->line, e->col, name,
-                            "%s: expression '%s' is %s at %s (division by zero or overflow?)", name, e->text,
-                            isnan(v) ? "not a number" : "infinite", vals);
-            return PS_ERR_INPUT;
-        }
+        double v;
+        ps_diag ed = {0};
+        if (ps_expr_eval(fam->ectx, e->compiled, &v, &ed) != PS_OK)
+            return ps_diag_set(d, PS_ERR_INPUT, e->line, e->col, name, "%s: %.400s", name, ed.text);
         switch (e->field) {
         case PS_F_NUM: out->num[e->index] = v; break;
         case PS_F_DEN: out->den[e->index] = v; break;

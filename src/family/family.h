@@ -11,6 +11,7 @@
 
 #include "catalog/catalog.h"
 #include "core/diag.h"
+#include "family/expr.h"
 #include "model/plant.h"
 
 enum {
@@ -39,7 +40,7 @@ typedef struct ps_fam_expr {
     ps_field field;
     size_t index;              /* list item, or row-major element of a */
     size_t line, col;
-    void *handle;              /* muParser handle, bytecode kept */
+    ps_expr compiled;          /* in the family's expression context */
 } ps_fam_expr;
 
 typedef struct ps_family {
@@ -49,6 +50,7 @@ typedef struct ps_family {
     size_t n_params;
     ps_fam_param param[PS_FAM_PARAMS];
     double value[PS_FAM_PARAMS]; /* the values the expressions read (muParser variables) */
+    ps_expr_ctx *ectx;           /* muParser handles, one per expression (src/family/expr.c) */
     size_t n_expr;
     ps_fam_expr expr[PS_FAM_EXPRS];
     size_t n_list[PS_F_COUNT];   /* items of each list field; a: rows * cols */

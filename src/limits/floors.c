@@ -269,6 +269,8 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
     /* Effort: Pick with points p_i and values e^{p_i theta} / G_s(p_i). */
     if (np == 0)
         out->effort = 0.0;
+    else if (ps_limits_effort_skipped(ws))
+        out->effort = NAN;
     else if (out->infinite)
         out->effort = INFINITY;
     else {

@@ -24,7 +24,11 @@ struct ps_limits_ws {
     gsl_eigen_herm_workspace *herm[NP + 1];
     double tail_delta, tail_k, tail_sum; /* last roll-off tail series (per unit w_h) */
     bool tail_valid;
+    bool skip_effort; /* probes that do not count effort skip its Pick problem */
 };
+
+void ps_limits_skip_effort(ps_limits_ws *ws, bool skip) { ws->skip_effort = skip; }
+bool ps_limits_effort_skipped(const ps_limits_ws *ws) { return ws->skip_effort; }
 
 /* Everything the per-plant path needs is allocated here, once: the
  * eigen-solver workspaces for every matrix size included. */

@@ -16,6 +16,11 @@ typedef struct ps_limits_ws ps_limits_ws;
 ps_limits_ws *ps_limits_ws_new(void);
 void ps_limits_ws_free(ps_limits_ws *ws);
 
+/* While skip is set, ps_floors_compute leaves the effort floor NAN (not
+ * computed): for searches whose verdict does not count effort. */
+void ps_limits_skip_effort(ps_limits_ws *ws, bool skip);
+bool ps_limits_effort_skipped(const ps_limits_ws *ws);
+
 /* Bode area floor F = pi * sum Re p over RHP poles (with multiplicity). */
 double ps_bode_area(const ps_cplx *p, size_t np);
 

@@ -2,6 +2,7 @@
  * the ranked run (see screen.h; definitions in README "Verdicts"). */
 #include "screen/screen.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -265,7 +266,11 @@ typedef struct probe {
     double band_eps;
 } probe;
 
-static bool probe_passes(probe *pr, double x)
+/* How far x is from passing: <= 0 passes. The share of the allowed
+ * log-peak minus 1 (the Ms share alone for the band target); +inf for an
+ * infinite floor or a hidden mode. Monotone along each target's quantity,
+ * which lets the root finder below use its values, not only its sign. */
+static double probe_margin(probe *pr, double x)
 {
     ps_analysis *w = &pr->ws->work;
     ps_requirements q = pr->req;
@@ -288,34 +293,68 @@ static bool probe_passes(probe *pr, double x)
     case PS_TARGET_DELAY: w->delay = x; break;
     case PS_TARGET_ROLLOFF:
         if (!(x > q.wb))
-            return false;
+            return INFINITY;
         q.wh = x;
         break;
     case PS_TARGET_BAND:
         q.wb = x;
         q.eps = pr->band_eps;
         ps_floors_compute(pr->ws->lws, w, &q, &pr->ws->fl);
-        return !pr->ws->fl.infinite && !w->hidden_unstable && pr->ws->fl.ms <= q.ms_allowed;
+        if (pr->ws->fl.infinite || w->hidden_unstable)
+            return INFINITY;
+        return pr->ws->fl.ms <= q.ms_allowed ? fmin(ps_share_peak(pr->ws->fl.ms, q.ms_allowed) - 1.0, 0.0)
+                                             : fmax(ps_share_peak(pr->ws->fl.ms, q.ms_allowed) - 1.0, DBL_MIN);
     case PS_TARGET_COUNT: break;
     }
-    return ps_screen_passes(pr->ws, w, &q, NULL);
+    double sev;
+    bool pass = ps_screen_passes(pr->ws, w, &q, &sev);
+    if (pr->ws->fl.infinite || w->hidden_unstable)
+        return INFINITY;
+    return pass ? fmin(sev - 1.0, 0.0) : fmax(sev - 1.0, DBL_MIN);
+}
+
+static bool probe_passes(probe *pr, double x)
+{
+    return probe_margin(pr, x) <= 0;
 }
 
 enum { STEP_MAX = 400, BISECT_MAX = 200 };
 #define STEP 1.25
 #define BISECT_RTOL 1e-10
 
-/* Boundary between a passing x_pass and a failing x_fail; returns the
- * passing end (the conservative value). Geometric midpoints unless an end is 0. */
+/* Boundary between a passing x_pass and a failing x_fail, to BISECT_RTOL
+ * relative; returns the passing end (the conservative value). Illinois
+ * (regula falsi with the stale end's value halved) on log x when both ends
+ * are positive, on x otherwise; a bisection step whenever the secant point
+ * is not well inside the bracket or a margin is infinite. */
 static double bisect(probe *pr, double x_pass, double x_fail)
 {
+    double m_pass = probe_margin(pr, x_pass), m_fail = probe_margin(pr, x_fail);
+    int stale = 0; /* +1: x_pass kept on the last step, -1: x_fail kept */
     for (int i = 0; i < BISECT_MAX && fabs(x_fail - x_pass) > BISECT_RTOL * fmax(fabs(x_pass), fabs(x_fail));
          i++) {
-        double mid = (x_pass > 0 && x_fail > 0) ? sqrt(x_pass * x_fail) : 0.5 * (x_pass + x_fail);
-        if (probe_passes(pr, mid))
+        bool logs = x_pass > 0 && x_fail > 0;
+        double a = logs ? log(x_pass) : x_pass, b = logs ? log(x_fail) : x_fail, u = 0.5 * (a + b);
+        if (isfinite(m_pass) && isfinite(m_fail) && m_fail > m_pass) {
+            double s = a + (b - a) * (0 - m_pass) / (m_fail - m_pass);
+            double lo = fmin(a, b), hi = fmax(a, b), guard = 0.01 * (hi - lo);
+            if (s > lo + guard && s < hi - guard)
+                u = s;
+        }
+        double mid = logs ? exp(u) : u, m = probe_margin(pr, mid);
+        if (m <= 0) {
             x_pass = mid;
-        else
+            m_pass = m;
+            if (stale == 1) /* x_fail kept twice: halve its weight */
+                m_fail *= 0.5;
+            stale = 1;
+        } else {
             x_fail = mid;
+            m_fail = m;
+            if (stale == -1)
+                m_pass *= 0.5;
+            stale = -1;
+        }
     }
     return x_pass;
 }
@@ -335,9 +374,10 @@ static void search(probe *pr, ps_target *t, double x0, double lo, double hi, boo
     double x = x0, prev = x0;
     bool found = false;
     if (t->passes_now) { /* walk towards the hard end until it fails */
-        for (int i = 0; i < STEP_MAX && !found; i++) {
+        double f = STEP; /* galloping: the step factor squares each time */
+        for (int i = 0; i < STEP_MAX && !found; i++, f = fmin(f * f, 1e3)) {
             prev = x;
-            x = worse_up ? (x > 0 ? x * STEP : hi * 1e-12) : x / STEP;
+            x = worse_up ? (x > 0 ? x * f : hi * 1e-12) : x / f;
             if (worse_up ? x >= bad_end : x <= bad_end) {
                 x = bad_end;
                 if (probe_passes(pr, x))
@@ -354,9 +394,10 @@ static void search(probe *pr, ps_target *t, double x0, double lo, double hi, boo
         }
         t->limit = bisect(pr, prev, x);
     } else { /* walk towards the easy end until it passes */
-        for (int i = 0; i < STEP_MAX && !found; i++) {
+        double f = STEP;
+        for (int i = 0; i < STEP_MAX && !found; i++, f = fmin(f * f, 1e3)) {
             prev = x;
-            x = worse_up ? x / STEP : x * STEP;
+            x = worse_up ? x / f : x * f;
             if (worse_up ? x <= good_end : x >= good_end) {
                 x = good_end;
                 found = true; /* passes: checked above */
@@ -382,6 +423,7 @@ static double plant_scale(const ps_analysis *an, const ps_requirements *q)
 static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *q, ps_summary *s)
 {
     probe pr = {ws, an, *q, PS_TARGET_POLE, s->band_eps};
+    ps_limits_skip_effort(ws->lws, !(q->effort_allowed > 0));
     double scale = plant_scale(an, q);
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         ps_target *t = &s->target[k];
@@ -447,6 +489,7 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
         case PS_TARGET_COUNT: break;
         }
     }
+    ps_limits_skip_effort(ws->lws, false);
 }
 
 /* Ms floor against the band edge (eps fixed), on a log grid. */
@@ -457,6 +500,7 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
     ps_requirements r = *q;
     r.eps = s->band_eps;
     s->n_curve = PS_CURVE_N;
+    ps_limits_skip_effort(ws->lws, true); /* the curve is the Ms floor alone */
     for (size_t i = 0; i < PS_CURVE_N; i++) {
         double wb = lo * pow(hi / lo, (double)i / (PS_CURVE_N - 1));
         r.wb = wb;
@@ -464,6 +508,7 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
         s->curve_wb[i] = wb;
         s->curve_ms[i] = ws->fl.ms;
     }
+    ps_limits_skip_effort(ws->lws, false);
 }
 
 static void copy_roots(const ps_root *r, size_t n, ps_cplx *out, size_t *n_out)

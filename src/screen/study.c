@@ -3,20 +3,19 @@
  * yield (seeded GSL generator, Wilson intervals). README "Families". */
 #include "screen/study.h"
 
-#include <gsl/gsl_cdf.h>
-#include <gsl/gsl_randist.h>
-#include <gsl/gsl_rng.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+
+#include "family/yield.h"
 
 struct ps_study_ws {
     ps_screen_ws *sws;
     ps_roots_ws *rws;
     ps_plant plant;
     ps_analysis an;
-    gsl_rng *rng;
+    ps_yield_sampler *rng;
 };
 
 const char *ps_bound_state_name(ps_bound_state s)
@@ -33,7 +32,7 @@ ps_study_ws *ps_study_ws_new(void)
         return NULL;
     ws->sws = ps_screen_ws_new();
     ws->rws = ps_roots_ws_new();
-    ws->rng = gsl_rng_alloc(gsl_rng_mt19937);
+    ws->rng = ps_yield_sampler_new();
     if (!ws->sws || !ws->rws || !ws->rng) {
         ps_study_ws_free(ws);
         return NULL;
@@ -47,23 +46,8 @@ void ps_study_ws_free(ps_study_ws *ws)
         return;
     ps_screen_ws_free(ws->sws);
     ps_roots_ws_free(ws->rws);
-    if (ws->rng)
-        gsl_rng_free(ws->rng);
+    ps_yield_sampler_free(ws->rng);
     free(ws);
-}
-
-void ps_wilson(size_t k, size_t n, double z, double *lo, double *hi)
-{
-    if (n == 0) {
-        *lo = 0;
-        *hi = 1;
-        return;
-    }
-    double p = (double)k / (double)n, z2 = z * z, den = 1 + z2 / (double)n;
-    double centre = (p + z2 / (2.0 * (double)n)) / den;
-    double half = z * sqrt(p * (1 - p) / (double)n + z2 / (4.0 * (double)n * (double)n)) / den;
-    *lo = k == 0 ? 0.0 : fmax(0.0, centre - half);
-    *hi = k == n ? 1.0 : fmin(1.0, centre + half);
 }
 
 /* One point of parameter space: verdict, Ms floor and severity. Returns
@@ -171,28 +155,30 @@ static void boundary(ps_study_ws *ws, ps_family *fam, size_t j, const ps_screen_
     b->sev_fail = lo_pass ? phi.severity : plo.severity;
 }
 
-static double draw(gsl_rng *rng, const ps_fam_param *par)
+static double draw(ps_yield_sampler *rng, const ps_fam_param *par)
 {
     switch (par->tol) {
-    case PS_TOL_NORMAL: return par->nominal + gsl_ran_gaussian(rng, par->tol_value);
-    case PS_TOL_UNIFORM: return par->nominal + gsl_ran_flat(rng, -par->tol_value, par->tol_value);
+    case PS_TOL_NORMAL: return ps_yield_normal(rng, par->nominal, par->tol_value);
+    case PS_TOL_UNIFORM: return ps_yield_uniform(rng, par->nominal, par->tol_value);
     default: return par->nominal;
     }
 }
 
-/* Samples in order from one mt19937 stream seeded with the family's seed:
- * the same seed gives the same units, sample after sample. */
+/* Sample s draws its values from a stream of its own that depends on (seed,
+ * s) only (src/family/yield.c), in parameter order: the same seed gives the
+ * same units in any order or on any number of threads. */
 static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_yield *y)
 {
     memset(y, 0, sizeof *y);
     y->samples = fam->samples;
     y->seed = fam->seed;
     y->culprit = -1;
-    gsl_rng_set(ws->rng, fam->seed);
     double sum_fail[PS_FAM_PARAMS] = {0}, sum_pass[PS_FAM_PARAMS] = {0};
     size_t n_fail = 0, n_pass = 0;
     for (size_t s = 0; s < fam->samples; s++) {
         double values[PS_FAM_PARAMS];
+        ps_diag sd = {0};
+        ps_yield_sampler_start(ws->rng, fam->seed, s, &sd); /* s < 1e6: always in range */
         for (size_t i = 0; i < fam->n_params; i++)
             values[i] = draw(ws->rng, &fam->param[i]);
         point pt;
@@ -211,13 +197,18 @@ static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps
         else
             n_fail++;
     }
-    double z = gsl_cdf_ugaussian_Pinv(0.975);
+    ps_interval ci;
+    ps_diag wd = {0};
     for (int v = 0; v < PS_VERDICT_COUNT; v++) {
         y->frac[v] = (double)y->count[v] / (double)y->samples;
-        ps_wilson(y->count[v], y->samples, z, &y->lo[v], &y->hi[v]);
+        ps_yield_wilson(y->count[v], y->samples, 0.95, &ci, &wd);
+        y->lo[v] = ci.lo;
+        y->hi[v] = ci.hi;
     }
     y->pass_frac = (double)n_pass / (double)y->samples;
-    ps_wilson(n_pass, y->samples, z, &y->pass_lo, &y->pass_hi);
+    ps_yield_wilson(n_pass, y->samples, 0.95, &ci, &wd);
+    y->pass_lo = ci.lo;
+    y->pass_hi = ci.hi;
     /* The parameter whose failing units sit farthest from the passing ones,
      * in units of its own spread (sigma; half-width / sqrt 3 for uniform). */
     if (n_fail && n_pass) {

@@ -70,9 +70,6 @@ void ps_study_ws_free(ps_study_ws *ws);
  * study, into out. Deterministic for a given family (seeded generator). */
 void ps_study_family(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_family_result *out);
 
-/* Wilson score interval for k of n at the normal quantile z. */
-void ps_wilson(size_t k, size_t n, double z, double *lo, double *hi);
-
 /* Room for the next family result in the run (NULL on no memory). */
 ps_family_result *ps_run_next_family(ps_run *r);
 

@@ -89,7 +89,7 @@ Test(family, unknown_name_and_syntax_errors_have_positions)
     cr_assert_eq(fam_status, PS_ERR_INPUT);
     cr_assert_eq(fam_diag.line, 5);
     cr_assert_str_eq(fam_diag.field, "denominator");
-    cr_assert(strstr(fam_diag.text, "'a*bb'") && strstr(fam_diag.text, "\"bb\"") &&
+    cr_assert(strstr(fam_diag.text, "a*bb") && strstr(fam_diag.text, "unknown name \"bb\"") &&
                   strstr(fam_diag.text, "character 3"),
               "%s", fam_diag.text);
     read_family("families:\n  - id: f\n    parameters: {a: 1}\n    numerator: [1]\n    denominator: [1, \"(a+\"]\n",
@@ -108,7 +108,7 @@ Test(family, division_by_zero_names_the_values)
     ps_family_grid_point(&fam, 0, v);
     ps_diag d = {0};
     cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_ERR_INPUT);
-    cr_assert(strstr(d.text, "'1/a'") && strstr(d.text, "a=0") && strstr(d.text, "infinite"), "%s", d.text);
+    cr_assert(strstr(d.text, "1/a") && strstr(d.text, "a=0") && strstr(d.text, "division by zero"), "%s", d.text);
     cr_assert_eq(d.line, 4);
 }
 
@@ -181,18 +181,4 @@ Test(family, yield_matches_the_normal_cdf)
     cr_assert_eq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
     read_pendulum("0.14", "0.01", "4000", "7");
     cr_assert_neq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
-}
-
-/* Wilson score interval against scipy-free hand values: k = 0 starts at 0,
- * k = n ends at 1, and the centre is (k + z^2/2)/(n + z^2). */
-Test(family, wilson_interval_edges_and_centre)
-{
-    double lo, hi, z = 1.959963984540054;
-    ps_wilson(0, 50, z, &lo, &hi);
-    cr_assert_eq(lo, 0.0);
-    cr_assert_float_eq(hi, z * z / (50 + z * z), 1e-12);
-    ps_wilson(50, 50, z, &lo, &hi);
-    cr_assert_eq(hi, 1.0);
-    ps_wilson(30, 100, z, &lo, &hi);
-    cr_assert_float_eq(0.5 * (lo + hi), (30 + z * z / 2) / (100 + z * z), 1e-12);
 }
