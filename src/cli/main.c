@@ -396,6 +396,7 @@ static int cmd_screen(int argc, char **argv)
         struct { const char *ext; ps_writer_fn fn; } out[] = {
             {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
             {"md", ps_write_markdown},     {"html", ps_write_html},
+            {"families.csv", ps_write_families_csv},
         };
         if (mkdir(outdir, 0777) != 0 && errno != EEXIST) {
             fprintf(stderr, "plantsieve: cannot create %s: %s\n", outdir, strerror(errno));
@@ -403,6 +404,8 @@ static int cmd_screen(int argc, char **argv)
         } else
             for (size_t i = 0; i < sizeof out / sizeof out[0]; i++) {
                 ps_diag d = {0};
+                if (out[i].fn == ps_write_families_csv && c.run.n_families == 0)
+                    continue;
                 snprintf(name, sizeof name, "%s.screen.%s", stem, out[i].ext);
                 if (ps_write_atomic(outdir, name, out[i].fn, &c.run, &d) != PS_OK) {
                     fprintf(stderr, "plantsieve: %s\n", d.text);

@@ -6,6 +6,8 @@
 #include <stdbool.h>
 #include <string.h>
 
+#include "screen/study.h"
+
 /* ---- text ---- */
 
 /* Write s escaped for HTML text and attribute values. Control characters
@@ -69,16 +71,20 @@ static bool is_flagged(const ps_summary *s)
 
 /* ---- SVG primitives (coordinates in px, one decimal) ---- */
 
-static void svg_open(FILE *f, double w, double h, const char *label)
+/* cls: a class for the svg element (for readers of the page), or NULL. */
+static void svg_open_class(FILE *f, double w, double h, const char *cls, const char *label)
 {
-    fprintf(f, "<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 %.0f %.0f\" width=\"%.0f\" height=\"%.0f\" "
-               "role=\"img\" aria-label=\"",
-            w, h, w, h);
+    fprintf(f, "<svg xmlns=\"http://www.w3.org/2000/svg\"");
+    if (cls)
+        fprintf(f, " class=\"%s\"", cls);
+    fprintf(f, " viewBox=\"0 0 %.0f %.0f\" width=\"%.0f\" height=\"%.0f\" role=\"img\" aria-label=\"", w, h, w, h);
     h_text(f, label);
     fprintf(f, "\">\n<title>");
     h_text(f, label);
     fprintf(f, "</title>\n");
 }
+
+static void svg_open(FILE *f, double w, double h, const char *label) { svg_open_class(f, w, h, NULL, label); }
 
 static void svg_line(FILE *f, double x1, double y1, double x2, double y2, const char *cls)
 {
@@ -150,6 +156,12 @@ static const char style_sheet[] =
     "svg .bar-redesign{fill:#000}svg .bar-unstab{fill:url(#ps-hatch);stroke:#000;stroke-width:1}\n"
     "svg .pole{stroke:#000;stroke-width:1.7}svg .zero{fill:#fff;stroke:#000;stroke-width:1.5}\n"
     "svg .curve{fill:none;stroke:#000;stroke-width:1.8}svg .clipmark{fill:#000}\n"
+    "svg .pt-pass{fill:#fff;stroke:#000;stroke-width:1.5}svg .pt-fail{fill:#000;stroke:#000;stroke-width:1}"
+    "svg .flip{fill:#e2e2e2;stroke:none}\n"
+    "svg .bar-unstab-y{stroke:#000;stroke-width:1}svg .bar-unread{fill:#fff;stroke:#000;stroke-width:.6;"
+    "stroke-dasharray:2 1}\n"
+    "article.family{border-top:1px solid #777}.figs figure.family-boundary{max-width:500px}"
+    "figure.family-yield{max-width:700px}\n"
     "@media print{body{max-width:none;margin:0;padding:0;font-size:10pt}"
     "h2{break-after:avoid;page-break-after:avoid}tr{break-inside:avoid}"
     "table.ranking{font-size:7pt}table.ranking th,table.ranking td{padding:.15em .25em}"
@@ -510,6 +522,430 @@ static void changes(FILE *f, const ps_run *r)
     fprintf(f, "</section>\n");
 }
 
+/* ---- families: boundary along each swept parameter, yield bar ---- */
+
+/* An axis maps a value to a pixel: log10 of the value or the value itself,
+ * between lo and hi (in those units), onto from .. to. */
+typedef struct axis {
+    bool log;
+    double lo, hi;
+    double from, to;
+} axis;
+
+static double ax_px(const axis *a, double v)
+{
+    double u = a->log ? log10(v) : v;
+    return a->from + (a->to - a->from) * (u - a->lo) / (a->hi - a->lo);
+}
+
+/* 1, 2 or 5 times a power of ten, giving about target steps over span. */
+static double nice_step(double span, double target)
+{
+    double raw = span / target, p = pow(10.0, floor(log10(raw))), m = raw / p;
+    return (m < 1.5 ? 1 : m < 3 ? 2 : m < 7 ? 5 : 10) * p;
+}
+
+/* The allowed Ms the family's plants were screened against: that of its
+ * first screened grid plant (id "<family>[..."), else the built-in 2. */
+static double family_ms_allowed(const ps_run *r, const ps_family_result *fr, bool *from_plant)
+{
+    size_t n = strlen(fr->id);
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = &r->rows[i];
+        if (s->verdict != PS_VERDICT_UNREAD && strncmp(s->id, fr->id, n) == 0 && s->id[n] == '[' &&
+            isfinite(s->req.ms_allowed) && s->req.ms_allowed > 0) {
+            *from_plant = true;
+            return s->req.ms_allowed;
+        }
+    }
+    *from_plant = false;
+    return 2.0;
+}
+
+static void pass_mark(FILE *f, double x, double y, bool pass)
+{
+    if (pass)
+        fprintf(f, "<circle class=\"pt-pass\" cx=\"%.1f\" cy=\"%.1f\" r=\"4\"/>\n", x, y);
+    else
+        fprintf(f, "<rect class=\"pt-fail\" x=\"%.1f\" y=\"%.1f\" width=\"8\" height=\"8\"/>\n", x - 4, y - 4);
+}
+
+static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr, const ps_boundary *b)
+{
+    const char *name = fr->param[b->param].name;
+    bool found = b->state == PS_BOUND_FOUND && isfinite(b->value);
+    bool allowed_from_plant;
+    double allowed = family_ms_allowed(r, fr, &allowed_from_plant);
+    double xmin = INFINITY, xmax = -INFINITY, mtop = 1;
+    for (size_t i = 0; i < b->n_curve; i++) {
+        xmin = fmin(xmin, b->curve_x[i]);
+        xmax = fmax(xmax, b->curve_x[i]);
+        if (isfinite(b->curve_ms[i]))
+            mtop = fmax(mtop, b->curve_ms[i]);
+    }
+    if (found) {
+        xmin = fmin(xmin, b->value);
+        xmax = fmax(xmax, b->value);
+    }
+    const double W = 500, H = 292, L = 64, T = 34, PW = 400, PH = 190;
+    /* x: logarithmic when the positive sweep spans more than a decade (whole
+     * decades, as on the band-edge figures), else linear with a margin of
+     * 4 % so the end points do not sit on the frame. */
+    axis ax = {.log = xmin > 0 && xmax > 10 * xmin, .from = L, .to = L + PW};
+    double step = 0;
+    if (ax.log) {
+        ax.lo = floor(log10(xmin));
+        ax.hi = ceil(log10(xmax));
+        if (ax.hi <= ax.lo)
+            ax.hi = ax.lo + 1;
+    } else {
+        double span = xmax - xmin;
+        if (!(span > 0))
+            span = xmin != 0 ? fabs(xmin) : 1;
+        ax.lo = xmin - 0.04 * span;
+        ax.hi = xmax + 0.04 * span;
+        step = nice_step(ax.hi - ax.lo, 6);
+    }
+    /* y: the Ms axis of the band-edge figures (log from 1, up to the largest
+     * finite floor but at least twice and at most a hundred times the
+     * allowed Ms); larger and infinite floors sit on the top edge, marked. */
+    double ytop = fmax(fmin(fmax(mtop, 2 * allowed), 100 * allowed), 2);
+    axis ay = {.log = true, .lo = 0, .hi = log10(ytop) * 1.05, .from = T + PH, .to = T};
+
+    char buf[240], label[80];
+    fit_label(label, sizeof label, fr->id, 30);
+    snprintf(buf, sizeof buf, "%s: Ms floor along %s", label, name);
+    fprintf(f, "<figure class=\"family-boundary\" data-family=\"");
+    h_text(f, fr->id);
+    fprintf(f, "\" data-parameter=\"");
+    h_text(f, name);
+    fprintf(f, "\" data-state=\"%s\">\n", ps_bound_state_name(b->state));
+    svg_open_class(f, W, H, "family-boundary", buf);
+    svg_text(f, 10, 16, "start", "title", 0, buf);
+
+    if (ax.log) {
+        int every = ax.hi - ax.lo > 8 ? 2 : 1;
+        for (double e = ax.lo; e <= ax.hi + 1e-9; e += 1) {
+            double x = pow(10.0, e);
+            svg_line(f, ax_px(&ax, x), T, ax_px(&ax, x), T + PH + 4, "grid");
+            if ((int)(e - ax.lo) % every == 0) {
+                tick_label(buf, sizeof buf, x);
+                svg_text(f, ax_px(&ax, x), T + PH + 16, "middle", "small", 0, buf);
+            }
+            for (int m = 2; m <= 9 && e < ax.hi; m++)
+                svg_line(f, ax_px(&ax, m * x), T + PH, ax_px(&ax, m * x), T + PH + 3, "");
+        }
+    } else {
+        /* Enough digits that neighbouring ticks differ (a sweep of 1000.1 .. 1000.5). */
+        int digits = (int)ceil(log10(fmax(fabs(ax.lo), fabs(ax.hi)) / step)) + 1;
+        digits = digits < 4 ? 4 : digits > 12 ? 12 : digits;
+        for (double k = ceil(ax.lo / step); k * step <= ax.hi; k += 1) {
+            double x = k * step;
+            if (fabs(x) < 1e-9 * step)
+                x = 0; /* no "-1e-19" where the axis crosses zero */
+            svg_line(f, ax_px(&ax, x), T, ax_px(&ax, x), T + PH + 4, "grid");
+            snprintf(buf, sizeof buf, "%.*g", digits, x);
+            svg_text(f, ax_px(&ax, x), T + PH + 16, "middle", "small", 0, buf);
+        }
+    }
+    /* Ms ticks 1, 1.5, 2, 3, 5 below 10; 1, 2, 5 per decade to 100; powers of ten beyond. */
+    for (double d = 1; d <= ytop * 1.0001; d *= 10) {
+        static const double mult[] = {1, 1.5, 2, 3, 5};
+        for (size_t j = 0; j < 5; j++) {
+            double m = d * mult[j];
+            bool keep = ytop <= 10 || (ytop <= 100 ? (j == 0 || j == 2 || j == 4) : j == 0);
+            if (m > ytop * 1.0001 || !keep)
+                continue;
+            svg_line(f, L - 4, ax_px(&ay, m), L + PW, ax_px(&ay, m), "grid");
+            tick_label(buf, sizeof buf, m);
+            svg_text(f, L - 6, ax_px(&ay, m) + 3.5, "end", "small", 0, buf);
+        }
+    }
+    /* Where a non-monotone verdict changes: between which sweep points. */
+    if (b->state == PS_BOUND_NON_MONOTONE)
+        for (size_t i = 0; i < b->n_changes; i++) {
+            double x1 = ax_px(&ax, b->change_lo[i]), x2 = ax_px(&ax, b->change_hi[i]);
+            fprintf(f, "<rect class=\"flip\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", fmin(x1, x2),
+                    T, fabs(x2 - x1), PH);
+        }
+    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, PH);
+    if (allowed > 1 && allowed <= ytop) {
+        svg_line(f, L, ax_px(&ay, allowed), L + PW, ax_px(&ay, allowed), "marginal");
+        snprintf(buf, sizeof buf, "allowed Ms %.3g", allowed);
+        svg_text(f, L + PW - 3, ax_px(&ay, allowed) - 4, "end", "small value", 0, buf);
+    }
+    /* The curve through the sweep points, broken where a floor has no value. */
+    bool open = false, clipped = false;
+    double py[PS_FAM_SWEEP];
+    for (size_t i = 0; i < b->n_curve; i++) {
+        double m = b->curve_ms[i];
+        py[i] = NAN;
+        if (isnan(m)) {
+            if (open)
+                fprintf(f, "\"/>\n");
+            open = false;
+            continue;
+        }
+        if (m > ytop) {
+            m = ytop;
+            clipped = true;
+        }
+        py[i] = ax_px(&ay, fmax(m, 1.0));
+        fprintf(f, "%s%.1f,%.1f", open ? " " : "<polyline class=\"curve\" points=\"", ax_px(&ax, b->curve_x[i]),
+                py[i]);
+        open = true;
+    }
+    if (open)
+        fprintf(f, "\"/>\n");
+    if (found) {
+        double x = ax_px(&ax, b->value);
+        svg_line(f, x, T, x, T + PH, "halo");
+        svg_line(f, x, T, x, T + PH, "promise");
+        fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", x, T + PH);
+        /* The label goes on the side where the curve is lower next to the
+         * line (the top corner is free there), unless that side is too narrow. */
+        double ms_left = NAN, ms_right = NAN;
+        for (size_t i = 0; i < b->n_curve; i++) {
+            if (b->curve_x[i] <= b->value)
+                ms_left = b->curve_ms[i];
+            else if (isnan(ms_right))
+                ms_right = b->curve_ms[i];
+        }
+        bool left = isnan(ms_right) || (!isnan(ms_left) && ms_left < ms_right);
+        if (left && x - L < 110)
+            left = false;
+        else if (!left && L + PW - x < 110)
+            left = true;
+        snprintf(buf, sizeof buf, "boundary %.3g", b->value);
+        svg_text(f, x + (left ? -4 : 4), T + 13, left ? "end" : "start", "small value", 0, buf);
+        svg_text(f, x + (left ? -4 : 4), T + 25, left ? "end" : "start", "small value", 0,
+                 b->pass_below ? "passes below" : "passes above");
+    }
+    for (size_t i = 0; i < b->n_curve; i++) {
+        if (isnan(py[i]))
+            continue;
+        double x = ax_px(&ax, b->curve_x[i]);
+        fprintf(f, "<g><title>");
+        h_text(f, name);
+        fprintf(f, " = %.6g: Ms floor ", b->curve_x[i]);
+        h_num(f, b->curve_ms[i]);
+        fprintf(f, ", severity ");
+        h_num(f, b->curve_sev[i]);
+        fprintf(f, ", %s</title>\n", b->curve_pass[i] ? "passes" : "fails");
+        if (!(b->curve_ms[i] <= ytop))
+            fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 8h10z\"/>\n", x, T - 10);
+        pass_mark(f, x, py[i], b->curve_pass[i]);
+        fprintf(f, "</g>\n");
+    }
+    snprintf(buf, sizeof buf, "%s (parameter value, %s)", name, ax.log ? "log" : "linear");
+    svg_text(f, L + PW / 2, T + PH + 34, "middle", "", 0, buf);
+    svg_text(f, 16, T + PH / 2, "middle", "", -90, "Ms floor (ratio, log)");
+    double ly = H - 12;
+    pass_mark(f, L + 4, ly - 4, true);
+    svg_text(f, L + 13, ly, "start", "small", 0, "passes");
+    pass_mark(f, L + 64, ly - 4, false);
+    svg_text(f, L + 73, ly, "start", "small", 0, "fails");
+    if (b->state == PS_BOUND_NON_MONOTONE) {
+        fprintf(f, "<rect class=\"flip\" x=\"%.1f\" y=\"%.1f\" width=\"14\" height=\"10\"/>\n", L + 112, ly - 9);
+        svg_text(f, L + 130, ly, "start", "small", 0, "verdict changes");
+    }
+    switch (b->state) {
+    case PS_BOUND_FOUND: snprintf(buf, sizeof buf, "one change of verdict"); break;
+    case PS_BOUND_ALL_PASS: snprintf(buf, sizeof buf, "passes over the whole sweep"); break;
+    case PS_BOUND_ALL_FAIL: snprintf(buf, sizeof buf, "fails over the whole sweep"); break;
+    default: snprintf(buf, sizeof buf, "not monotone: %zu changes", b->n_changes); break;
+    }
+    svg_text(f, L + PW, ly, "end", "small", 0, buf);
+    fprintf(f, "</svg>\n");
+
+    char text[700];
+    ps_boundary_text(fr, b, text, sizeof text);
+    fprintf(f, "<figcaption>Ms floor of ");
+    h_text(f, fr->id);
+    fprintf(f, " at the sorted sweep points of ");
+    h_text(f, name);
+    fprintf(f, ", the other parameters at nominal; %s parameter axis, log Ms axis. Open circles pass (clear or "
+               "marginal), black squares fail: the verdict weighs every floor (Ms, Mt, effort), so a point can fail "
+               "below the allowed Ms. Dashed: the allowed Ms (%.3g, %s).",
+            ax.log ? "log" : "linear", allowed,
+            allowed_from_plant ? "as for the family's grid plants" : "the built-in default: no screened grid plant");
+    if (found)
+        fprintf(f, " Solid with a triangle: the boundary, located by bisection.");
+    if (b->state == PS_BOUND_NON_MONOTONE)
+        fprintf(f, " Shaded: between these sweep points the verdict changes; no single boundary is reported.");
+    if (clipped)
+        fprintf(f, " Floors above %.3g (or infinite) are drawn at %.3g with a triangle above the frame.", ytop, ytop);
+    fprintf(f, " Result: ");
+    h_text(f, text);
+    fprintf(f, ".</figcaption>\n</figure>\n");
+}
+
+/* One segment of the yield bar or its legend, filled as on the severity
+ * figure; the hatch of not-stabilizable units is the family's own pattern k. */
+static void yield_rect(FILE *f, int v, size_t k, double x, double y, double w, double h)
+{
+    static const char *const cls[PS_VERDICT_COUNT] = {"bar-clear", "bar-marginal", "bar-redesign", "bar-unstab-y",
+                                                      "bar-unread"};
+    fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"", cls[v], x, y, w, h);
+    if (v == PS_VERDICT_UNSTABILIZABLE)
+        fprintf(f, " fill=\"url(#ps-hatch-y%zu)\"", k);
+    fputs("/>", f);
+}
+
+static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
+{
+    const ps_yield *y = &fr->yield;
+    const double W = 700, H = 100, L = 12, PW = 400, T = 34, BH = 22;
+    char buf[240], label[80];
+    fit_label(label, sizeof label, fr->id, 40);
+    snprintf(buf, sizeof buf, "%s: verdicts of %zu sampled units (seed %lu)", label, y->samples, y->seed);
+    fprintf(f, "<figure class=\"family-yield\" data-family=\"");
+    h_text(f, fr->id);
+    fprintf(f, "\">\n");
+    svg_open_class(f, W, H, "family-yield", buf);
+    /* The hatch of not-stabilizable units; its id is unique in the page, one per family. */
+    fprintf(f, "<defs><pattern id=\"ps-hatch-y%zu\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
+               "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
+               "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" style=\"stroke:#000;stroke-width:2.5\"/></pattern></defs>\n",
+            k);
+    svg_text(f, 10, 16, "start", "title", 0, buf);
+    double x = L;
+    for (int v = 0; v < PS_VERDICT_COUNT; v++) {
+        double w = PW * (isfinite(y->frac[v]) ? y->frac[v] : 0);
+        if (y->count[v] == 0)
+            continue;
+        fprintf(f, "<g><title>%s: %zu units (%.1f %%, 95 %% Wilson %.1f .. %.1f %%)</title>", ps_verdict_name((ps_verdict)v),
+                y->count[v], 100 * y->frac[v], 100 * y->lo[v], 100 * y->hi[v]);
+        yield_rect(f, v, k, x, T, w, BH);
+        fputs("</g>\n", f);
+        x += w;
+    }
+    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, BH);
+    /* The passing share (clear and marginal: the first two segments) and its interval above the bar. */
+    double xp = L + PW * y->pass_frac, xl = L + PW * y->pass_lo, xh = L + PW * y->pass_hi;
+    svg_line(f, xp, T - 8, xp, T + BH, "halo");
+    svg_line(f, xp, T - 8, xp, T + BH, "limit");
+    svg_line(f, xl, T - 5, xh, T - 5, "limit");
+    svg_line(f, xl, T - 9, xl, T - 1, "");
+    svg_line(f, xh, T - 9, xh, T - 1, "");
+    for (int p = 0; p <= 100; p += 25) {
+        double xt = L + PW * p / 100.0;
+        svg_line(f, xt, T + BH, xt, T + BH + 4, "");
+        snprintf(buf, sizeof buf, "%d %%", p);
+        svg_text(f, xt, T + BH + 15, p == 0 ? "start" : p == 100 ? "end" : "middle", "small", 0, buf);
+    }
+    snprintf(buf, sizeof buf, "passing %.1f %%", 100 * y->pass_frac);
+    svg_text(f, L + PW + 12, T + 9, "start", "title", 0, buf);
+    snprintf(buf, sizeof buf, "95 %% interval %.1f .. %.1f %% (Wilson)", 100 * y->pass_lo, 100 * y->pass_hi);
+    svg_text(f, L + PW + 12, T + 22, "start", "small", 0, buf);
+    double lx = L;
+    for (int v = 0; v < PS_VERDICT_COUNT; v++) {
+        if (y->count[v] == 0)
+            continue;
+        yield_rect(f, v, k, lx, H - 19, 14, 10);
+        fputc('\n', f);
+        snprintf(buf, sizeof buf, "%s %.1f %% (%zu)", ps_verdict_name((ps_verdict)v), 100 * y->frac[v], y->count[v]);
+        svg_text(f, lx + 18, H - 10, "start", "small", 0, buf);
+        lx += 30 + 5.6 * (double)strlen(buf);
+    }
+    fprintf(f, "</svg>\n<figcaption>Share of %zu units per verdict, the toleranced parameters drawn from one seeded "
+               "generator (seed %lu). Passing (clear or marginal): %.1f %% of units, 95 %% Wilson score interval "
+               "%.1f .. %.1f %% (the bracket above the bar).",
+            y->samples, y->seed, 100 * y->pass_frac, 100 * y->pass_lo, 100 * y->pass_hi);
+    if (y->culprit >= 0 && (size_t)y->culprit < fr->n_params) {
+        fprintf(f, " Failures are driven most by ");
+        h_text(f, fr->param[y->culprit].name);
+        fprintf(f, " (failing units %+.2f spreads from passing ones).", y->culprit_shift);
+    }
+    if (y->count[PS_VERDICT_UNREAD]) {
+        fprintf(f, " %zu units could not be evaluated; the first: ", y->count[PS_VERDICT_UNREAD]);
+        h_text(f, y->first_error);
+        fprintf(f, ".");
+    }
+    fprintf(f, "</figcaption>\n</figure>\n");
+}
+
+static void family_params(FILE *f, const ps_family_result *fr)
+{
+    fprintf(f, "<table class=\"family-params\">\n<thead><tr><th>Parameter</th><th>Nominal</th><th>Sweep</th>"
+               "<th>Tolerance</th></tr></thead>\n<tbody>\n");
+    for (size_t j = 0; j < fr->n_params; j++) {
+        const ps_fam_param *p = &fr->param[j];
+        fprintf(f, "<tr><td>");
+        h_text(f, p->name);
+        fprintf(f, "</td><td class=\"num\">");
+        h_num(f, p->nominal);
+        fprintf(f, "</td><td>");
+        if (p->n_sweep) {
+            double lo = INFINITY, hi = -INFINITY;
+            for (size_t i = 0; i < p->n_sweep; i++) {
+                lo = fmin(lo, p->sweep[i]);
+                hi = fmax(hi, p->sweep[i]);
+            }
+            fprintf(f, "%zu values, %.4g .. %.4g", p->n_sweep, lo, hi);
+        } else
+            fprintf(f, "not swept");
+        fprintf(f, "</td><td>");
+        if (p->tol == PS_TOL_NORMAL)
+            fprintf(f, "normal, sigma %.4g", p->tol_value);
+        else if (p->tol == PS_TOL_UNIFORM)
+            fprintf(f, "uniform, &plusmn;%.4g", p->tol_value);
+        else
+            fprintf(f, "none");
+        fprintf(f, "</td></tr>\n");
+    }
+    fprintf(f, "</tbody>\n</table>\n");
+}
+
+static void families(FILE *f, const ps_run *r)
+{
+    if (r->n_families == 0)
+        return;
+    fprintf(f, "<section id=\"families\">\n<h2>Families</h2>\n<p>Boundaries: one swept parameter at a time, the "
+               "others at nominal; the verdict at the sweep points, one change located by bisection. Yield: seeded "
+               "samples of the toleranced parameters, 95 %% Wilson intervals. The grid plants are in the ranking "
+               "above like any other plant.</p>\n");
+    for (size_t i = 0; i < r->n_families; i++) {
+        const ps_family_result *fr = &r->families[i];
+        fprintf(f, "<article class=\"family\" data-id=\"");
+        h_text(f, fr->id);
+        fprintf(f, "\">\n<h3>");
+        h_text(f, fr->id);
+        fprintf(f, "</h3>\n<p class=\"meta\">");
+        if (fr->note[0]) {
+            h_text(f, fr->note);
+            fprintf(f, ". ");
+        }
+        fprintf(f, "%zu grid plant%s; <code>", fr->grid, fr->grid == 1 ? "" : "s");
+        h_text(f, fr->file_index < r->n_catalogs ? r->catalogs[fr->file_index].file : "");
+        fprintf(f, ":%zu</code>.</p>\n", fr->line);
+        family_params(f, fr);
+        if (fr->n_bound == 0)
+            fprintf(f, "<p>No swept parameter: no boundary.</p>\n");
+        else
+            fprintf(f, "<div class=\"figs\">\n");
+        for (size_t j = 0; j < fr->n_bound; j++) {
+            const ps_boundary *b = &fr->bound[j];
+            if (b->state == PS_BOUND_ERROR || b->n_curve == 0) {
+                /* Past the failing point the curve holds no values: words only. */
+                char text[700];
+                ps_boundary_text(fr, b, text, sizeof text);
+                fprintf(f, "<p class=\"study-error\">Boundary: ");
+                h_text(f, text);
+                fprintf(f, ".</p>\n");
+                continue;
+            }
+            boundary_figure(f, r, fr, b);
+        }
+        if (fr->n_bound)
+            fprintf(f, "</div>\n");
+        if (fr->has_yield)
+            yield_figure(f, fr, i);
+        fprintf(f, "</article>\n");
+    }
+    fprintf(f, "</section>\n");
+}
+
 /* ---- figure (c): Ms floor against the band edge ---- */
 
 static void band_figure(FILE *f, const ps_summary *s)
@@ -721,6 +1157,7 @@ ps_status ps_write_html(FILE *f, const ps_run *r)
     ranking(f, r);
     severity_figure(f, r);
     changes(f, r);
+    families(f, r);
     band_figures(f, r);
     requirements(f, r);
     meanings(f);

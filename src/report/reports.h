@@ -36,6 +36,7 @@ void ps_requirements_text(const ps_summary *s, char *buf, size_t n);
 /* Writers. Each returns PS_OK or PS_ERR_IO (PS_ERR_NOMEM for JSON). */
 ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour);
 ps_status ps_write_csv(FILE *f, const ps_run *r);
+ps_status ps_write_families_csv(FILE *f, const ps_run *r); /* one row per boundary and yield study */
 ps_status ps_write_json(FILE *f, const ps_run *r);
 ps_status ps_write_markdown(FILE *f, const ps_run *r);
 ps_status ps_write_html(FILE *f, const ps_run *r);

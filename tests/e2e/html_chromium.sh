@@ -1,7 +1,9 @@
 #!/bin/sh
 # html_chromium.sh - the HTML screening report as a browser sees it: headless
 # Chromium renders it to PNG and PDF and dumps the DOM, whose plant rows must
-# match the CSV report one for one.
+# match the CSV report one for one; with the JSON report beside the CSV, the
+# family section holds one boundary figure per evaluated boundary and one
+# yield bar per yield study.
 # Usage: html_chromium.sh PLANTSIEVE CATALOG   (runs plantsieve screen)
 #        html_chromium.sh --report HTML CSV    (checks an existing pair)
 # Exit 0 pass, 1 fail, 77 skipped (no Chromium, or no Debian python3).
@@ -81,11 +83,12 @@ render "print to PDF" --no-pdf-header-footer --print-to-pdf="$tmp/report.pdf"
 render "dump DOM" --dump-dom
 cp "$tmp/chromium.out" "$tmp/dom.html"
 
-"$py" - "$tmp/report.png" "$tmp/report.pdf" "$tmp/dom.html" "$csv" <<'PY'
-import csv, os, re, struct, sys
+json=${csv%.csv}.json
+"$py" - "$tmp/report.png" "$tmp/report.pdf" "$tmp/dom.html" "$csv" "$json" <<'PY'
+import csv, json, os, re, struct, sys
 from html.parser import HTMLParser
 
-png, pdf, dom, csv_path = sys.argv[1:5]
+png, pdf, dom, csv_path, json_path = sys.argv[1:6]
 failed = False
 def check(cond, what):
     global failed
@@ -122,9 +125,18 @@ class Rows(HTMLParser):
     def __init__(self):
         super().__init__()
         self.ids, self.svgs, self.caution, self.scripts = [], 0, False, 0
+        self.families, self.bound_svgs, self.yield_svgs, self.figure = False, [], [], None
     def handle_starttag(self, tag, attrs):
         a = dict(attrs)
         classes = (a.get("class") or "").split()
+        if tag == "section" and a.get("id") == "families":
+            self.families = True
+        if tag == "figure" and "family-boundary" in classes:
+            self.figure = (a.get("data-family"), a.get("data-parameter"))
+        if tag == "svg" and "family-boundary" in classes:
+            self.bound_svgs.append(self.figure)
+        if tag == "svg" and "family-yield" in classes:
+            self.yield_svgs.append(a.get("aria-label"))
         if tag == "tr" and "plant-row" in classes:
             self.ids.append(a.get("data-id"))
         if tag == "svg":
@@ -145,6 +157,16 @@ check(parser.ids == ids, "DOM plant rows in CSV rank order")
 check(parser.caution, "caution section present")
 check(parser.svgs >= 1, "figures present (%d svg)" % parser.svgs)
 check(parser.scripts == 0, "no script")
+
+# Families (when the JSON report is at hand): one svg.family-boundary per
+# boundary that could be evaluated, in catalog order, one svg.family-yield per yield.
+if os.path.exists(json_path):
+    fams = json.load(open(json_path, encoding="utf-8")).get("families") or []
+    want = [(f["id"], b["parameter"]) for f in fams for b in f["boundaries"] if b["state"] != "evaluation-error"]
+    yields = sum(1 for f in fams if f.get("yield"))
+    check(parser.families == bool(fams), "families section %s" % ("present" if fams else "absent"))
+    check(parser.bound_svgs == want, "DOM boundary figures %s == JSON boundaries %s" % (parser.bound_svgs, want))
+    check(len(parser.yield_svgs) == yields, "DOM yield bars %d == JSON yield studies %d" % (len(parser.yield_svgs), yields))
 sys.exit(1 if failed else 0)
 PY
 [ $? -eq 0 ] || fail=1

@@ -122,6 +122,18 @@ for t in 2 5; do
     done
 done
 "$ps" screen --threads 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --threads 0 is a usage error" 2 $?
+# Families: a CSV of the studies next to the other reports, only when the run has families.
+"$py" - "$tmp/thr1/demo-variants.screen.families.csv" "$tmp/thr1/demo-variants.screen.json" <<'PY'
+import csv, json, sys
+rows = list(csv.DictReader(open(sys.argv[1], newline="")))
+fams = json.load(open(sys.argv[2]))["families"]
+want = sum(len(f["boundaries"]) + (f["yield"] is not None) for f in fams)
+assert len(rows) == want and want >= 2, (len(rows), want)
+b = [r for r in rows if r["study"] == "boundary"][0]
+assert abs(float(b["value"]) - fams[0]["boundaries"][0]["value"]) <= 1e-8 * abs(float(b["value"])), b
+PY
+check "screen: families CSV parsed back, one row per study" 0 $?
+[ -e "$tmp/scr/closed-form.screen.families.csv" ]; check "screen: no families CSV without families" 1 $?
 ls -A "$tmp/scr" | grep -q '^\.' ; check "screen: no temporary file left" 1 $?
 "$py" -c '
 import csv, json, math, sys

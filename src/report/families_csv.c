@@ -1,0 +1,123 @@
+/* families_csv.c - the family studies of a screening run as one RFC 4180
+ * table: one row per boundary (one swept parameter) and per yield study. */
+#include "report/reports.h"
+
+#include <assert.h>
+#include <math.h>
+#include <stdbool.h>
+#include <string.h>
+
+#include "screen/study.h"
+
+/* Cell conventions are those of the plant CSV (csv_report.c): numbers as
+ * "%.9g" in the C locale, an EMPTY cell where the column does not apply to
+ * the study (a boundary has no samples, a yield no parameter) or has no
+ * finite value; CRLF line ends; a field holding a comma, a double quote, CR
+ * or LF is quoted with its quotes doubled. The helpers there are private to
+ * that file, so the few needed here are repeated. */
+
+static const char *const cols[] = {
+    "family",           "study",   "parameter", "state",         "value",        "passes",
+    "ms_floor_passing", "ms_floor_failing",     "samples",       "seed",         "pass_fraction",
+    "pass_ci_low",      "pass_ci_high",         "most_responsible", "shift_in_spreads",
+};
+enum { N_COLS = sizeof cols / sizeof cols[0] };
+
+typedef struct fam_csv {
+    FILE *f;
+    size_t n_cells; /* cells written in the current row */
+} fam_csv;
+
+static void cell_text(fam_csv *o, const char *s)
+{
+    if (o->n_cells++ > 0)
+        fputc(',', o->f);
+    if (!s)
+        return;
+    if (strpbrk(s, ",\"\r\n") == NULL) {
+        fputs(s, o->f);
+        return;
+    }
+    fputc('"', o->f);
+    for (const char *c = s; *c; c++) {
+        if (*c == '"')
+            fputc('"', o->f);
+        fputc(*c, o->f);
+    }
+    fputc('"', o->f);
+}
+
+static void cell_num(fam_csv *o, double x)
+{
+    char buf[40];
+    if (!isfinite(x)) {
+        cell_text(o, NULL);
+        return;
+    }
+    snprintf(buf, sizeof buf, "%.9g", x);
+    cell_text(o, buf);
+}
+
+static void cell_unsigned(fam_csv *o, unsigned long long n)
+{
+    char buf[32];
+    snprintf(buf, sizeof buf, "%llu", n);
+    cell_text(o, buf);
+}
+
+static void row_end(fam_csv *o)
+{
+    assert(o->n_cells <= N_COLS); /* no row wider than the header */
+    while (o->n_cells < N_COLS)
+        cell_text(o, NULL);
+    fputs("\r\n", o->f);
+    o->n_cells = 0;
+}
+
+static void boundary_row(fam_csv *o, const ps_family_result *fr, const ps_boundary *b)
+{
+    bool found = b->state == PS_BOUND_FOUND;
+    cell_text(o, fr->id);
+    cell_text(o, "boundary");
+    cell_text(o, b->param < fr->n_params ? fr->param[b->param].name : NULL);
+    cell_text(o, ps_bound_state_name(b->state));
+    cell_num(o, found ? b->value : NAN);
+    cell_text(o, found ? (b->pass_below ? "below" : "above") : NULL);
+    cell_num(o, found ? b->ms_pass : NAN);
+    cell_num(o, found ? b->ms_fail : NAN);
+    row_end(o);
+}
+
+static void yield_row(fam_csv *o, const ps_family_result *fr)
+{
+    const ps_yield *y = &fr->yield;
+    bool culprit = y->culprit >= 0 && (size_t)y->culprit < fr->n_params;
+    cell_text(o, fr->id);
+    cell_text(o, "yield");
+    for (int i = 0; i < 6; i++) /* parameter .. ms_floor_failing: boundary columns */
+        cell_text(o, NULL);
+    cell_unsigned(o, y->samples);
+    cell_unsigned(o, y->seed);
+    cell_num(o, y->pass_frac);
+    cell_num(o, y->pass_lo);
+    cell_num(o, y->pass_hi);
+    cell_text(o, culprit ? fr->param[y->culprit].name : NULL);
+    cell_num(o, culprit ? y->culprit_shift : NAN);
+    row_end(o);
+}
+
+ps_status ps_write_families_csv(FILE *f, const ps_run *r)
+{
+    fam_csv o = {.f = f, .n_cells = 0};
+    for (size_t i = 0; i < N_COLS; i++)
+        cell_text(&o, cols[i]);
+    row_end(&o);
+    for (size_t i = 0; i < r->n_families; i++) {
+        const ps_family_result *fr = &r->families[i];
+        for (size_t j = 0; j < fr->n_bound; j++)
+            boundary_row(&o, fr, &fr->bound[j]);
+        if (fr->has_yield)
+            yield_row(&o, fr);
+    }
+    return ferror(f) ? PS_ERR_IO : PS_OK;
+}
