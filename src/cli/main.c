@@ -54,6 +54,8 @@ static const char usage_text[] =
     "  --threads N         assess plants on N threads (default: the online CPUs);\n"
     "                      the reports are the same for any N\n"
     "  --quiet             no progress line on stderr (shown only on a terminal)\n"
+    "  --memory-rows N     keep at most N plant summaries in memory (default 16384);\n"
+    "                      beyond, they go to a temporary file (about 3.4 kB each)\n"
     "survey options:\n"
     "  --json              write one JSON document to stdout instead of text\n"
     "  -h, --help          show this help and exit\n"
@@ -297,7 +299,7 @@ static int cmd_screen(int argc, char **argv)
 {
     const char *outdir = "reports";
     gate g = GATE_REDESIGN;
-    ps_screen_opts opt = {PS_MARGINAL_AT};
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0};
     bool files = true, dashdash = false, quiet = false;
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
     size_t threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1;
@@ -317,6 +319,16 @@ static int cmd_screen(int argc, char **argv)
             files = false;
         else if (strcmp(a, "--quiet") == 0)
             quiet = true;
+        else if (strcmp(a, "--memory-rows") == 0) {
+            char *end;
+            long m = i + 1 < argc ? strtol(argv[i + 1], &end, 10) : 0;
+            if (i + 1 >= argc || *end || m < 1) {
+                free(cats);
+                return usage_error("--memory-rows takes a whole number >= 1", i + 1 < argc ? argv[i + 1] : NULL);
+            }
+            opt.memory_rows = (size_t)m;
+            i++;
+        }
         else if (strcmp(a, "--threads") == 0) {
             char *end;
             long t = i + 1 < argc ? strtol(argv[i + 1], &end, 10) : 0;
@@ -379,7 +391,7 @@ static int cmd_screen(int argc, char **argv)
         progress_tick(&pg, true);
     ps_pool_free(c.pool);
     if (!c.ws || c.nomem) {
-        fputs("plantsieve: out of memory\n", stderr);
+        fputs("plantsieve: out of memory (or no room for the temporary summary file)\n", stderr);
         ps_screen_ws_free(c.ws);
         ps_run_free(&c.run);
         free(cats);
@@ -412,6 +424,11 @@ static int cmd_screen(int argc, char **argv)
                     io_failed = true;
                 }
             }
+    }
+    if (ps_run_failed(&c.run)) {
+        fputs("plantsieve: the temporary summary file could not be written or read: reports are incomplete\n",
+              stderr);
+        io_failed = true;
     }
     const size_t *pv = c.run.per_verdict;
     bool tripped = (g != GATE_NEVER && (pv[PS_VERDICT_REDESIGN] || pv[PS_VERDICT_UNSTABILIZABLE])) ||
@@ -534,7 +551,7 @@ static int cmd_explain(int argc, char **argv)
         if (argv[i][0] == '-' && argv[i][1] != '\0')
             return usage_error("unknown option", argv[i]);
     screen_ctx c = {0};
-    ps_screen_opts opt = {PS_MARGINAL_AT};
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0};
     ps_run_init(&c.run, &opt);
     c.only_id = argv[0];
     c.also = explain_one;

@@ -181,6 +181,6 @@ ps_status ps_write_csv(FILE *f, const ps_run *r)
     csv_out o = {.f = f, .n_cells = 0};
     header(&o);
     for (size_t i = 0; i < r->n_rows; i++)
-        plant_row(&o, r, &r->rows[i], i + 1);
+        plant_row(&o, r, ps_run_row(r, i), i + 1);
     return ferror(f) ? PS_ERR_IO : PS_OK;
 }

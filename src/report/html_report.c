@@ -12,6 +12,10 @@
 
 /* Write s escaped for HTML text and attribute values. Control characters
  * other than tab and newline become spaces (they are not allowed in HTML). */
+/* Figures per kind (severity bars, pole/zero maps, band curves): the worst
+ * plants first; a longer run's others are in the table, CSV and JSON. */
+enum { PS_HTML_FIGURES = 300 };
+
 static void h_text(FILE *f, const char *s)
 {
     if (!s)
@@ -222,7 +226,7 @@ static void ranking(FILE *f, const ps_run *r)
                "<th>Worst</th><th>Ms floor</th><th>Ms allowed</th><th>Mt floor</th><th>Mt allowed</th>"
                "<th>Limiting</th><th>Cause</th><th>Source</th></tr></thead>\n<tbody>\n");
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         bool unread = s->verdict == PS_VERDICT_UNREAD;
         fprintf(f, "<tr class=\"plant-row\" data-id=\"");
         h_text(f, s->id);
@@ -267,11 +271,13 @@ static void severity_figure(FILE *f, const ps_run *r)
     size_t n_bars = 0, n_errors = 0;
     double top = 1.25;
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict == PS_VERDICT_UNREAD) {
-            n_errors++;
+            n_errors += n_errors < PS_HTML_FIGURES;
             continue;
         }
+        if (n_bars == PS_HTML_FIGURES)
+            continue;
         n_bars++;
         if (s->verdict != PS_VERDICT_UNSTABILIZABLE && isfinite(s->severity) && s->severity > top)
             top = s->severity;
@@ -313,8 +319,8 @@ static void severity_figure(FILE *f, const ps_run *r)
             svg_text(f, XS(1.0) + 3, T - 13, "start", "small", 0, "allowed 1.00");
         }
         size_t row = 0;
-        for (size_t i = 0; i < r->n_rows; i++) {
-            const ps_summary *s = &r->rows[i];
+        for (size_t i = 0; i < r->n_rows && row < n_bars; i++) {
+            const ps_summary *s = ps_run_row(r, i);
             if (s->verdict == PS_VERDICT_UNREAD)
                 continue;
             double y = T + RH * (double)row++;
@@ -359,10 +365,12 @@ static void severity_figure(FILE *f, const ps_run *r)
              "severity: ln(floor) / ln(allowed), largest over Ms, Mt and effort (dimensionless)");
 #undef XS
     double y = plot_bottom + 52;
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+    size_t shown_errors = 0;
+    for (size_t i = 0; i < r->n_rows && shown_errors < n_errors; i++) {
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict != PS_VERDICT_UNREAD)
             continue;
+        shown_errors++;
         char label[80];
         fit_label(label, sizeof label, s->id[0] ? s->id : "(no id)", 40);
         snprintf(buf, sizeof buf, "input error, no bar: %s (line %zu)", label, s->err_line ? s->err_line : s->line);
@@ -373,8 +381,12 @@ static void severity_figure(FILE *f, const ps_run *r)
     fprintf(f, "<figcaption>Figure: severity of every screened plant, worst first. Severity 1 (solid line) is the "
                "allowed peak; from the dashed line on (%.2f) a plant is marginal. Bars: light grey clear, mid grey "
                "marginal, black redesign, hatched not stabilizable (drawn off-scale: no controller stabilizes it). "
-               "The axis ends at %.2f; longer bars are cut and marked off-scale. Input errors have no bar.</figcaption>\n",
+               "The axis ends at %.2f; longer bars are cut and marked off-scale. Input errors have no bar.",
             r->opt.marginal_at, top);
+    if (r->n_rows > n_bars + n_errors)
+        fprintf(f, " Only the %d worst plants are drawn; all %zu are in the ranking table.", PS_HTML_FIGURES,
+                r->n_rows);
+    fprintf(f, "</figcaption>\n");
     fprintf(f, "</section>\n");
 }
 
@@ -488,8 +500,9 @@ static void changes(FILE *f, const ps_run *r)
 {
     fprintf(f, "<section id=\"changes\">\n<h2>What must change</h2>\n");
     bool any = false;
+    size_t maps = 0;
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (!is_flagged(s))
             continue;
         any = true;
@@ -514,7 +527,10 @@ static void changes(FILE *f, const ps_run *r)
         if (!any_target)
             fprintf(f, "<li>no single change of pole, zero, delay or bandwidth applies</li>\n");
         fprintf(f, "</ul>\n");
-        pz_map(f, s);
+        if (maps++ < PS_HTML_FIGURES)
+            pz_map(f, s);
+        else
+            fprintf(f, "<p>(pole/zero map drawn for the %d worst flagged plants only)</p>\n", PS_HTML_FIGURES);
         fprintf(f, "</article>\n");
     }
     if (!any)
@@ -551,7 +567,7 @@ static double family_ms_allowed(const ps_run *r, const ps_family_result *fr, boo
 {
     size_t n = strlen(fr->id);
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict != PS_VERDICT_UNREAD && strncmp(s->id, fr->id, n) == 0 && s->id[n] == '[' &&
             isfinite(s->req.ms_allowed) && s->req.ms_allowed > 0) {
             *from_plant = true;
@@ -1079,16 +1095,21 @@ static void band_figure(FILE *f, const ps_summary *s)
 static void band_figures(FILE *f, const ps_run *r)
 {
     bool any = false;
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+    size_t drawn = 0;
+    for (size_t i = 0; i < r->n_rows && drawn < PS_HTML_FIGURES; i++) {
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict == PS_VERDICT_UNREAD || s->n_curve == 0)
             continue;
+        drawn++;
         if (!any)
             fprintf(f, "<section id=\"band\">\n<h2>Ms floor against band edge</h2>\n<div class=\"figs\">\n");
         any = true;
         band_figure(f, s);
     }
-    if (any)
+    if (any && drawn == PS_HTML_FIGURES && r->n_rows > drawn)
+        fprintf(f, "</div>\n<p>Drawn for the %d worst plants; every plant's curve is in the JSON report "
+                   "(band_curve).</p>\n</section>\n", PS_HTML_FIGURES);
+    else if (any)
         fprintf(f, "</div>\n</section>\n");
 }
 
@@ -1099,7 +1120,7 @@ static void requirements(FILE *f, const ps_run *r)
     fprintf(f, "<section id=\"requirements\">\n<h2>Requirements screened against</h2>\n");
     fprintf(f, "<table class=\"requirements\">\n<thead><tr><th>Plant</th><th>Requirements</th></tr></thead>\n<tbody>\n");
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict == PS_VERDICT_UNREAD)
             continue;
         char text[512];
@@ -1115,7 +1136,7 @@ static void requirements(FILE *f, const ps_run *r)
         return;
     fprintf(f, "<section id=\"errors\">\n<h2>Input errors</h2>\n<ul>\n");
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict != PS_VERDICT_UNREAD)
             continue;
         fprintf(f, "<li>");

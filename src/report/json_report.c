@@ -97,9 +97,26 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
     return j;
 }
 
+/* One plant object at depth 2 of the document: jansson's indented form,
+ * every line after the first shifted by 4 spaces (JSON strings hold no raw
+ * newline, so the split is safe). */
+static int put_indented(FILE *f, const char *text)
+{
+    for (const char *p = text; *p; p++) {
+        if (fputc(*p, f) == EOF)
+            return -1;
+        if (*p == '\n' && fputs("    ", f) == EOF)
+            return -1;
+    }
+    return 0;
+}
+
+/* The document is written as it would be dumped whole, but plant by plant:
+ * memory stays at one plant's JSON tree however long the run. */
 ps_status ps_write_json(FILE *f, const ps_run *r)
 {
-    json_t *cats = json_array(), *plants = json_array(), *per = json_object();
+    const size_t flags = JSON_INDENT(2) | JSON_REAL_PRECISION(15);
+    json_t *cats = json_array(), *per = json_object();
     for (size_t i = 0; i < r->n_catalogs; i++) {
         const ps_catalog_entry *c = &r->catalogs[i];
         json_t *cj = json_pack("{s:o,s:s}", "file", ps_json_str(c->file), "status", c->failed ? "failed" : "read");
@@ -108,8 +125,6 @@ ps_status ps_write_json(FILE *f, const ps_run *r)
                                                        (json_int_t)c->line, "column", (json_int_t)c->col));
         json_array_append_new(cats, cj);
     }
-    for (size_t i = 0; i < r->n_rows; i++)
-        json_array_append_new(plants, plant_json(r, &r->rows[i], i + 1));
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
         json_object_set_new(per, ps_verdict_name((ps_verdict)v), json_integer((json_int_t)r->per_verdict[v]));
     json_t *doc = json_pack("{s:i,s:s,s:{s:s,s:s},s:o,s:{s:o},s:{s:I,s:I,s:I,s:o},s:s,s:o}", "schema_version",
@@ -117,13 +132,34 @@ ps_status ps_write_json(FILE *f, const ps_run *r)
                             PS_VERSION, "catalogs", cats, "options", "marginal_at", ps_json_num(r->opt.marginal_at),
                             "counts", "entries", (json_int_t)r->counts.entries, "models",
                             (json_int_t)r->counts.models, "errors", (json_int_t)r->counts.errors, "per_verdict", per,
-                            "caution", ps_caution_text, "plants", plants);
+                            "caution", ps_caution_text, "plants", json_array());
     if (!doc)
         return PS_ERR_NOMEM;
     json_object_set_new(doc, "families", ps_json_families(r));
-    int rc = json_dumpf(doc, f, JSON_INDENT(2) | JSON_REAL_PRECISION(15));
+    char *text = json_dumps(doc, flags);
     json_decref(doc);
-    if (rc != 0 || fputc('\n', f) == EOF)
-        return PS_ERR_IO;
+    if (!text)
+        return PS_ERR_NOMEM;
+    static const char slot[] = "\"plants\": []";
+    char *mark = strstr(text, slot);
+    ps_status st = PS_OK;
+    if (!mark || fwrite(text, 1, (size_t)(mark - text) + sizeof slot - 2, f) != (size_t)(mark - text) + sizeof slot - 2)
+        st = mark ? PS_ERR_IO : PS_ERR_NOMEM;
+    for (size_t i = 0; st == PS_OK && i < r->n_rows; i++) {
+        json_t *pj = plant_json(r, ps_run_row(r, i), i + 1);
+        char *pt = pj ? json_dumps(pj, flags) : NULL;
+        json_decref(pj);
+        if (!pt)
+            st = PS_ERR_NOMEM;
+        else if (fputs(i ? ",\n    " : "\n    ", f) == EOF || put_indented(f, pt) != 0)
+            st = PS_ERR_IO;
+        free(pt);
+    }
+    if (st == PS_OK && ((r->n_rows && fputs("\n  ", f) == EOF) || fputs(mark + sizeof slot - 2, f) == EOF ||
+                        fputc('\n', f) == EOF))
+        st = PS_ERR_IO;
+    free(text);
+    if (st != PS_OK)
+        return st;
     return ferror(f) ? PS_ERR_IO : PS_OK;
 }

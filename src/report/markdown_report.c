@@ -97,7 +97,7 @@ static void ranked_table(FILE *f, const ps_run *r)
     fprintf(f, "| Rank | Plant | Verdict | Severity | Worst | Ms floor | Ms allowed | Mt floor | Mt allowed | Cause |\n");
     fprintf(f, "|---:|---|---|---:|---|---:|---:|---:|---:|---|\n");
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         bool unread = s->verdict == PS_VERDICT_UNREAD;
         fprintf(f, "| %zu | ", i + 1);
         md_cell(f, s->id);
@@ -123,7 +123,7 @@ static void redesign_list(FILE *f, const ps_run *r)
     fprintf(f, "## What must change\n\n");
     bool any = false;
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict != PS_VERDICT_REDESIGN && s->verdict != PS_VERDICT_UNSTABILIZABLE)
             continue;
         any = true;
@@ -157,7 +157,7 @@ static void requirements(FILE *f, const ps_run *r)
     fprintf(f, "## Requirements screened against\n\n");
     bool any_error = false;
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict == PS_VERDICT_UNREAD) {
             any_error = true;
             continue;
@@ -175,7 +175,7 @@ static void requirements(FILE *f, const ps_run *r)
         return;
     fprintf(f, "## Input errors\n\n");
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict != PS_VERDICT_UNREAD)
             continue;
         fprintf(f, "- ");

@@ -72,13 +72,13 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
 
     size_t idw = 5;
     for (size_t i = 0; i < r->n_rows; i++)
-        idw = strlen(r->rows[i].id) > idw ? strlen(r->rows[i].id) : idw;
+        idw = strlen(ps_run_row(r, i)->id) > idw ? strlen(ps_run_row(r, i)->id) : idw;
     if (idw > 40)
         idw = 40;
     fprintf(f, "%4s  %-*s  %-16s  %8s  %-6s  %9s  %9s  %9s  %9s\n", "rank", (int)idw, "plant", "verdict",
             "severity", "worst", "Ms floor", "Ms allow", "Mt floor", "Mt allow");
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         char sev[16], msf[16], msa[16], mtf[16], mta[16];
         num(sev, sizeof sev, s->severity);
         bool read = s->verdict != PS_VERDICT_UNREAD;
@@ -97,7 +97,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
         fputs("  none\n", f);
     char line[400];
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (!flagged(s->verdict))
             continue;
         fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
@@ -113,7 +113,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
     fputs("\nHeadroom of the plants that pass\n", f);
     size_t n_pass = 0;
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = &r->rows[i];
+        const ps_summary *s = ps_run_row(r, i);
         if (s->verdict != PS_VERDICT_CLEAR && s->verdict != PS_VERDICT_MARGINAL)
             continue;
         n_pass++;
@@ -130,7 +130,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
     if (r->per_verdict[PS_VERDICT_UNREAD]) {
         fprintf(f, "\nEntries that could not be read (%zu)\n", r->per_verdict[PS_VERDICT_UNREAD]);
         for (size_t i = 0; i < r->n_rows; i++) {
-            const ps_summary *s = &r->rows[i];
+            const ps_summary *s = ps_run_row(r, i);
             if (s->verdict == PS_VERDICT_UNREAD)
                 fprintf(f, "  %s:%zu:%zu: %s%s%s (field '%s')\n", r->catalogs[s->file_index].file, s->err_line,
                         s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text, s->err_field);

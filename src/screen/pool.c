@@ -22,7 +22,6 @@ struct ps_pool {
     size_t threads, n;
     job *jobs;
     ps_screen_ws *ws[PS_POOL_MAX_THREADS];
-    size_t base; /* first row of the chunk being assessed */
 };
 
 typedef struct worker {
@@ -70,7 +69,7 @@ static void *work(void *arg)
         job *jb = &p->jobs[j];
         ps_outcome o = {jb->file, &jb->p, jb->has_err ? NULL : &jb->an, jb->has_err ? NULL : &jb->fl,
                         jb->has_err ? &jb->err : NULL};
-        ps_screen_assess(p->ws[w->t], &o, &p->run->opt, &p->run->rows[p->base + j]);
+        ps_screen_assess(p->ws[w->t], &o, &p->run->opt, ps_run_stage(p->run, j));
     }
     return NULL;
 }
@@ -82,10 +81,10 @@ ps_status ps_pool_flush(ps_pool *p)
     ps_run *r = p->run;
     if (ps_run_reserve(r, p->n) != PS_OK)
         return PS_ERR_NOMEM;
-    p->base = r->n_rows;
     for (size_t j = 0; j < p->n; j++) {
-        r->rows[p->base + j].order = p->base + j;
-        r->rows[p->base + j].file_index = r->n_catalogs ? r->n_catalogs - 1 : 0;
+        ps_summary *s = ps_run_stage(r, j);
+        s->order = r->n_rows + j;
+        s->file_index = r->n_catalogs ? r->n_catalogs - 1 : 0;
     }
     worker w[PS_POOL_MAX_THREADS];
     pthread_t tid[PS_POOL_MAX_THREADS];
@@ -103,8 +102,7 @@ ps_status ps_pool_flush(ps_pool *p)
         else
             work(&w[t]);
     }
-    for (size_t j = 0; j < p->n; j++)
-        ps_run_commit(r);
+    ps_run_commit_n(r, p->n);
     p->n = 0;
     return PS_OK;
 }

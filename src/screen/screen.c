@@ -7,6 +7,8 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/types.h>
+#include <unistd.h>
 
 #include "limits/limits.h"
 
@@ -608,6 +610,11 @@ void ps_run_free(ps_run *r)
     free(r->catalogs);
     free(r->rows);
     free(r->families);
+    if (r->store) {
+        fclose(r->store->file);
+        free(r->store->keys);
+        free(r->store);
+    }
     memset(r, 0, sizeof *r);
 }
 
@@ -650,12 +657,12 @@ ps_status ps_run_add_catalog(ps_run *r, const char *file, const ps_diag *fdiag)
     return PS_OK;
 }
 
-ps_status ps_run_reserve(ps_run *r, size_t k)
+static ps_status grow_rows(ps_run *r, size_t need)
 {
-    if (r->n_rows + k <= r->cap_rows)
+    if (need <= r->cap_rows)
         return PS_OK;
     size_t cap = r->cap_rows ? r->cap_rows : 64;
-    while (cap < r->n_rows + k)
+    while (cap < need)
         cap *= 2;
     ps_summary *rows = realloc(r->rows, cap * sizeof *rows);
     if (!rows)
@@ -665,26 +672,113 @@ ps_status ps_run_reserve(ps_run *r, size_t k)
     return PS_OK;
 }
 
+static int rank_class(const ps_summary *s);
+
+/* Move every row to a temporary file (tmpfile: unlinked, gone on exit);
+ * rows becomes the staging area of the next commits. */
+static ps_status spill(ps_run *r)
+{
+    ps_run_store *st = calloc(1, sizeof *st);
+    if (!st)
+        return PS_ERR_NOMEM;
+    if (!(st->file = tmpfile())) {
+        free(st);
+        return PS_ERR_IO;
+    }
+    st->cap_keys = 2 * (r->n_rows + 1024);
+    if (!(st->keys = malloc(st->cap_keys * sizeof *st->keys))) {
+        fclose(st->file);
+        free(st);
+        return PS_ERR_NOMEM;
+    }
+    r->store = st;
+    if (fwrite(r->rows, sizeof *r->rows, r->n_rows, st->file) != r->n_rows)
+        st->failed = true;
+    for (size_t i = 0; i < r->n_rows; i++)
+        st->keys[i] = (ps_rank_key){r->rows[i].severity, r->rows[i].order, rank_class(&r->rows[i])};
+    return PS_OK;
+}
+
+ps_status ps_run_reserve(ps_run *r, size_t k)
+{
+    size_t limit = r->opt.memory_rows ? r->opt.memory_rows : PS_RUN_MEMORY_ROWS;
+    if (!r->store && r->n_rows + k > limit) {
+        ps_status s = spill(r);
+        if (s != PS_OK)
+            return s;
+    }
+    if (r->store) {
+        ps_run_store *st = r->store;
+        if (r->n_rows + k > st->cap_keys) {
+            size_t cap = 2 * (r->n_rows + k);
+            ps_rank_key *keys = realloc(st->keys, cap * sizeof *keys);
+            if (!keys)
+                return PS_ERR_NOMEM;
+            st->keys = keys;
+            st->cap_keys = cap;
+        }
+        return grow_rows(r, k);
+    }
+    return grow_rows(r, r->n_rows + k);
+}
+
+ps_summary *ps_run_stage(ps_run *r, size_t j)
+{
+    return r->store ? &r->rows[j] : &r->rows[r->n_rows + j];
+}
+
 ps_summary *ps_run_next(ps_run *r)
 {
-    if (r->n_rows == r->cap_rows) {
-        size_t cap = r->cap_rows ? 2 * r->cap_rows : 64;
-        ps_summary *rows = realloc(r->rows, cap * sizeof *rows);
-        if (!rows)
-            return NULL;
-        r->rows = rows;
-        r->cap_rows = cap;
-    }
-    ps_summary *s = &r->rows[r->n_rows];
+    if (ps_run_reserve(r, 1) != PS_OK)
+        return NULL;
+    ps_summary *s = ps_run_stage(r, 0);
     s->order = r->n_rows;
     s->file_index = r->n_catalogs ? r->n_catalogs - 1 : 0;
     return s;
 }
 
+void ps_run_commit_n(ps_run *r, size_t k)
+{
+    for (size_t j = 0; j < k; j++) {
+        ps_summary *s = r->store ? &r->rows[j] : &r->rows[r->n_rows];
+        r->per_verdict[s->verdict]++;
+        if (r->store) {
+            ps_run_store *st = r->store;
+            st->keys[r->n_rows] = (ps_rank_key){s->severity, s->order, rank_class(s)};
+            if (fwrite(s, sizeof *s, 1, st->file) != 1)
+                st->failed = true;
+        }
+        r->n_rows++;
+    }
+}
+
 void ps_run_commit(ps_run *r)
 {
-    ps_summary *s = &r->rows[r->n_rows++];
-    r->per_verdict[s->verdict]++;
+    ps_run_commit_n(r, 1);
+}
+
+const ps_summary *ps_run_row(const ps_run *r, size_t i)
+{
+    ps_run_store *st = r->store;
+    if (!st)
+        return &r->rows[i];
+    ps_summary *s = &st->ring[st->ring_pos];
+    st->ring_pos = (st->ring_pos + 1) % PS_RUN_RING;
+    off_t at = (off_t)(st->keys[i].order * sizeof *s);
+    if (pread(fileno(st->file), s, sizeof *s, at) != (ssize_t)sizeof *s) {
+        st->failed = true;
+        memset(s, 0, sizeof *s);
+        snprintf(s->id, sizeof s->id, "(row %zu lost: spill file unreadable)", i);
+        s->verdict = PS_VERDICT_UNREAD;
+        s->worst = "none";
+        s->fl.limiting = "none";
+    }
+    return s;
+}
+
+bool ps_run_failed(const ps_run *r)
+{
+    return r->store && r->store->failed;
 }
 
 /* Rank key: 0 not stabilizable, 1 screened (by severity), 2 input error. */
@@ -704,8 +798,23 @@ static int by_rank(const void *a, const void *b)
     return x->order < y->order ? -1 : x->order > y->order;
 }
 
+static int by_key(const void *a, const void *b)
+{
+    const ps_rank_key *x = a, *y = b;
+    if (x->cls != y->cls)
+        return x->cls < y->cls ? -1 : 1;
+    if (x->cls == 1 && x->severity != y->severity)
+        return x->severity > y->severity ? -1 : 1;
+    return x->order < y->order ? -1 : x->order > y->order;
+}
+
 void ps_run_rank(ps_run *r)
 {
-    if (r->n_rows > 1)
+    if (r->store) {
+        if (r->n_rows > 1)
+            qsort(r->store->keys, r->n_rows, sizeof *r->store->keys, by_key);
+        if (fflush(r->store->file) != 0) /* ps_run_row reads with pread from here on */
+            r->store->failed = true;
+    } else if (r->n_rows > 1)
         qsort(r->rows, r->n_rows, sizeof *r->rows, by_rank);
 }

@@ -7,6 +7,7 @@
 
 #include <stdbool.h>
 #include <stddef.h>
+#include <stdio.h>
 
 #include "batch/batch.h"
 #include "limits/floors.h"
@@ -96,6 +97,7 @@ typedef struct ps_summary {
 
 typedef struct ps_screen_opts {
     double marginal_at;         /* default PS_MARGINAL_AT */
+    size_t memory_rows;         /* summaries kept in memory before the run uses its file; 0: PS_RUN_MEMORY_ROWS */
 } ps_screen_opts;
 
 typedef struct ps_screen_ws ps_screen_ws;
@@ -130,12 +132,32 @@ typedef struct ps_catalog_entry {
     char *error;
 } ps_catalog_entry;
 
+/* Rows kept in memory; beyond this a run moves its summaries to a
+ * temporary file (deleted on exit) and keeps a 24-byte rank key per plant. */
+enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8 };
+
+typedef struct ps_rank_key {
+    double severity;
+    size_t order;               /* arrival position = record number in the file */
+    int cls;                    /* 0 not stabilizable, 1 screened, 2 input error */
+} ps_rank_key;
+
+typedef struct ps_run_store {
+    FILE *file;                 /* NULL while every row is in memory */
+    ps_rank_key *keys;          /* one per row (spilled runs), ranked by ps_run_rank */
+    size_t cap_keys;
+    ps_summary ring[PS_RUN_RING]; /* rows read back for ps_run_row */
+    size_t ring_pos;
+    bool failed;                /* a write or read of the file failed */
+} ps_run_store;
+
 typedef struct ps_run {
     ps_screen_opts opt;
     ps_catalog_entry *catalogs;
     size_t n_catalogs, cap_catalogs;
-    ps_summary *rows;           /* after ps_run_rank: worst first */
+    ps_summary *rows;           /* in memory: every row (after ps_run_rank worst first); spilled: staging */
     size_t n_rows, cap_rows;
+    ps_run_store *store;
     struct ps_family_result *families; /* boundary and yield studies, catalog order */
     size_t n_families, cap_families;
     size_t per_verdict[PS_VERDICT_COUNT];
@@ -151,8 +173,16 @@ ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag);
 /* Room for the next summary (NULL on no memory); ps_run_commit keeps it. */
 ps_summary *ps_run_next(ps_run *r);
 void ps_run_commit(ps_run *r);
-/* Room for k more summaries (rows[n_rows .. n_rows + k)). */
+/* Room for k more summaries, filled through ps_run_stage(r, 0 .. k-1) and
+ * kept in that order by ps_run_commit_n(r, k). May move the run to its file. */
 ps_status ps_run_reserve(ps_run *r, size_t k);
+ps_summary *ps_run_stage(ps_run *r, size_t j);
+void ps_run_commit_n(ps_run *r, size_t k);
+/* Row i (ranked after ps_run_rank). In a spilled run the pointer is valid
+ * for the next PS_RUN_RING - 1 calls. */
+const ps_summary *ps_run_row(const ps_run *r, size_t i);
+/* A spill file could not be written or read: the reports are incomplete. */
+bool ps_run_failed(const ps_run *r);
 /* Rank: not stabilizable first, then severity descending, ties by catalog
  * order; input errors last in catalog order. Deterministic. */
 void ps_run_rank(ps_run *r);

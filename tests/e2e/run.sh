@@ -122,6 +122,14 @@ for t in 2 5; do
     done
 done
 "$ps" screen --threads 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --threads 0 is a usage error" 2 $?
+# Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte.
+"$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
+check "screen --memory-rows 3" 0 $?
+cmp -s "$tmp/thr1.out" "$tmp/spill.out"; check "screen: stdout same with summaries on file" 0 $?
+for ext in txt csv json md html families.csv; do
+    cmp -s "$tmp/thr1/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen.$ext"
+    check "screen: $ext same with summaries on file" 0 $?
+done
 # Families: a CSV of the studies next to the other reports, only when the run has families.
 "$py" - "$tmp/thr1/demo-variants.screen.families.csv" "$tmp/thr1/demo-variants.screen.json" <<'PY'
 import csv, json, sys
