@@ -266,7 +266,10 @@ ps_status ps_family_parse(ps_family *fam, const ps_ynode *node, const ps_plant *
         snprintf(fam->id, sizeof fam->id, "%s", id->text);
     if (!is_scalar(id) || id->text[0] == '\0')
         return fail(d, node, "id", "family: an id is needed");
-    if (parse_params(fam, params ? params : node, d) != PS_OK)
+    if (!params)
+        return fail(d, node, "parameters", "family '%s': 'parameters' is missing (a mapping of names to values)",
+                    fam->id);
+    if (parse_params(fam, params, d) != PS_OK)
         return PS_ERR_INPUT;
     const ps_ynode *yield = NULL;
     bool model = false;

@@ -142,6 +142,15 @@ assert abs(float(b["value"]) - fams[0]["boundaries"][0]["value"]) <= 1e-8 * abs(
 PY
 check "screen: families CSV parsed back, one row per study" 0 $?
 [ -e "$tmp/scr/closed-form.screen.families.csv" ]; check "screen: no families CSV without families" 1 $?
+# Broken families: each one an entry error naming line, column and what was expected; the rest screened.
+"$ps" screen --no-files --gate never "$src/tests/data/e2e/bad-families.yaml" >"$tmp/out" 2>"$tmp/err"
+check "screen: broken families are entry errors (exit 3)" 3 $?
+contains "family: missing parameters" "$tmp/err" "bad-families.yaml:8:5: plant 'no-params': family 'no-params': 'parameters' is missing"
+contains "family: sweep order" "$tmp/err" "plant 'bad-sweep': sweep of 'a': expected from < to"
+contains "family: assignment refused with its position" "$tmp/err" "in \"a=5\" at character 2"
+contains "family: invalid operation names the values" "$tmp/err" "plant 'sqrtneg[a=-1]': poles: \"-sqrt(a)\": invalid operation"
+contains "family: the good grid point still screened" "$tmp/out" "sqrtneg[a=1]"
+contains "family: the plain plant still screened" "$tmp/out" "ok "
 ls -A "$tmp/scr" | grep -q '^\.' ; check "screen: no temporary file left" 1 $?
 "$py" -c '
 import csv, json, math, sys
