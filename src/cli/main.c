@@ -54,6 +54,8 @@ static const char usage_text[] =
     "  --threads N         assess plants on N threads (default: the online CPUs);\n"
     "                      the reports are the same for any N\n"
     "  --quiet             no progress line on stderr (shown only on a terminal)\n"
+    "  --detail WHICH      redesign targets and band curves for all plants (default),\n"
+    "                      flagged ones (marginal, redesign) or none: faster on large runs\n"
     "  --memory-rows N     keep at most N plant summaries in memory (default 16384);\n"
     "                      beyond, they go to a temporary file (about 3.4 kB each)\n"
     "survey options:\n"
@@ -299,7 +301,7 @@ static int cmd_screen(int argc, char **argv)
 {
     const char *outdir = "reports";
     gate g = GATE_REDESIGN;
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0};
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL};
     bool files = true, dashdash = false, quiet = false;
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
     size_t threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1;
@@ -319,7 +321,19 @@ static int cmd_screen(int argc, char **argv)
             files = false;
         else if (strcmp(a, "--quiet") == 0)
             quiet = true;
-        else if (strcmp(a, "--memory-rows") == 0) {
+        else if (strcmp(a, "--detail") == 0) {
+            const char *v = i + 1 < argc ? argv[++i] : "";
+            if (strcmp(v, "all") == 0)
+                opt.detail = PS_DETAIL_ALL;
+            else if (strcmp(v, "flagged") == 0)
+                opt.detail = PS_DETAIL_FLAGGED;
+            else if (strcmp(v, "none") == 0)
+                opt.detail = PS_DETAIL_NONE;
+            else {
+                free(cats);
+                return usage_error("--detail takes all, flagged or none", v);
+            }
+        } else if (strcmp(a, "--memory-rows") == 0) {
             char *end;
             long m = i + 1 < argc ? strtol(argv[i + 1], &end, 10) : 0;
             if (i + 1 >= argc || *end || m < 1) {
@@ -551,7 +565,7 @@ static int cmd_explain(int argc, char **argv)
         if (argv[i][0] == '-' && argv[i][1] != '\0')
             return usage_error("unknown option", argv[i]);
     screen_ctx c = {0};
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0};
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL};
     ps_run_init(&c.run, &opt);
     c.only_id = argv[0];
     c.also = explain_one;

@@ -580,6 +580,15 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
         }
         return;
     }
+    bool flagged = s->verdict == PS_VERDICT_MARGINAL || s->verdict == PS_VERDICT_REDESIGN;
+    if (opt->detail == PS_DETAIL_NONE || (opt->detail == PS_DETAIL_FLAGGED && !flagged)) {
+        for (int k = 0; k < PS_TARGET_COUNT; k++) {
+            s->target[k] = (ps_target){.state = PS_TARGET_NA, .limit = NAN, .now = NAN};
+            snprintf(s->target[k].why, sizeof s->target[k].why, "not computed (--detail %s)",
+                     opt->detail == PS_DETAIL_NONE ? "none" : "flagged");
+        }
+        return;
+    }
     targets(ws, an, q, s);
     band_curve(ws, an, q, s);
 }

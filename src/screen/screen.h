@@ -95,9 +95,15 @@ typedef struct ps_summary {
     char err_text[PS_DIAG_TEXT];
 } ps_summary;
 
+/* Redesign targets and the band curve cost about 100 floor evaluations a
+ * plant; a large run may keep them for the flagged plants (marginal,
+ * redesign) or drop them. */
+typedef enum ps_detail { PS_DETAIL_ALL = 0, PS_DETAIL_FLAGGED, PS_DETAIL_NONE } ps_detail;
+
 typedef struct ps_screen_opts {
     double marginal_at;         /* default PS_MARGINAL_AT */
     size_t memory_rows;         /* summaries kept in memory before the run uses its file; 0: PS_RUN_MEMORY_ROWS */
+    ps_detail detail;           /* which plants get redesign targets and the Ms-vs-band curve */
 } ps_screen_opts;
 
 typedef struct ps_screen_ws ps_screen_ws;

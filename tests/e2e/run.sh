@@ -122,6 +122,19 @@ for t in 2 5; do
     done
 done
 "$ps" screen --threads 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --threads 0 is a usage error" 2 $?
+# --detail: verdicts and ranking unchanged; targets only where asked.
+"$ps" screen --detail none -o "$tmp/dnone" --gate never "$src/catalogs/demo-variants.yaml" >/dev/null 2>&1
+check "screen --detail none" 0 $?
+"$py" - "$tmp/thr1/demo-variants.screen.json" "$tmp/dnone/demo-variants.screen.json" <<'PY'
+import json, sys
+a, b = (json.load(open(p)) for p in sys.argv[1:3])
+ka = [(p["id"], p["verdict"], p["severity"]) for p in a["plants"]]
+kb = [(p["id"], p["verdict"], p["severity"]) for p in b["plants"]]
+assert ka == kb, "ranking changed with --detail none"
+assert all(t["state"] == "not-applicable" for p in b["plants"] for t in p["targets"].values()), "targets left"
+PY
+check "screen: --detail none keeps verdicts and ranking, drops targets" 0 $?
+"$ps" screen --detail some --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: bad --detail is a usage error" 2 $?
 # Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte.
 "$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
 check "screen --memory-rows 3" 0 $?
