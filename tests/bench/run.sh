@@ -1,0 +1,266 @@
+#!/usr/bin/env bash
+# Throughput benchmark of plantsieve (not a ctest test): tests/bench/run.sh [SIZES...]
+#
+# For each size N (default 10000 100000 1000000): generate a catalog with
+# gen_catalog.py (cached outside the repository), then measure side by side,
+# REPS times each (median wall time, peak RSS = largest of the runs):
+#   read    plantsieve read CAT                       (parse only)
+#   screen  plantsieve screen --no-files --gate never CAT   (full screening)
+#   survey  plantsieve survey CAT > /dev/null         (floors, no targets)
+#   numpy   np_floors.py CAT                          (vectorised baseline; compute and total)
+# For N above NUMPY_SUBSET, numpy runs on the first NUMPY_SUBSET plants (the
+# smaller catalog is a prefix of the larger one) and is extrapolated linearly
+# when the full run would exceed NUMPY_BUDGET seconds; the table says so.
+#
+# Environment: PLANTSIEVE (binary; default build/plantsieve, then
+# ../build-bench/plantsieve), BENCH_DIR (cache, default $TMPDIR/plantsieve-bench),
+# SEED (1), REPS (3), LARGE_AT (1000000) and REPS_LARGE (1): repetitions from
+# that size on, NUMPY_SUBSET (100000), NUMPY_BUDGET (600 s), NUMPY=0 skips numpy.
+set -euo pipefail
+
+HERE=$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)
+ROOT=$(cd "$HERE/../.." && pwd)
+if [[ -z "${PLANTSIEVE:-}" ]]; then
+    for cand in "$ROOT/build/plantsieve" "$ROOT/../build-bench/plantsieve"; do
+        [[ -x "$cand" ]] && PLANTSIEVE=$cand && break
+    done
+fi
+PS=${PLANTSIEVE:?set PLANTSIEVE to the plantsieve binary}
+PY=$(command -pv python3)          # Debian's python3 (numpy, scipy, PyYAML), not a pyenv shim
+BENCH_DIR=${BENCH_DIR:-${TMPDIR:-/tmp}/plantsieve-bench}
+SEED=${SEED:-1}
+REPS=${REPS:-3}
+LARGE_AT=${LARGE_AT:-1000000}
+REPS_LARGE=${REPS_LARGE:-1}
+NUMPY_SUBSET=${NUMPY_SUBSET:-100000}
+NUMPY_BUDGET=${NUMPY_BUDGET:-600}
+NUMPY=${NUMPY:-1}
+SIZES=("$@")
+[[ ${#SIZES[@]} -gt 0 ]] || SIZES=(10000 100000 1000000)
+
+mkdir -p "$BENCH_DIR"
+GENHASH=$(sha1sum "$HERE/gen_catalog.py" | cut -c1-10)
+LOG="$BENCH_DIR/run-$(date +%Y%m%d-%H%M%S).log"
+TMP=$(mktemp -d "$BENCH_DIR/tmp.XXXXXX")
+trap 'rm -rf "$TMP"' EXIT
+
+say() { printf '%s\n' "$*" | tee -a "$LOG"; }
+
+# Threads: only when this binary's help mentions the option.
+SCREEN_OPTS=(--no-files --gate never)
+THREADS_NOTE="single-threaded (no --threads in plantsieve --help)"
+if "$PS" --help 2>&1 | grep -q -- '--threads'; then
+    SCREEN_OPTS+=(--threads "$(nproc)")
+    THREADS_NOTE="screen --threads $(nproc)"
+fi
+
+catalog() { # N -> path (generated once per N, seed and generator version)
+    local n=$1 f="$BENCH_DIR/bench-$1-s$SEED-$GENHASH.yaml"
+    if [[ ! -s "$f" ]]; then
+        local t0=$(date +%s%N)
+        "$PY" "$HERE/gen_catalog.py" "$n" "${f%.yaml}.part.yaml" --seed "$SEED" >&2 || return 1
+        mv "${f%.yaml}.part.yaml" "$f"
+        say "# generated $f ($(du -m "$f" | cut -f1) MiB) in $(awk -v a="$t0" -v b="$(date +%s%N)" 'BEGIN {printf "%.1f", (b - a) / 1e9}') s" >&2
+    fi
+    printf '%s\n' "$f"
+}
+
+# run_timed OUT CMD... : wall seconds and peak RSS (KiB) of one run -> "$OUT.t"
+run_timed() {
+    local out=$1; shift
+    local t0 t1 rc=0
+    if [[ -x /usr/bin/time ]]; then
+        t0=$(date +%s%N)
+        /usr/bin/time -v -o "$out.tv" "$@" > "$out.stdout" 2> "$out.stderr" || rc=$?
+        t1=$(date +%s%N)
+        local rss=$(awk -F': ' '/Maximum resident set size/ {print $2}' "$out.tv")
+    else # python fallback: getrusage(RUSAGE_CHILDREN) around the child
+        t0=$(date +%s%N)
+        "$PY" -c 'import resource, subprocess, sys
+rc = subprocess.call(sys.argv[3:], stdout=open(sys.argv[1], "w"), stderr=open(sys.argv[2], "w"))
+print(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss, file=sys.stderr); sys.exit(rc)' \
+            "$out.stdout" "$out.stderr" "$@" 2> "$out.tv" || rc=$?
+        t1=$(date +%s%N)
+        local rss=$(tail -1 "$out.tv")
+    fi
+    echo "$(( (t1 - t0) / 1000 )) ${rss:-0} $rc" > "$out.t"     # microseconds, KiB, exit code
+}
+
+median() { sort -g | awk '{a[NR]=$1} END {if (NR == 0) print "nan"; else if (NR % 2) print a[(NR+1)/2]; else print (a[NR/2]+a[NR/2+1])/2}'; }
+maxof() { sort -g | tail -1; }
+
+# measure NAME N REPS OKCODES CMD... -> sets M_S (median s), M_RSS (MiB), M_RC
+measure() {
+    local name=$1 n=$2 reps=$3 ok=$4; shift 4
+    local times=() rss=() rc=0 r
+    for ((r = 1; r <= reps; r++)); do
+        run_timed "$TMP/$name-$n-$r" "$@"
+        read -r us kb code < "$TMP/$name-$n-$r.t"
+        times+=("$us"); rss+=("$kb")
+        if [[ " $ok " != *" $code "* ]]; then
+            rc=$code
+            say "# WARNING: $name N=$n run $r exited $code: $(head -c 300 "$TMP/$name-$n-$r.stderr")"
+        fi
+    done
+    M_S=$(printf '%s\n' "${times[@]}" | median | awk '{printf "%.6f", $1 / 1e6}')
+    M_RSS=$(printf '%s\n' "${rss[@]}" | maxof | awk '{printf "%.1f", $1 / 1024}')
+    M_RC=$rc
+    ALL_S=$(printf '%s\n' "${times[@]}" | awk '{printf "%s%.3f", (NR > 1 ? " " : ""), $1 / 1e6}')
+}
+
+# numpy on CAT: median compute and total over reps -> NP_C, NP_T, NP_RSS
+measure_numpy() {
+    local cat=$1 n=$2 reps=$3 r comp=() tot=() rss=()
+    for ((r = 1; r <= reps; r++)); do
+        run_timed "$TMP/numpy-$n-$r" "$PY" "$HERE/np_floors.py" "$cat"
+        read -r us kb code < "$TMP/numpy-$n-$r.t"
+        [[ $code == 0 ]] || say "# WARNING: numpy N=$n exited $code: $(tail -c 300 "$TMP/numpy-$n-$r.stderr")"
+        local line=$(grep '^NP_TIMES' "$TMP/numpy-$n-$r.stdout")
+        comp+=("$(sed -E 's/.* compute=([0-9.]+).*/\1/' <<< "$line")")
+        tot+=("$(awk -v us="$us" 'BEGIN {printf "%.6f", us / 1e6}')")    # process wall time
+        rss+=("$kb")
+        NP_LOAD=$(sed -E 's/.* load=([0-9.]+).*/\1/' <<< "$line")
+    done
+    NP_C=$(printf '%s\n' "${comp[@]}" | median)
+    NP_T=$(printf '%s\n' "${tot[@]}" | median)
+    NP_RSS=$(printf '%s\n' "${rss[@]}" | maxof | awk '{printf "%.1f", $1 / 1024}')
+    NP_SUMMARY=$(grep '^np_floors: verdicts' "$TMP/numpy-$n-1.stdout" | sed 's/^np_floors: //')
+}
+
+fmt_rate() { awk -v n="$1" -v s="$2" 'BEGIN { if (s > 0) printf "%.0f", n / s; else print "-" }'; }
+ratio() { awk -v a="$1" -v b="$2" 'BEGIN { if (b > 0 && a != "") printf "%.2f", a / b; else print "-" }'; }
+
+# ---------------------------------------------------------------- machine
+CPU=$(awk -F': ' '/^model name/ {print $2; exit}' /proc/cpuinfo)
+MEM=$(awk '/^MemTotal/ {printf "%.1f GiB", $2 / 1048576}' /proc/meminfo)
+say "plantsieve benchmark  $(date -u +%Y-%m-%dT%H:%M:%SZ)"
+say "machine: nproc $(nproc), CPU \"$CPU\", RAM $MEM, $(uname -sr); load average at start $(cut -d' ' -f1-3 /proc/loadavg)"
+say "binary:  $PS ($("$PS" --version 2>&1 | head -1), built $(date -u -r "$PS" +%Y-%m-%dT%H:%M:%SZ)); source HEAD $(git -C "$ROOT" log -1 --format='%h %cd' --date=iso-strict 2>/dev/null || echo '?'); $THREADS_NOTE"
+say "python:  $PY $("$PY" -c 'import numpy, scipy, yaml; print("numpy", numpy.__version__, "scipy", scipy.__version__, "PyYAML", yaml.__version__, "libyaml" if yaml.__with_libyaml__ else "pure-python")')"
+say "catalogs: gen_catalog.py seed $SEED (cache $BENCH_DIR); repetitions: $REPS (N >= $LARGE_AT: $REPS_LARGE), median wall time, peak RSS = max over runs"
+say ""
+
+declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN
+for n in "${SIZES[@]}"; do
+    cat=$(catalog "$n") || { say "generating the N=$n catalog failed"; exit 1; }
+    reps=$REPS; (( n >= LARGE_AT )) && reps=$REPS_LARGE
+    REPN[$n]=$reps
+    measure read "$n" "$reps" "0" "$PS" read "$cat"
+    got=$(grep -oE '[0-9]+ entries read' "$TMP/read-$n-1.stdout" | cut -d' ' -f1)
+    [[ "$got" == "$n" ]] || say "# WARNING: read counted ${got:-?} entries, expected $n"
+    R_S[$n]=$M_S; R_RSS[$n]=$M_RSS; say "# N=$n read   runs: $ALL_S s"
+    measure screen "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" "$cat"
+    SC_S[$n]=$M_S; SC_RSS[$n]=$M_RSS; say "# N=$n screen runs: $ALL_S s; $(grep -m1 '^Counts' "$TMP/screen-$n-1.stdout" || true)"
+    measure survey "$n" "$reps" "0 3" "$PS" survey "$cat"
+    SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; say "# N=$n survey runs: $ALL_S s"
+    if [[ $NUMPY == 1 ]]; then
+        if (( n > NUMPY_SUBSET )); then
+            sub=$(catalog "$NUMPY_SUBSET") || { say "generating the N=$NUMPY_SUBSET catalog failed"; exit 1; }
+            if [[ -n "${NPN[$NUMPY_SUBSET]:-}" && "${NPX[$NUMPY_SUBSET]}" == measured ]]; then
+                NP_C=${NPC[$NUMPY_SUBSET]}; NP_T=${NPT[$NUMPY_SUBSET]}; NP_RSS=${NPRSS[$NUMPY_SUBSET]}
+                say "# N=$n numpy: reusing the N=$NUMPY_SUBSET measurement as the subset"
+            else
+                measure_numpy "$sub" "$NUMPY_SUBSET" "$REPS"
+                say "# N=$n numpy subset N=$NUMPY_SUBSET runs: compute $NP_C s, total $NP_T s (medians); $NP_SUMMARY"
+            fi
+            est=$(awk -v t="$NP_T" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.0f", t * n / m}')
+            if (( est > NUMPY_BUDGET )); then
+                NPC[$n]=$(awk -v t="$NP_C" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
+                NPT[$n]=$(awk -v t="$NP_T" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
+                NPX[$n]="extrapolated x$((n / NUMPY_SUBSET)) from the first $NUMPY_SUBSET plants"
+                NPRSS[$n]="$NP_RSS@$NUMPY_SUBSET"
+                say "# N=$n numpy: full run estimated ${est} s > NUMPY_BUDGET ${NUMPY_BUDGET} s: extrapolated linearly from N=$NUMPY_SUBSET"
+            else
+                measure_numpy "$cat" "$n" "$reps"
+                NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
+                say "# N=$n numpy runs: compute $NP_C s, total $NP_T s (medians); $NP_SUMMARY"
+            fi
+        else
+            measure_numpy "$cat" "$n" "$reps"
+            NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
+            say "# N=$n numpy runs: compute $NP_C s, total $NP_T s (medians), YAML load $NP_LOAD s (last run); $NP_SUMMARY"
+        fi
+        NPN[$n]=$n
+    fi
+done
+
+# ---------------------------------------------------------------- tables
+say ""
+say "Throughput (plants/s, median of the runs), peak RSS and ratios of wall times"
+hdr=$(printf '%9s %4s | %9s %9s %9s | %7s %7s %7s | %11s %11s | %12s %12s %12s' \
+    N reps read screen survey "RSS rd" "RSS sc" "RSS sv" screen/read survey/read \
+    np/screen:c np/screen:t np/survey:c)
+say "$hdr"
+say "$(printf '%s' "$hdr" | tr -c '|' '-')"
+for n in "${SIZES[@]}"; do
+    mark=""; [[ "${NPX[$n]:-}" == extrapolated* ]] && mark="*"
+    say "$(printf '%9s %4s | %9s %9s %9s | %7s %7s %7s | %11s %11s | %12s %12s %12s' \
+        "$n" "${REPN[$n]}" "$(fmt_rate "$n" "${R_S[$n]}")" "$(fmt_rate "$n" "${SC_S[$n]}")" \
+        "$(fmt_rate "$n" "${SV_S[$n]}")" "${R_RSS[$n]}" "${SC_RSS[$n]}" "${SV_RSS[$n]}" \
+        "$(ratio "${SC_S[$n]}" "${R_S[$n]}")" "$(ratio "${SV_S[$n]}" "${R_S[$n]}")" \
+        "$(ratio "${NPC[$n]:-}" "${SC_S[$n]}")$mark" "$(ratio "${NPT[$n]:-}" "${SC_S[$n]}")$mark" \
+        "$(ratio "${NPC[$n]:-}" "${SV_S[$n]}")$mark")"
+done
+say ""
+say "Wall times (s; median) and numpy baseline"
+hdr=$(printf '%9s | %9s %9s %9s | %10s %10s %11s %10s | %s' N read screen survey "np compute" "np total" "np pl/s(c)" "np RSS" "numpy run")
+say "$hdr"
+say "$(printf '%s' "$hdr" | tr -c '|' '-')"
+for n in "${SIZES[@]}"; do
+    say "$(printf '%9s | %9.3f %9.3f %9.3f | %10s %10s %11s %10s | %s' "$n" "${R_S[$n]}" "${SC_S[$n]}" "${SV_S[$n]}" \
+        "$(awk -v x="${NPC[$n]:-}" 'BEGIN {if (x == "") print "-"; else printf "%.3f", x}')" \
+        "$(awk -v x="${NPT[$n]:-}" 'BEGIN {if (x == "") print "-"; else printf "%.3f", x}')" \
+        "$(fmt_rate "$n" "${NPC[$n]:-0}")" "${NPRSS[$n]:--}" "${NPX[$n]:-not run}")"
+done
+say ""
+say "Columns: RSS rd/sc/sv = peak RSS in MiB of read/screen/survey. np/screen:c = numpy compute time"
+say "(prepare + floors, no YAML load) over screen time, np/screen:t = numpy process total (imports +"
+say "YAML load + compute) over screen time, np/survey:c = numpy compute over survey time: each is how"
+say "many times faster plantsieve is (below 1: slower). numpy computes floors and severity only, no"
+say "redesign targets; screen also computes targets and the ranking. * = numpy extrapolated linearly."
+
+# ---------------------------------------------------------------- targets
+say ""
+say "Targets (misses are shown, not hidden)"
+last=${SIZES[${#SIZES[@]}-1]}; first=${SIZES[0]}
+for n in "${SIZES[@]}"; do (( n > last )) && last=$n; (( n < first )) && first=$n; done
+verdict() { awk -v v="$1" -v lim="$2" -v dir="$3" 'BEGIN {ok = (dir == "le") ? (v <= lim) : (v >= lim); print ok ? "PASS" : "MISS"}'; }
+big=""
+for n in "${SIZES[@]}"; do (( n >= 1000000 )) && big=$n && break; done
+if [[ -n "$big" ]]; then
+    r=$(ratio "${SC_S[$big]}" "${R_S[$big]}")
+    say "  screen within 2x of read time at N=$big: screen/read = $r  -> $(verdict "$r" 2 le)"
+    rss=$(printf '%s\n' "${R_RSS[$big]}" "${SC_RSS[$big]}" "${SV_RSS[$big]}" | maxof)
+    say "  peak RSS < 256 MiB at N=$big: read ${R_RSS[$big]}, screen ${SC_RSS[$big]}, survey ${SV_RSS[$big]} MiB  -> $(verdict "$rss" 255.999 le)"
+else
+    say "  screen within 2x of read time at 1M: not measured (largest N = $last; there screen/read = $(ratio "${SC_S[$last]}" "${R_S[$last]}"))"
+    say "  peak RSS < 256 MiB at 1M: not measured (largest N = $last: screen ${SC_RSS[$last]} MiB)"
+fi
+for n in "${SIZES[@]}"; do
+    [[ -n "${NPC[$n]:-}" ]] || continue
+    c=$(ratio "${NPC[$n]}" "${SC_S[$n]}"); t=$(ratio "${NPT[$n]}" "${SC_S[$n]}")
+    say "  >= 50x faster than numpy at N=$n: compute-only ${c}x -> $(verdict "$c" 50 ge), with YAML load ${t}x -> $(verdict "$t" 50 ge)$([[ "${NPX[$n]}" == measured ]] || echo " (numpy ${NPX[$n]})")"
+done
+if (( ${#SIZES[@]} > 1 )); then
+    for cmd in read screen survey; do
+        line=""; worst=1
+        for n in "${SIZES[@]}"; do
+            case $cmd in read) s=${R_S[$n]};; screen) s=${SC_S[$n]};; survey) s=${SV_S[$n]};; esac
+            case $cmd in read) s0=${R_S[$first]};; screen) s0=${SC_S[$first]};; survey) s0=${SV_S[$first]};; esac
+            g=$(awk -v s="$s" -v n="$n" -v s0="$s0" -v n0="$first" 'BEGIN {printf "%.2f", (s / n) / (s0 / n0)}')
+            line+=" N=$n ${g}"
+            worst=$(printf '%s\n' "$worst" "$g" | maxof)
+        done
+        say "  linear growth, $cmd: time per plant relative to N=$first:$line -> $(verdict "$worst" 1.25 le) (limit 1.25)"
+    done
+    prev=""
+    for n in "${SIZES[@]}"; do
+        if [[ -n "$prev" ]]; then
+            say "  screen RSS growth N=$prev..$n: $(awk -v a="${SC_RSS[$prev]}" -v b="${SC_RSS[$n]}" -v m="$prev" -v n="$n" 'BEGIN {printf "%.2f KiB per plant", (b - a) * 1024 / (n - m)}'); survey: $(awk -v a="${SV_RSS[$prev]}" -v b="${SV_RSS[$n]}" -v m="$prev" -v n="$n" 'BEGIN {printf "%.3f KiB per plant", (b - a) * 1024 / (n - m)}')"
+        fi
+        prev=$n
+    done
+fi
+say ""
+say "load average at the end: $(cut -d' ' -f1-3 /proc/loadavg) (other processes on this machine share its $(nproc) cores)"
+say "log: $LOG"
