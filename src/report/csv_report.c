@@ -1,6 +1,7 @@
 /* csv_report.c - the screening run as one RFC 4180 table: a header of stable
  * snake_case column names, then one row per plant in ranked order. */
 #include "report/reports.h"
+#include "report/csv_cells.h"
 
 #include <assert.h>
 #include <math.h>
@@ -19,40 +20,10 @@
  * Lines end in CRLF; a field holding a comma, a double quote, CR or LF is
  * quoted and its quotes doubled. */
 
-typedef struct csv_out {
-    FILE *f;
-    size_t n_cells; /* cells written in the current row */
-} csv_out;
+typedef ps_csv_out csv_out;
 
-static void cell_text(csv_out *o, const char *s)
-{
-    if (o->n_cells++ > 0)
-        fputc(',', o->f);
-    if (!s)
-        return;
-    if (strpbrk(s, ",\"\r\n") == NULL) {
-        fputs(s, o->f);
-        return;
-    }
-    fputc('"', o->f);
-    for (const char *c = s; *c; c++) {
-        if (*c == '"')
-            fputc('"', o->f);
-        fputc(*c, o->f);
-    }
-    fputc('"', o->f);
-}
-
-static void cell_num(csv_out *o, double x)
-{
-    char buf[40];
-    if (!isfinite(x)) {
-        cell_text(o, NULL);
-        return;
-    }
-    snprintf(buf, sizeof buf, "%.9g", x);
-    cell_text(o, buf);
-}
+static void cell_text(csv_out *o, const char *s) { ps_csv_text(o, s); }
+static void cell_num(csv_out *o, double x) { ps_csv_num(o, x); }
 
 static void cell_size(csv_out *o, size_t n)
 {

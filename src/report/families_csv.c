@@ -7,14 +7,14 @@
 #include <stdbool.h>
 #include <string.h>
 
+#include "report/csv_cells.h"
 #include "screen/study.h"
 
 /* Cell conventions are those of the plant CSV (csv_report.c): numbers as
  * "%.9g" in the C locale, an EMPTY cell where the column does not apply to
  * the study (a boundary has no samples, a yield no parameter) or has no
  * finite value; CRLF line ends; a field holding a comma, a double quote, CR
- * or LF is quoted with its quotes doubled. The helpers there are private to
- * that file, so the few needed here are repeated. */
+ * or LF is quoted with its quotes doubled (report/csv_cells.c). */
 
 static const char *const cols[] = {
     "family",           "study",   "parameter", "state",         "value",        "passes",
@@ -23,55 +23,16 @@ static const char *const cols[] = {
 };
 enum { N_COLS = sizeof cols / sizeof cols[0] };
 
-typedef struct fam_csv {
-    FILE *f;
-    size_t n_cells; /* cells written in the current row */
-} fam_csv;
+typedef ps_csv_out fam_csv;
 
-static void cell_text(fam_csv *o, const char *s)
-{
-    if (o->n_cells++ > 0)
-        fputc(',', o->f);
-    if (!s)
-        return;
-    if (strpbrk(s, ",\"\r\n") == NULL) {
-        fputs(s, o->f);
-        return;
-    }
-    fputc('"', o->f);
-    for (const char *c = s; *c; c++) {
-        if (*c == '"')
-            fputc('"', o->f);
-        fputc(*c, o->f);
-    }
-    fputc('"', o->f);
-}
-
-static void cell_num(fam_csv *o, double x)
-{
-    char buf[40];
-    if (!isfinite(x)) {
-        cell_text(o, NULL);
-        return;
-    }
-    snprintf(buf, sizeof buf, "%.9g", x);
-    cell_text(o, buf);
-}
-
-static void cell_unsigned(fam_csv *o, unsigned long long n)
-{
-    char buf[32];
-    snprintf(buf, sizeof buf, "%llu", n);
-    cell_text(o, buf);
-}
+static void cell_text(fam_csv *o, const char *s) { ps_csv_text(o, s); }
+static void cell_num(fam_csv *o, double x) { ps_csv_num(o, x); }
+static void cell_unsigned(fam_csv *o, unsigned long long n) { ps_csv_unsigned(o, n); }
 
 static void row_end(fam_csv *o)
 {
     assert(o->n_cells <= N_COLS); /* no row wider than the header */
-    while (o->n_cells < N_COLS)
-        cell_text(o, NULL);
-    fputs("\r\n", o->f);
-    o->n_cells = 0;
+    ps_csv_row_end(o, N_COLS);
 }
 
 static void boundary_row(fam_csv *o, const ps_family_result *fr, const ps_boundary *b)
