@@ -980,11 +980,14 @@ static void read_plant(yaml_rd *r, const ev *e)
         r->stop = true;
 }
 
-static bool read_plants(yaml_rd *r, const ev *v)
+/* A top-level sequence (plants or families): each item to read_item, in
+ * file order, until the end, a file-level error or the callback's stop. */
+static bool read_items(yaml_rd *r, const ev *v, const char *key, const char *what,
+                       void (*read_item)(yaml_rd *, const ev *))
 {
     if (v->type != EV_SEQ_START) {
-        fatal(r, PS_ERR_SYNTAX, v->line, v->col, "plants",
-              "plants must be a sequence of plant mappings, found %s", kind_name(v->type));
+        fatal(r, PS_ERR_SYNTAX, v->line, v->col, key, "%s must be a sequence of %s mappings, found %s", key, what,
+              kind_name(v->type));
         return false;
     }
     for (;;) {
@@ -993,10 +996,15 @@ static bool read_plants(yaml_rd *r, const ev *v)
             return false;
         if (e.type == EV_SEQ_END)
             return true;
-        read_plant(r, &e);
+        read_item(r, &e);
         if (r->status != PS_OK || r->stop)
             return false;
     }
+}
+
+static bool read_plants(yaml_rd *r, const ev *v)
+{
+    return read_items(r, v, "plants", "plant", read_plant);
 }
 
 static bool read_defaults(yaml_rd *r, const ev *v)
@@ -1167,21 +1175,7 @@ static void read_family(yaml_rd *r, const ev *e)
 
 static bool read_families(yaml_rd *r, const ev *v)
 {
-    if (v->type != EV_SEQ_START) {
-        fatal(r, PS_ERR_SYNTAX, v->line, v->col, "families",
-              "families must be a sequence of family mappings, found %s", kind_name(v->type));
-        return false;
-    }
-    for (;;) {
-        ev e;
-        if (!next_event(r, &e))
-            return false;
-        if (e.type == EV_SEQ_END)
-            return true;
-        read_family(r, &e);
-        if (r->status != PS_OK || r->stop)
-            return false;
-    }
+    return read_items(r, v, "families", "family", read_family);
 }
 
 /* The whole stream: one document holding the top-level mapping. */
