@@ -11,4 +11,16 @@ void ps_test_init(void);
  * static path (valid until the next call). */
 const char *ps_test_write_temp(const char *suffix, const char *text);
 
+/* A CSV file read back by Debian's python3 csv module (strict mode): every
+ * cell byte for byte (the script prints each field as hex). Fails the test
+ * when the reader rejects the file or the table overflows. */
+enum { PS_CSV_ROWS = 16, PS_CSV_COLS = 96, PS_CSV_CELL = 512 };
+typedef struct ps_csv_table {
+    size_t n_rows;
+    size_t n_cols[PS_CSV_ROWS];
+    char cell[PS_CSV_ROWS][PS_CSV_COLS][PS_CSV_CELL];
+} ps_csv_table;
+
+void ps_test_csv_read(const char *csv_path, ps_csv_table *t);
+
 #endif

@@ -96,56 +96,16 @@ static char *render(const ps_run *r, size_t *len)
 
 /* ---- the CSV read back by Python's csv module ---- */
 
-enum { MAX_ROWS = 8, MAX_CELL = 256 };
-typedef struct table {
-    size_t n_rows;
-    size_t n_cols[MAX_ROWS];
-    char cell[MAX_ROWS][N_COLS + 1][MAX_CELL];
-} table;
-
-static int hexval(char c)
-{
-    return c >= '0' && c <= '9' ? c - '0' : c >= 'a' && c <= 'f' ? c - 'a' + 10 : -1;
-}
-
-/* One record per line, each field as '=' + hex of its UTF-8 bytes, so any
- * content (quotes, CR, LF) comes back byte for byte. */
-static const char reader_script[] =
-    "import csv, sys\n"
-    "with open(sys.argv[1], newline='') as f:\n"
-    "    for row in csv.reader(f, strict=True):\n"
-    "        print(' '.join('=' + c.encode('utf-8').hex() for c in row))\n";
+typedef ps_csv_table table;
 
 static void read_back(const char *text, table *t)
 {
-    cr_assert(strlen(PS_ORACLE_PYTHON) > 0, "Debian python3 not found at configure time");
-    char csv_path[256], script[256], cmd[1024];
+    char csv_path[256];
     snprintf(csv_path, sizeof csv_path, "%s", ps_test_write_temp(".csv", text));
-    snprintf(script, sizeof script, "%s", ps_test_write_temp(".py", reader_script));
-    snprintf(cmd, sizeof cmd, "'%s' '%s' '%s'", PS_ORACLE_PYTHON, script, csv_path);
-    FILE *p = popen(cmd, "r");
-    cr_assert_not_null(p);
-    memset(t, 0, sizeof *t);
-    char *line = NULL;
-    size_t cap = 0;
-    while (getline(&line, &cap, p) > 0) {
-        cr_assert_lt(t->n_rows, MAX_ROWS);
-        size_t col = 0;
-        for (char *tok = strtok(line, " \n"); tok; tok = strtok(NULL, " \n")) {
-            cr_assert_eq(tok[0], '=', "bad reader output '%s'", tok);
-            cr_assert_leq(col, N_COLS, "row %zu is wider than the header", t->n_rows);
-            size_t hex = strlen(tok + 1);
-            cr_assert_lt(hex / 2, MAX_CELL);
-            char *out = t->cell[t->n_rows][col];
-            for (size_t i = 0; i < hex / 2; i++)
-                out[i] = (char)(hexval(tok[1 + 2 * i]) * 16 + hexval(tok[2 + 2 * i]));
-            col++;
-        }
-        t->n_cols[t->n_rows++] = col;
-    }
-    free(line);
-    cr_assert_eq(pclose(p), 0, "the CSV reader rejected the report");
-    unlink(script);
+    ps_test_csv_read(csv_path, t);
+    cr_assert_leq(t->n_cols[0], N_COLS);
+    for (size_t r = 0; r < t->n_rows; r++)
+        cr_assert_leq(t->n_cols[r], N_COLS, "row %zu is wider than the header", r);
     unlink(csv_path);
 }
 
@@ -172,7 +132,7 @@ Test(families_csv, one_row_per_study_read_back_by_python)
     build_run(&r);
     size_t len;
     char *text = render(&r, &len);
-    table t;
+    static table t;
     read_back(text, &t);
 
     /* header, 2 boundaries + yield, 1 boundary, 1 yield */
@@ -272,7 +232,7 @@ Test(families_csv, no_families_gives_the_header_only)
     ps_run_init(&r, &opt);
     size_t len;
     char *text = render(&r, &len);
-    table t;
+    static table t;
     read_back(text, &t);
     cr_assert_eq(t.n_rows, 1);
     cr_assert_eq(t.n_cols[0], N_COLS);

@@ -195,56 +195,9 @@ static bool has_word(const char *hay, const char *word)
 
 /* ---- CSV, read back by Python's csv module ---- */
 
-enum { MAX_ROWS = 16, MAX_COLS = 96, MAX_CELL = 512 };
-typedef struct table {
-    size_t n_rows;
-    size_t n_cols[MAX_ROWS];
-    char cell[MAX_ROWS][MAX_COLS][MAX_CELL];
-} table;
+typedef ps_csv_table table;
 
-static int hexval(char c)
-{
-    return c >= '0' && c <= '9' ? c - '0' : c >= 'a' && c <= 'f' ? c - 'a' + 10 : -1;
-}
-
-/* The reader prints one record per line, each field as '=' + hex of its
- * UTF-8 bytes, so any content (quotes, CR, LF) comes back byte for byte. */
-static const char reader_script[] =
-    "import csv, sys\n"
-    "with open(sys.argv[1], newline='') as f:\n"
-    "    for row in csv.reader(f, strict=True):\n"
-    "        print(' '.join('=' + c.encode('utf-8').hex() for c in row))\n";
-
-static void read_back(const char *csv_path, table *t)
-{
-    cr_assert(strlen(PS_ORACLE_PYTHON) > 0, "Debian python3 not found at configure time");
-    char script[256], cmd[1024];
-    snprintf(script, sizeof script, "%s", ps_test_write_temp(".py", reader_script));
-    snprintf(cmd, sizeof cmd, "'%s' '%s' '%s'", PS_ORACLE_PYTHON, script, csv_path);
-    FILE *p = popen(cmd, "r");
-    cr_assert_not_null(p);
-    memset(t, 0, sizeof *t);
-    char *line = NULL;
-    size_t cap = 0;
-    while (getline(&line, &cap, p) > 0) {
-        cr_assert_lt(t->n_rows, MAX_ROWS);
-        size_t col = 0;
-        for (char *tok = strtok(line, " \n"); tok; tok = strtok(NULL, " \n")) {
-            cr_assert_eq(tok[0], '=', "bad reader output '%s'", tok);
-            cr_assert_lt(col, MAX_COLS);
-            size_t hex = strlen(tok + 1);
-            cr_assert_lt(hex / 2, MAX_CELL);
-            char *out = t->cell[t->n_rows][col];
-            for (size_t i = 0; i < hex / 2; i++)
-                out[i] = (char)(hexval(tok[1 + 2 * i]) * 16 + hexval(tok[2 + 2 * i]));
-            col++;
-        }
-        t->n_cols[t->n_rows++] = col;
-    }
-    free(line);
-    cr_assert_eq(pclose(p), 0, "the CSV reader rejected the report");
-    unlink(script);
-}
+static void read_back(const char *csv_path, table *t) { ps_test_csv_read(csv_path, t); }
 
 static int column(const table *t, const char *name)
 {
