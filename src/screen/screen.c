@@ -3,6 +3,8 @@
 #include "screen/screen.h"
 
 #include <float.h>
+#include <stddef.h>
+#include <stdint.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -683,8 +685,103 @@ static ps_status grow_rows(ps_run *r, size_t need)
 
 static int rank_class(const ps_summary *s);
 
+/* ---- compact records in the run's file ----
+ * A summary is mostly fixed-size text and lists that are seldom full. The
+ * file keeps each text up to its terminating NUL and each list up to its
+ * count, with the plain bytes between them as they are (a typical record is
+ * under a tenth of the struct). Spans are in field order; a list's count
+ * field comes before the list, so it is known when the list is read back. */
+typedef struct span {
+    size_t at, cap;   /* offset and size of the field */
+    size_t count_at;  /* lists: offset of their size_t count; texts: SIZE_MAX */
+    size_t elem;      /* lists: bytes per element */
+} span;
+
+#define SUMMARY_FIELD(f) (((ps_summary *)0)->f)
+#define TEXT(f) {offsetof(ps_summary, f), sizeof SUMMARY_FIELD(f), SIZE_MAX, 1}
+#define LIST(f, n) {offsetof(ps_summary, f), sizeof SUMMARY_FIELD(f), offsetof(ps_summary, n), sizeof SUMMARY_FIELD(f)[0]}
+
+static const span spans[] = {
+    TEXT(id),           TEXT(cause),          TEXT(fl.note),        TEXT(target[0].why),  TEXT(target[1].why),
+    TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  LIST(curve_wb, n_curve), LIST(curve_ms, n_curve),
+    LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(rhp_real, n_rhp_real), TEXT(err_field), TEXT(err_text),
+};
+_Static_assert(PS_TARGET_COUNT == 5, "one text span per target");
+
+/* Bytes of span k that are in use in the summary at base. */
+static size_t span_used(const span *sp, const unsigned char *base, size_t room)
+{
+    if (sp->count_at == SIZE_MAX) {
+        size_t n = strnlen((const char *)base, room < sp->cap ? room : sp->cap);
+        return n < sp->cap ? n + 1 : sp->cap;
+    }
+    return 0; /* lists: see list_bytes */
+}
+
+static size_t list_bytes(const span *sp, const unsigned char *summary)
+{
+    size_t count;
+    memcpy(&count, summary + sp->count_at, sizeof count);
+    size_t most = sp->cap / sp->elem;
+    return (count < most ? count : most) * sp->elem;
+}
+
+/* Pack s into out (room for sizeof *s); returns the record's length. */
+static size_t pack_summary(const ps_summary *s, unsigned char *out)
+{
+    const unsigned char *in = (const unsigned char *)s;
+    size_t pos = 0, len = 0;
+    for (size_t k = 0; k < sizeof spans / sizeof spans[0]; k++) {
+        const span *sp = &spans[k];
+        memcpy(out + len, in + pos, sp->at - pos);
+        len += sp->at - pos;
+        size_t used = sp->count_at == SIZE_MAX ? span_used(sp, in + sp->at, sp->cap) : list_bytes(sp, in);
+        memcpy(out + len, in + sp->at, used);
+        len += used;
+        pos = sp->at + sp->cap;
+    }
+    memcpy(out + len, in + pos, sizeof *s - pos);
+    return len + sizeof *s - pos;
+}
+
+/* Inverse of pack_summary; false when the record is not one it wrote. */
+static bool unpack_summary(const unsigned char *in, size_t len, ps_summary *s)
+{
+    unsigned char *out = (unsigned char *)s;
+    memset(s, 0, sizeof *s);
+    size_t pos = 0, at = 0;
+    for (size_t k = 0; k < sizeof spans / sizeof spans[0]; k++) {
+        const span *sp = &spans[k];
+        size_t plain = sp->at - pos;
+        if (len - at < plain)
+            return false;
+        memcpy(out + pos, in + at, plain);
+        at += plain;
+        size_t used = sp->count_at == SIZE_MAX ? span_used(sp, in + at, len - at) : list_bytes(sp, out);
+        if (len - at < used)
+            return false;
+        memcpy(out + sp->at, in + at, used);
+        at += used;
+        pos = sp->at + sp->cap;
+    }
+    if (len - at != sizeof *s - pos)
+        return false;
+    memcpy(out + pos, in + at, sizeof *s - pos);
+    return true;
+}
+
+static void store_put(ps_run *r, const ps_summary *s)
+{
+    ps_run_store *st = r->store;
+    size_t len = pack_summary(s, st->scratch);
+    st->keys[r->n_rows] = (ps_rank_key){s->severity, s->order, st->end, (uint32_t)len, rank_class(s)};
+    if (fwrite(st->scratch, 1, len, st->file) != len)
+        st->failed = true;
+    st->end += len;
+}
+
 /* Move every row to a temporary file (tmpfile: unlinked, gone on exit);
- * rows becomes the staging area of the next commits. */
+ * from then on rows is only the staging area of the next commits. */
 static ps_status spill(ps_run *r)
 {
     ps_run_store *st = calloc(1, sizeof *st);
@@ -701,10 +798,10 @@ static ps_status spill(ps_run *r)
         return PS_ERR_NOMEM;
     }
     r->store = st;
-    if (fwrite(r->rows, sizeof *r->rows, r->n_rows, st->file) != r->n_rows)
-        st->failed = true;
-    for (size_t i = 0; i < r->n_rows; i++)
-        st->keys[i] = (ps_rank_key){r->rows[i].severity, r->rows[i].order, rank_class(&r->rows[i])};
+    size_t n = r->n_rows;
+    r->n_rows = 0;
+    for (; r->n_rows < n; r->n_rows++)
+        store_put(r, &r->rows[r->n_rows]);
     return PS_OK;
 }
 
@@ -751,12 +848,8 @@ void ps_run_commit_n(ps_run *r, size_t k)
     for (size_t j = 0; j < k; j++) {
         ps_summary *s = r->store ? &r->rows[j] : &r->rows[r->n_rows];
         r->per_verdict[s->verdict]++;
-        if (r->store) {
-            ps_run_store *st = r->store;
-            st->keys[r->n_rows] = (ps_rank_key){s->severity, s->order, rank_class(s)};
-            if (fwrite(s, sizeof *s, 1, st->file) != 1)
-                st->failed = true;
-        }
+        if (r->store)
+            store_put(r, s);
         r->n_rows++;
     }
 }
@@ -773,8 +866,9 @@ const ps_summary *ps_run_row(const ps_run *r, size_t i)
         return &r->rows[i];
     ps_summary *s = &st->ring[st->ring_pos];
     st->ring_pos = (st->ring_pos + 1) % PS_RUN_RING;
-    off_t at = (off_t)(st->keys[i].order * sizeof *s);
-    if (pread(fileno(st->file), s, sizeof *s, at) != (ssize_t)sizeof *s) {
+    const ps_rank_key *key = &st->keys[i];
+    if (pread(fileno(st->file), st->scratch, key->len, (off_t)key->at) != (ssize_t)key->len ||
+        !unpack_summary(st->scratch, key->len, s)) {
         st->failed = true;
         memset(s, 0, sizeof *s);
         snprintf(s->id, sizeof s->id, "(row %zu lost: spill file unreadable)", i);

@@ -7,6 +7,7 @@
 
 #include <stdbool.h>
 #include <stddef.h>
+#include <stdint.h>
 #include <stdio.h>
 
 #include "batch/batch.h"
@@ -139,19 +140,25 @@ typedef struct ps_catalog_entry {
 } ps_catalog_entry;
 
 /* Rows kept in memory; beyond this a run moves its summaries to a
- * temporary file (deleted on exit) and keeps a 24-byte rank key per plant. */
+ * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
+ * the file holds each summary as a compact record (texts and lists cut to
+ * their length, typically 250-400 bytes). */
 enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8 };
 
 typedef struct ps_rank_key {
     double severity;
-    size_t order;               /* arrival position = record number in the file */
-    int cls;                    /* 0 not stabilizable, 1 screened, 2 input error */
+    size_t order;               /* arrival position in the run */
+    uint64_t at;                /* the record's offset in the file */
+    uint32_t len;               /* and its length */
+    int32_t cls;                /* 0 not stabilizable, 1 screened, 2 input error */
 } ps_rank_key;
 
 typedef struct ps_run_store {
     FILE *file;                 /* NULL while every row is in memory */
     ps_rank_key *keys;          /* one per row (spilled runs), ranked by ps_run_rank */
     size_t cap_keys;
+    uint64_t end;               /* bytes written */
+    unsigned char scratch[sizeof(ps_summary)]; /* a record being written or read */
     ps_summary ring[PS_RUN_RING]; /* rows read back for ps_run_row */
     size_t ring_pos;
     bool failed;                /* a write or read of the file failed */
