@@ -84,6 +84,7 @@ struct ps_batch {
     idset ids;
     ps_batch_counts counts;
     const char *file;
+    bool defer;      /* the sink analyses checked plants itself */
 };
 
 ps_batch *ps_batch_new(ps_outcome_fn fn, void *ctx)
@@ -142,6 +143,12 @@ static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
         deliver_error(b, p, &d);
         return 0;
     }
+    if (b->defer) {
+        b->counts.models++;
+        ps_outcome o = {b->file, p, NULL, NULL, NULL};
+        b->fn(b->ctx, &o);
+        return 0;
+    }
     if (ps_roots_analyse(b->ws, p, &b->an, &d) != PS_OK) {
         deliver_error(b, p, &d);
         return 0;
@@ -191,6 +198,11 @@ static int on_family(void *ctx, const ps_ynode *node, const ps_plant *defaults)
     ps_family_free(fam);
     free(fam);
     return 0;
+}
+
+void ps_batch_defer_analysis(ps_batch *b, bool defer)
+{
+    b->defer = defer;
 }
 
 void ps_batch_on_family(ps_batch *b, ps_family_done_fn fn)

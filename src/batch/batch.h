@@ -12,12 +12,13 @@
 #include "limits/floors.h"
 #include "roots/roots.h"
 
-/* One entry's outcome. When err is NULL the plant was checked and analysed;
- * otherwise err says why it was rejected (p holds what was read). */
+/* One entry's outcome. When err is NULL the plant was checked and analysed
+ * (only checked, an and fl NULL, with ps_batch_defer_analysis); otherwise
+ * err says why it was rejected (p holds what was read). */
 typedef struct ps_outcome {
     const char *file;
     ps_plant *p;
-    const ps_analysis *an;   /* NULL when err is set */
+    const ps_analysis *an;   /* NULL when err is set or the analysis is deferred */
     const ps_floors *fl;     /* NULL when err is set */
     const ps_diag *err;
 } ps_outcome;
@@ -40,6 +41,11 @@ void ps_batch_free(ps_batch *b);
 ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag);
 
 const ps_batch_counts *ps_batch_counts_get(const ps_batch *b);
+
+/* Deliver checked plants without their root analysis and floors, for a sink
+ * that works them out elsewhere (the screening pool). Such plants count as
+ * models; the sink moves those whose analysis fails to the errors. */
+void ps_batch_defer_analysis(ps_batch *b, bool defer);
 
 /* After the grid plants of a family have been delivered (as ordinary
  * outcomes, ids "<family>[name=value,...]"), fn gets the family itself, for

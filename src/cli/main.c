@@ -193,19 +193,25 @@ typedef struct screen_ctx {
     size_t found;
 } screen_ctx;
 
+static void say_entry_error(void *ctx, const char *file, const ps_plant *p, const ps_diag *err)
+{
+    (void)ctx;
+    fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", file, err->line, err->col, p->id[0] ? "plant '" : "",
+            p->id, p->id[0] ? "': " : "", err->text);
+}
+
 static void screen_entry(void *ctx, const ps_outcome *o)
 {
     screen_ctx *c = ctx;
-    if (o->err)
-        fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", o->file, o->err->line, o->err->col,
-                o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "", o->err->text);
     if (c->prog)
         progress_tick(c->prog, false);
-    if (c->pool) {
+    if (c->pool) { /* errors are told when the pool commits them, in order */
         if (ps_pool_add(c->pool, o) != PS_OK)
             c->nomem = true;
         return;
     }
+    if (o->err)
+        say_entry_error(c, o->file, o->p, o->err);
     if (c->only_id && strcmp(o->p->id, c->only_id) != 0)
         return;
     ps_summary *s = ps_run_next(&c->run);
@@ -250,6 +256,7 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
         return false;
     }
     ps_batch_on_family(b, screen_family);
+    ps_batch_defer_analysis(b, c->pool != NULL);
     for (int i = 0; i < n; i++) {
         if (ps_run_add_catalog(&c->run, files[i], NULL) != PS_OK) {
             c->nomem = true;
@@ -267,6 +274,11 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
         }
     }
     c->run.counts = *ps_batch_counts_get(b);
+    if (c->pool) {
+        size_t failed = ps_pool_analysis_errors(c->pool);
+        c->run.counts.models -= failed;
+        c->run.counts.errors += failed;
+    }
     ps_batch_free(b);
     ps_study_ws_free(c->study);
     c->study = NULL;
@@ -393,7 +405,7 @@ static int cmd_screen(int argc, char **argv)
     screen_ctx c = {0};
     ps_run_init(&c.run, &opt);
     c.ws = ps_screen_ws_new();
-    c.pool = ps_pool_new(threads, &c.run);
+    c.pool = ps_pool_new(threads, &c.run, say_entry_error, &c);
     progress pg = {0};
     if (!quiet && isatty(STDERR_FILENO)) {
         pg.total = count_entries(cats, n);

@@ -78,6 +78,18 @@ const char *ps_form_name(ps_form f)
     }
 }
 
+void ps_plant_copy(ps_plant *dst, const ps_plant *src)
+{
+    memcpy(dst, src, offsetof(ps_plant, a));
+    size_t na = src->a_rows * src->a_cols;
+    if (na > PS_MAX_ORDER * PS_MAX_ORDER)
+        na = PS_MAX_ORDER * PS_MAX_ORDER;
+    memcpy(dst->a, src->a, na * sizeof *src->a);
+    memcpy(&dst->b, &src->b, offsetof(ps_plant, warn) - offsetof(ps_plant, b));
+    size_t nw = src->n_warn < PS_MAX_WARN ? src->n_warn : PS_MAX_WARN;
+    memcpy(dst->warn, src->warn, nw * sizeof src->warn[0]);
+}
+
 void ps_plant_reset(ps_plant *p)
 {
     /* Only the bookkeeping is cleared; arrays are valid up to their counts. */

@@ -86,6 +86,10 @@ typedef struct ps_plant {
 /* Address of a single-valued real field (gain, d, delay, requirements), NULL otherwise. */
 double *ps_plant_scalar(ps_plant *p, ps_field f);
 
+/* Copy src into dst up to the counts of its arrays (the rest of dst keeps
+ * whatever it held: arrays are valid up to their counts). */
+void ps_plant_copy(ps_plant *dst, const ps_plant *src);
+
 /* Reset p to an empty entry (no fields present). */
 void ps_plant_reset(ps_plant *p);
 

@@ -1,35 +1,124 @@
-/* pool.c - see pool.h. Job j of a chunk goes to thread j mod T (static,
- * so the work split never depends on timing); results land in the run's
- * rows at their arrival positions. */
+/* pool.c - see pool.h. The reader fills chunk A while the workers work on
+ * chunk B; when A is full the reader waits for B, commits it, hands A over
+ * and goes on with B. Workers take the next job of the chunk from a shared
+ * counter; every result lands in its own job, so the split never shows. */
 #include "screen/pool.h"
 
 #include <pthread.h>
+#include <stdatomic.h>
 #include <stdbool.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "limits/floors.h"
+#include "roots/roots.h"
+
 typedef struct job {
     ps_plant p;
+    ps_diag err;
+    bool has_err;        /* an input error from the batch, or the analysis failed here */
+    bool analysis_err;   /* the latter */
+    const char *file;
+    size_t file_index;
+    ps_summary s;
+} job;
+
+/* One worker's workspaces. */
+typedef struct lane {
+    ps_roots_ws *rws;
+    ps_limits_ws *lws;
+    ps_screen_ws *sws;
     ps_analysis an;
     ps_floors fl;
-    ps_diag err;
-    bool has_err;
-    const char *file;
-} job;
+} lane;
 
 struct ps_pool {
     ps_run *run;
-    size_t threads, n;
-    job *jobs;
-    ps_screen_ws *ws[PS_POOL_MAX_THREADS];
+    ps_pool_error_fn say;
+    void *ctx;
+    size_t threads;
+    job *chunk[2];
+    size_t fill;            /* jobs in chunk[cur] */
+    int cur;
+    lane *lanes;
+    pthread_t tid[PS_POOL_MAX_THREADS];
+    size_t started;         /* worker threads running */
+    /* the chunk in flight */
+    pthread_mutex_t mu;
+    pthread_cond_t go, done;
+    job *flight;
+    size_t flight_n;
+    atomic_size_t next;
+    size_t busy;            /* workers not yet done with the flight */
+    unsigned long gen;
+    bool quit;
+    size_t analysis_errors;
 };
 
-typedef struct worker {
+typedef struct worker_arg {
     ps_pool *p;
     size_t t;
-} worker;
+} worker_arg;
 
-ps_pool *ps_pool_new(size_t threads, ps_run *run)
+static void run_job(ps_pool *p, lane *ln, job *jb)
+{
+    ps_outcome o = {jb->file, &jb->p, NULL, NULL, NULL};
+    if (!jb->has_err) {
+        memset(&jb->err, 0, sizeof jb->err);
+        if (ps_roots_analyse(ln->rws, &jb->p, &ln->an, &jb->err) == PS_OK) {
+            ps_floors_compute(ln->lws, &ln->an, &jb->p.req, &ln->fl);
+            o.an = &ln->an;
+            o.fl = &ln->fl;
+        } else
+            jb->has_err = jb->analysis_err = true;
+    }
+    if (jb->has_err)
+        o.err = &jb->err;
+    jb->s.file_index = jb->file_index;
+    ps_screen_assess(ln->sws, &o, &p->run->opt, &jb->s);
+}
+
+static void drain(ps_pool *p, lane *ln)
+{
+    for (;;) {
+        size_t j = atomic_fetch_add(&p->next, 1);
+        if (j >= p->flight_n)
+            return;
+        run_job(p, ln, &p->flight[j]);
+    }
+}
+
+static void *worker(void *arg)
+{
+    ps_pool *p = ((worker_arg *)arg)->p;
+    lane *ln = &p->lanes[((worker_arg *)arg)->t];
+    free(arg);
+    unsigned long seen = 0;
+    pthread_mutex_lock(&p->mu);
+    for (;;) {
+        while (p->gen == seen && !p->quit)
+            pthread_cond_wait(&p->go, &p->mu);
+        if (p->quit)
+            break;
+        seen = p->gen;
+        pthread_mutex_unlock(&p->mu);
+        drain(p, ln);
+        pthread_mutex_lock(&p->mu);
+        if (--p->busy == 0)
+            pthread_cond_signal(&p->done);
+    }
+    pthread_mutex_unlock(&p->mu);
+    return NULL;
+}
+
+static void lane_free(lane *ln)
+{
+    ps_roots_ws_free(ln->rws);
+    ps_limits_ws_free(ln->lws);
+    ps_screen_ws_free(ln->sws);
+}
+
+ps_pool *ps_pool_new(size_t threads, ps_run *run, ps_pool_error_fn say, void *ctx)
 {
     if (threads < 1)
         threads = 1;
@@ -39,85 +128,134 @@ ps_pool *ps_pool_new(size_t threads, ps_run *run)
     if (!p)
         return NULL;
     p->run = run;
+    p->say = say;
+    p->ctx = ctx;
     p->threads = threads;
-    p->jobs = malloc(PS_POOL_CHUNK * sizeof *p->jobs);
-    bool ok = p->jobs != NULL;
-    for (size_t t = 0; ok && t < threads; t++)
-        ok = (p->ws[t] = ps_screen_ws_new()) != NULL;
+    pthread_mutex_init(&p->mu, NULL);
+    pthread_cond_init(&p->go, NULL);
+    pthread_cond_init(&p->done, NULL);
+    p->chunk[0] = malloc(PS_POOL_CHUNK * sizeof *p->chunk[0]);
+    p->chunk[1] = malloc(PS_POOL_CHUNK * sizeof *p->chunk[1]);
+    p->lanes = calloc(threads, sizeof *p->lanes);
+    bool ok = p->chunk[0] && p->chunk[1] && p->lanes;
+    for (size_t t = 0; ok && t < threads; t++) {
+        lane *ln = &p->lanes[t];
+        ln->rws = ps_roots_ws_new();
+        ln->lws = ps_limits_ws_new();
+        ln->sws = ps_screen_ws_new();
+        ok = ln->rws && ln->lws && ln->sws;
+    }
     if (!ok) {
         ps_pool_free(p);
         return NULL;
     }
+    /* Threads that cannot be started leave their share to the others; with
+     * none at all the chunks are worked on by the reader (see launch). */
+    for (size_t t = 0; t < threads; t++) {
+        worker_arg *a = malloc(sizeof *a);
+        if (!a)
+            break;
+        *a = (worker_arg){p, p->started};
+        if (pthread_create(&p->tid[p->started], NULL, worker, a) != 0) {
+            free(a);
+            break;
+        }
+        p->started++;
+    }
     return p;
+}
+
+/* Wait for the chunk in flight and commit it. */
+static ps_status land(ps_pool *p)
+{
+    if (!p->flight)
+        return PS_OK;
+    pthread_mutex_lock(&p->mu);
+    while (p->busy > 0)
+        pthread_cond_wait(&p->done, &p->mu);
+    pthread_mutex_unlock(&p->mu);
+    ps_status st = PS_OK;
+    for (size_t j = 0; j < p->flight_n; j++) {
+        job *jb = &p->flight[j];
+        if (jb->has_err && p->say)
+            p->say(p->ctx, jb->file, &jb->p, &jb->err);
+        p->analysis_errors += jb->analysis_err;
+        if (st == PS_OK)
+            st = ps_run_put(p->run, &jb->s);
+    }
+    p->flight = NULL;
+    p->flight_n = 0;
+    return st;
+}
+
+static void launch(ps_pool *p, job *jobs, size_t n)
+{
+    pthread_mutex_lock(&p->mu);
+    p->flight = jobs;
+    p->flight_n = n;
+    atomic_store(&p->next, 0);
+    p->busy = p->started;
+    p->gen++;
+    pthread_cond_broadcast(&p->go);
+    pthread_mutex_unlock(&p->mu);
+    if (p->started == 0)
+        drain(p, &p->lanes[0]);
 }
 
 void ps_pool_free(ps_pool *p)
 {
     if (!p)
         return;
-    for (size_t t = 0; t < p->threads; t++)
-        ps_screen_ws_free(p->ws[t]);
-    free(p->jobs);
+    pthread_mutex_lock(&p->mu);
+    p->quit = true;
+    pthread_cond_broadcast(&p->go);
+    pthread_mutex_unlock(&p->mu);
+    for (size_t t = 0; t < p->started; t++)
+        pthread_join(p->tid[t], NULL);
+    for (size_t t = 0; p->lanes && t < p->threads; t++)
+        lane_free(&p->lanes[t]);
+    free(p->lanes);
+    free(p->chunk[0]);
+    free(p->chunk[1]);
+    pthread_mutex_destroy(&p->mu);
+    pthread_cond_destroy(&p->go);
+    pthread_cond_destroy(&p->done);
     free(p);
 }
 
-static void *work(void *arg)
+/* Hand the filled chunk over once the one in flight has landed. */
+static ps_status hand_over(ps_pool *p)
 {
-    worker *w = arg;
-    ps_pool *p = w->p;
-    for (size_t j = w->t; j < p->n; j += p->threads) {
-        job *jb = &p->jobs[j];
-        ps_outcome o = {jb->file, &jb->p, jb->has_err ? NULL : &jb->an, jb->has_err ? NULL : &jb->fl,
-                        jb->has_err ? &jb->err : NULL};
-        ps_screen_assess(p->ws[w->t], &o, &p->run->opt, ps_run_stage(p->run, j));
+    ps_status st = land(p);
+    if (p->fill > 0) {
+        launch(p, p->chunk[p->cur], p->fill);
+        p->cur ^= 1;
+        p->fill = 0;
     }
-    return NULL;
+    return st;
 }
 
 ps_status ps_pool_flush(ps_pool *p)
 {
-    if (p->n == 0)
-        return PS_OK;
-    ps_run *r = p->run;
-    if (ps_run_reserve(r, p->n) != PS_OK)
-        return PS_ERR_NOMEM;
-    for (size_t j = 0; j < p->n; j++) {
-        ps_summary *s = ps_run_stage(r, j);
-        s->order = r->n_rows + j;
-        s->file_index = r->n_catalogs ? r->n_catalogs - 1 : 0;
-    }
-    worker w[PS_POOL_MAX_THREADS];
-    pthread_t tid[PS_POOL_MAX_THREADS];
-    bool started[PS_POOL_MAX_THREADS] = {false};
-    size_t use = p->threads < p->n ? p->threads : p->n;
-    for (size_t t = 0; t < use; t++)
-        w[t] = (worker){p, t};
-    /* If a thread cannot be started its jobs run here, after the others. */
-    for (size_t t = 1; t < use; t++)
-        started[t] = pthread_create(&tid[t], NULL, work, &w[t]) == 0;
-    work(&w[0]);
-    for (size_t t = 1; t < use; t++) {
-        if (started[t])
-            pthread_join(tid[t], NULL);
-        else
-            work(&w[t]);
-    }
-    ps_run_commit_n(r, p->n);
-    p->n = 0;
-    return PS_OK;
+    ps_status st = hand_over(p);
+    ps_status st2 = land(p);
+    return st != PS_OK ? st : st2;
 }
 
 ps_status ps_pool_add(ps_pool *p, const ps_outcome *o)
 {
-    job *jb = &p->jobs[p->n++];
-    jb->p = *o->p;
+    job *jb = &p->chunk[p->cur][p->fill++];
+    ps_plant_copy(&jb->p, o->p);
     jb->file = o->file;
+    jb->file_index = p->run->n_catalogs ? p->run->n_catalogs - 1 : 0;
     jb->has_err = o->err != NULL;
+    jb->analysis_err = false;
     if (o->err)
         jb->err = *o->err;
-    else {
-        jb->an = *o->an;
-        jb->fl = *o->fl;
-    }
-    return p->n == PS_POOL_CHUNK ? ps_pool_flush(p) : PS_OK;
+    return p->fill == PS_POOL_CHUNK ? hand_over(p) : PS_OK;
+}
+
+size_t ps_pool_analysis_errors(const ps_pool *p)
+{
+    return p->analysis_errors;
 }

@@ -805,7 +805,7 @@ static ps_status spill(ps_run *r)
     return PS_OK;
 }
 
-ps_status ps_run_reserve(ps_run *r, size_t k)
+static ps_status reserve(ps_run *r, size_t k)
 {
     size_t limit = r->opt.memory_rows ? r->opt.memory_rows : PS_RUN_MEMORY_ROWS;
     if (!r->store && r->n_rows + k > limit) {
@@ -828,35 +828,44 @@ ps_status ps_run_reserve(ps_run *r, size_t k)
     return grow_rows(r, r->n_rows + k);
 }
 
-ps_summary *ps_run_stage(ps_run *r, size_t j)
+/* The next row: in memory its place in rows, in a spilled run rows[0]. */
+static ps_summary *staged(ps_run *r)
 {
-    return r->store ? &r->rows[j] : &r->rows[r->n_rows + j];
+    return r->store ? &r->rows[0] : &r->rows[r->n_rows];
 }
 
 ps_summary *ps_run_next(ps_run *r)
 {
-    if (ps_run_reserve(r, 1) != PS_OK)
+    if (reserve(r, 1) != PS_OK)
         return NULL;
-    ps_summary *s = ps_run_stage(r, 0);
+    ps_summary *s = staged(r);
     s->order = r->n_rows;
     s->file_index = r->n_catalogs ? r->n_catalogs - 1 : 0;
     return s;
 }
 
-void ps_run_commit_n(ps_run *r, size_t k)
-{
-    for (size_t j = 0; j < k; j++) {
-        ps_summary *s = r->store ? &r->rows[j] : &r->rows[r->n_rows];
-        r->per_verdict[s->verdict]++;
-        if (r->store)
-            store_put(r, s);
-        r->n_rows++;
-    }
-}
-
 void ps_run_commit(ps_run *r)
 {
-    ps_run_commit_n(r, 1);
+    ps_summary *s = staged(r);
+    r->per_verdict[s->verdict]++;
+    if (r->store)
+        store_put(r, s);
+    r->n_rows++;
+}
+
+ps_status ps_run_put(ps_run *r, ps_summary *s)
+{
+    ps_status st = reserve(r, 1);
+    if (st != PS_OK)
+        return st;
+    s->order = r->n_rows;
+    if (r->store)
+        store_put(r, s);
+    else
+        *staged(r) = *s;
+    r->per_verdict[s->verdict]++;
+    r->n_rows++;
+    return PS_OK;
 }
 
 const ps_summary *ps_run_row(const ps_run *r, size_t i)

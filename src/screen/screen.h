@@ -186,11 +186,9 @@ ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag);
 /* Room for the next summary (NULL on no memory); ps_run_commit keeps it. */
 ps_summary *ps_run_next(ps_run *r);
 void ps_run_commit(ps_run *r);
-/* Room for k more summaries, filled through ps_run_stage(r, 0 .. k-1) and
- * kept in that order by ps_run_commit_n(r, k). May move the run to its file. */
-ps_status ps_run_reserve(ps_run *r, size_t k);
-ps_summary *ps_run_stage(ps_run *r, size_t j);
-void ps_run_commit_n(ps_run *r, size_t k);
+/* Keep a copy of s as the next row (its order is set here; file_index is
+ * the caller's). May move the run to its file. */
+ps_status ps_run_put(ps_run *r, ps_summary *s);
 /* Row i (ranked after ps_run_rank). In a spilled run the pointer is valid
  * for the next PS_RUN_RING - 1 calls. */
 const ps_summary *ps_run_row(const ps_run *r, size_t i);
