@@ -6,6 +6,7 @@
 # REPS times each (median wall time, peak RSS = largest of the runs):
 #   read    plantsieve read CAT                       (parse only)
 #   screen  plantsieve screen --no-files --gate never CAT   (full screening)
+#   screen --detail none   the same without redesign targets and band curve
 #   survey  plantsieve survey CAT > /dev/null         (floors, no targets)
 #   numpy   np_floors.py CAT                          (vectorised baseline; compute and total)
 # For N above NUMPY_SUBSET, numpy runs on the first NUMPY_SUBSET plants (the
@@ -140,6 +141,8 @@ say "python:  $PY $("$PY" -c 'import numpy, scipy, yaml; print("numpy", numpy.__
 say "catalogs: gen_catalog.py seed $SEED (cache $BENCH_DIR); repetitions: $REPS (N >= $LARGE_AT: $REPS_LARGE), median wall time, peak RSS = max over runs"
 say ""
 
+DETAIL=0; "$PS" --help 2>&1 | grep -q -- '--detail' && DETAIL=1
+declare -A SN_S SN_RSS
 declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN
 for n in "${SIZES[@]}"; do
     cat=$(catalog "$n") || { say "generating the N=$n catalog failed"; exit 1; }
@@ -151,6 +154,10 @@ for n in "${SIZES[@]}"; do
     R_S[$n]=$M_S; R_RSS[$n]=$M_RSS; say "# N=$n read   runs: $ALL_S s"
     measure screen "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" "$cat"
     SC_S[$n]=$M_S; SC_RSS[$n]=$M_RSS; say "# N=$n screen runs: $ALL_S s; $(grep -m1 '^Counts' "$TMP/screen-$n-1.stdout" || true)"
+    if [[ $DETAIL == 1 ]]; then
+        measure screen-none "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --detail none "$cat"
+        SN_S[$n]=$M_S; SN_RSS[$n]=$M_RSS; say "# N=$n screen --detail none runs: $ALL_S s"
+    fi
     measure survey "$n" "$reps" "0 3" "$PS" survey "$cat"
     SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; say "# N=$n survey runs: $ALL_S s"
     if [[ $NUMPY == 1 ]]; then
@@ -212,6 +219,12 @@ for n in "${SIZES[@]}"; do
         "$(awk -v x="${NPT[$n]:-}" 'BEGIN {if (x == "") print "-"; else printf "%.3f", x}')" \
         "$(fmt_rate "$n" "${NPC[$n]:-0}")" "${NPRSS[$n]:--}" "${NPX[$n]:-not run}")"
 done
+if [[ $DETAIL == 1 ]]; then
+    for n in "${SIZES[@]}"; do
+        say "$(printf '%9s | screen --detail none %9.3f s, %s plants/s, peak RSS %s MiB, over read %s' "$n" "${SN_S[$n]}" \
+            "$(fmt_rate "$n" "${SN_S[$n]}")" "${SN_RSS[$n]}" "$(ratio "${SN_S[$n]}" "${R_S[$n]}")")"
+    done
+fi
 say ""
 say "Columns: RSS rd/sc/sv = peak RSS in MiB of read/screen/survey. np/screen:c = numpy compute time"
 say "(prepare + floors, no YAML load) over screen time, np/screen:t = numpy process total (imports +"
@@ -230,6 +243,10 @@ for n in "${SIZES[@]}"; do (( n >= 1000000 )) && big=$n && break; done
 if [[ -n "$big" ]]; then
     r=$(ratio "${SC_S[$big]}" "${R_S[$big]}")
     say "  screen within 2x of read time at N=$big: screen/read = $r  -> $(verdict "$r" 2 le)"
+    if [[ $DETAIL == 1 ]]; then
+        r=$(ratio "${SN_S[$big]}" "${R_S[$big]}")
+        say "    the same with --detail none (floors, verdicts, ranking; no targets): $r  -> $(verdict "$r" 2 le)"
+    fi
     rss=$(printf '%s\n' "${R_RSS[$big]}" "${SC_RSS[$big]}" "${SV_RSS[$big]}" | maxof)
     say "  peak RSS < 256 MiB at N=$big: read ${R_RSS[$big]}, screen ${SC_RSS[$big]}, survey ${SV_RSS[$big]} MiB  -> $(verdict "$rss" 255.999 le)"
 else
