@@ -868,6 +868,29 @@ ps_status ps_run_put(ps_run *r, ps_summary *s)
     return PS_OK;
 }
 
+/* The bytes of one record. Rows tied in the ranking (most often the many
+ * plants with nothing binding) follow each other in the file, so a record
+ * that starts where the last one ended is read with a window of the records
+ * after it; any other is read alone. NULL when the file cannot be read. */
+static const unsigned char *record_at(ps_run_store *st, const ps_rank_key *key)
+{
+    bool next = key->at == st->last_end;
+    st->last_end = key->at + key->len;
+    if (key->at >= st->win_at && key->at + key->len <= st->win_at + st->win_len)
+        return st->window + (key->at - st->win_at);
+    if (next && key->len <= PS_RUN_WINDOW) {
+        ssize_t got = pread(fileno(st->file), st->window, PS_RUN_WINDOW, (off_t)key->at);
+        if (got < (ssize_t)key->len)
+            return NULL;
+        st->win_at = key->at;
+        st->win_len = (size_t)got;
+        return st->window;
+    }
+    if (pread(fileno(st->file), st->scratch, key->len, (off_t)key->at) != (ssize_t)key->len)
+        return NULL;
+    return st->scratch;
+}
+
 const ps_summary *ps_run_row(const ps_run *r, size_t i)
 {
     ps_run_store *st = r->store;
@@ -876,8 +899,8 @@ const ps_summary *ps_run_row(const ps_run *r, size_t i)
     ps_summary *s = &st->ring[st->ring_pos];
     st->ring_pos = (st->ring_pos + 1) % PS_RUN_RING;
     const ps_rank_key *key = &st->keys[i];
-    if (pread(fileno(st->file), st->scratch, key->len, (off_t)key->at) != (ssize_t)key->len ||
-        !unpack_summary(st->scratch, key->len, s)) {
+    const unsigned char *rec = record_at(st, key);
+    if (!rec || !unpack_summary(rec, key->len, s)) {
         st->failed = true;
         memset(s, 0, sizeof *s);
         snprintf(s->id, sizeof s->id, "(row %zu lost: spill file unreadable)", i);

@@ -143,7 +143,7 @@ typedef struct ps_catalog_entry {
  * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
  * the file holds each summary as a compact record (texts and lists cut to
  * their length, typically 250-400 bytes). */
-enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8 };
+enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536 };
 
 typedef struct ps_rank_key {
     double severity;
@@ -158,6 +158,10 @@ typedef struct ps_run_store {
     ps_rank_key *keys;          /* one per row (spilled runs), ranked by ps_run_rank */
     size_t cap_keys;
     uint64_t end;               /* bytes written */
+    uint64_t last_end;          /* where the record read last ends */
+    uint64_t win_at;            /* file offset of window[0] */
+    size_t win_len;             /* bytes in window (0: none) */
+    unsigned char window[PS_RUN_WINDOW]; /* records read ahead */
     unsigned char scratch[sizeof(ps_summary)]; /* a record being written or read */
     ps_summary ring[PS_RUN_RING]; /* rows read back for ps_run_row */
     size_t ring_pos;
