@@ -689,7 +689,7 @@ static int rank_class(const ps_summary *s);
  * A summary is mostly fixed-size text and lists that are seldom full. The
  * file keeps each text up to its terminating NUL and each list up to its
  * count, with the plain bytes between them as they are (a typical record is
- * under a tenth of the struct). Spans are in field order; a list's count
+ * a third of the struct or less). Spans are in field order; a list's count
  * field comes before the list, so it is known when the list is read back. */
 typedef struct span {
     size_t at, cap;   /* offset and size of the field */

@@ -142,7 +142,7 @@ typedef struct ps_catalog_entry {
 /* Rows kept in memory; beyond this a run moves its summaries to a
  * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
  * the file holds each summary as a compact record (texts and lists cut to
- * their length, typically 250-400 bytes). */
+ * their length: about 0.9-1.4 kB instead of 3.4 kB). */
 enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536 };
 
 typedef struct ps_rank_key {
