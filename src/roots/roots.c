@@ -327,7 +327,41 @@ static ps_status ss_poles(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out, 
     return PS_OK;
 }
 
-static ps_status ss_zeros(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out, ps_diag *d)
+/* det [sI-A, -B; C, D] has degree n - r exactly, r the relative degree (its
+ * leading coefficient is the first non-zero Markov parameter). Rounding
+ * spreads a block of eigenvalues at infinity of size k over a circle of
+ * radius about |M| eps^(-1/k), which for k of 5 or more is near the plant's
+ * own frequencies; GSL's QZ (no balancing) then returns some as finite.
+ * Keep the n - r smallest (a conjugate pair the cut would split goes too);
+ * returns how many went, *from the smallest magnitude among them. */
+static size_t keep_degree(ps_root *z, size_t *nz, size_t want, double *from)
+{
+    size_t n = *nz;
+    if (n <= want)
+        return 0;
+    for (size_t i = 1; i < n; i++) { /* by magnitude, ascending (n <= 65) */
+        ps_root t = z[i];
+        double m = hypot(t.v.re, t.v.im);
+        size_t j = i;
+        for (; j > 0 && hypot(z[j - 1].v.re, z[j - 1].v.im) > m; j--)
+            z[j] = z[j - 1];
+        z[j] = t;
+    }
+    size_t keep = want;
+    if (keep > 0 && z[keep - 1].v.im != 0.0) {
+        bool pair_kept = false;
+        for (size_t i = 0; i + 1 < keep; i++)
+            pair_kept |= z[i].v.re == z[keep - 1].v.re && z[i].v.im == -z[keep - 1].v.im;
+        if (!pair_kept)
+            keep--;
+    }
+    *from = hypot(z[keep].v.re, z[keep].v.im);
+    *nz = keep;
+    return n - keep;
+}
+
+static ps_status ss_zeros(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out, size_t *dropped, double *from,
+                          ps_diag *d)
 {
     size_t n = p->a_rows, N = n + 1;
     /* Rosenbrock pencil M - s Nn with M = [A B; C D], Nn = [I 0; 0 0]. */
@@ -370,6 +404,8 @@ static ps_status ss_zeros(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out, 
         double tol = 64 * DBL_EPSILON * (mnorm + hypot(z.re, z.im) * sqrt((double)n));
         out->zeros[nz++] = (ps_root){z, PS_LHP, 1, tol};
     }
+    if (out->rel_degree >= 0 && (size_t)out->rel_degree <= n)
+        *dropped = keep_degree(out->zeros, &nz, n - (size_t)out->rel_degree, from);
     out->n_zeros = nz;
     finish_roots(out->zeros, nz, 1e-6 * mnorm);
     return PS_OK;
@@ -527,10 +563,17 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
         check_cancellations(p, out, true);
         break;
     }
-    case PS_FORM_SS:
+    case PS_FORM_SS: {
+        size_t dropped = 0;
+        double from = 0;
         if ((st = ss_markov(ws, p, out, d)) != PS_OK || (st = ss_poles(ws, p, out, d)) != PS_OK ||
-            (st = ss_zeros(ws, p, out, d)) != PS_OK)
+            (st = ss_zeros(ws, p, out, &dropped, &from, d)) != PS_OK)
             return st;
+        if (dropped)
+            ps_plant_warn(p, "the pencil gave %zu finite eigenvalues more than relative degree %d allows; "
+                             "the largest (|z| >= %.3g) are taken as infinite (rounding of the eigenvalues "
+                             "at infinity)",
+                          dropped, out->rel_degree, from);
         hidden_modes_ss(ws, p, out);
         if ((int)(out->n_poles - out->n_zeros) != out->rel_degree)
             ps_plant_warn(p, "pencil gives %zu finite zeros but the Markov parameters give relative "
@@ -538,6 +581,7 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
                           out->n_zeros, out->rel_degree);
         check_cancellations(p, out, false);
         break;
+    }
     default:
         return ps_diag_set(d, PS_ERR_INPUT, p->line, 0, "", "plant has no checked model form");
     }

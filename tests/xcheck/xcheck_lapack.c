@@ -63,3 +63,92 @@ Test(xcheck, eigenvalues_match_lapack_dgeev)
     cr_log_info("LAPACK dgeev cross-check: 200 matrices, worst relative distance %.2e", worst);
     ps_roots_ws_free(ws);
 }
+
+/* State-space zeros against LAPACK's dggev (balanced QZ) on the Rosenbrock
+ * pencil [A B; C D] - s [I 0; 0 0]. The four plants are cascades of second-
+ * and first-order sections with relative degree 3 to 6, from
+ * tests/bench/gen_catalog.py --ss-stress --seed 3 (ids b56, b162, b364,
+ * b2207). There GSL's unbalanced QZ returned some eigenvalues at infinity as
+ * finite (|z| up to 1.5e13); the count law (n - r finite zeros, r the
+ * relative degree) must hold, and every LAPACK zero must be found. */
+typedef struct ss_case {
+    const char *id;
+    size_t n;
+    double a[49], b[7], c[7];
+} ss_case;
+
+static const ss_case ss_cases[] = {
+    {"b56", 7,
+     {0, 13.7478221988, 0, 0, 0, 0, 0, -13.7478221988, -6.62506590224, 0, 0, 0, 0, 0, 0, 0, 0, 11.2279200311, 0,
+      0, 0, 0.00406261259951, 3.81053054396, -11.2279200311, -23.1710993113, 0, 0, 0, 0, 0, 0, 0, 0,
+      20.8687918472, 0, 0, 0, 0.382867626115, 0, -20.8687918472, -41.7392210653, 0, 0, 0, 0, 0, 0.711617536664,
+      0, -4.47856801534},
+     {0, 0.5, 0, 0.0169020471998, 0, 0, 0},
+     {0, 0, 0, 0, 0, 0, 0.305434791069}},
+    {"b162", 3,
+     {0, 0.580191271005, 0, -0.580191271005, -0.058564585045, 0, 0.519772667427, 0, -35.3417133161},
+     {0, 1, 0},
+     {0, 0, 1.97883628208}},
+    {"b364", 7,
+     {0, 6.07017084421, 0, 0, 0, 0, 0, -6.07017084421, -2.91237417728, 0, 0, 0, 0, 0, 0, 0, 0, 3.41475786599, 0,
+      0, 0, 3.47044736328, 1.31286223897, -0.853689466498, -2.13655535586, 0, 0, 0, 0, 0, 0, 0, 0,
+      33.6727961099, 0, 0, 0, 2.00638555524, 0.0360007003006, -33.6727961099, -142.311267593, 0, 0, 0, 0, 0,
+      19.7848908681, 0, -8.53959127001},
+     {0, 4, 0, 0.0633660893741, 0, 0, 0},
+     {0, 0, 0, 0, 0, 0, 5.01754831359}},
+    {"b2207", 6,
+     {0, 135.015402251, 0, 0, 0, 0, -135.015402251, -336.510875418, 0, 0, 0, 0, 0, 0, 0, 14.8166295076, 0, 0,
+      0.358065596178, 0, -14.8166295076, -57.1670381567, 0, 0, 0, 0, 0, 0, 0, 3.20153725626, 0, 0,
+      0.0392942226555, 0, 3.20153725626, 3.76561211756},
+     {0, 0.125, 0, 0, 0, 0},
+     {0, 0, 0, 0, 0.0679247153872, 0}},
+};
+
+Test(xcheck, state_space_zeros_match_lapack_dggev)
+{
+    static ps_plant p;
+    static ps_analysis an;
+    ps_roots_ws *ws = ps_roots_ws_new();
+    for (size_t k = 0; k < sizeof ss_cases / sizeof ss_cases[0]; k++) {
+        const ss_case *sc = &ss_cases[k];
+        size_t n = sc->n, N = n + 1;
+        ps_plant_reset(&p);
+        snprintf(p.id, sizeof p.id, "%s", sc->id);
+        memcpy(p.a, sc->a, n * n * sizeof *p.a);
+        memcpy(p.b, sc->b, n * sizeof *p.b);
+        memcpy(p.c, sc->c, n * sizeof *p.c);
+        p.a_rows = p.a_cols = p.n_b = p.n_c = n;
+        p.present = (1u << PS_F_ID) | (1u << PS_F_A) | (1u << PS_F_B) | (1u << PS_F_C);
+        ps_diag d = {0};
+        cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+        cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s: %s", sc->id, d.text);
+
+        double m[64], e[64], ar[8], ai[8], be[8];
+        for (size_t i = 0; i < N; i++)
+            for (size_t j = 0; j < N; j++) {
+                m[i * N + j] = i < n && j < n ? sc->a[i * n + j] : i < n ? sc->b[i] : j < n ? sc->c[j] : 0.0;
+                e[i * N + j] = i == j && i < n ? 1.0 : 0.0;
+            }
+        lapack_int info = LAPACKE_dggev(LAPACK_ROW_MAJOR, 'N', 'N', (lapack_int)N, m, (lapack_int)N, e,
+                                        (lapack_int)N, ar, ai, be, NULL, 1, NULL, 1);
+        cr_assert_eq(info, 0);
+        size_t finite = 0;
+        for (size_t i = 0; i < N; i++) {
+            if (be[i] == 0.0 || hypot(ar[i], ai[i]) > 1e10 * fabs(be[i]))
+                continue;
+            finite++;
+            double zr = ar[i] / be[i], zi = ai[i] / be[i], best = INFINITY;
+            for (size_t q = 0; q < an.n_zeros; q++)
+                best = fmin(best, hypot(an.zeros[q].v.re - zr, an.zeros[q].v.im - zi));
+            cr_assert_leq(best / fmax(1.0, hypot(zr, zi)), 1e-6, "%s: LAPACK zero %g%+gj not found", sc->id, zr,
+                          zi);
+        }
+        cr_assert_eq(an.n_zeros, finite, "%s: %zu zeros, LAPACK dggev %zu", sc->id, an.n_zeros, finite);
+        cr_assert_eq(an.n_zeros, n - (size_t)an.rel_degree, "%s: count law", sc->id);
+        bool told = false;
+        for (size_t w = 0; w < p.n_warn; w++)
+            told |= strstr(p.warn[w], "taken as infinite") != NULL;
+        cr_assert(told, "%s: the dropped eigenvalues are told in a warning", sc->id);
+    }
+    ps_roots_ws_free(ws);
+}
