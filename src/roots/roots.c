@@ -420,26 +420,38 @@ static ps_status ss_markov(ps_roots_ws *ws, const ps_plant *p, ps_analysis *out,
         out->rel_degree = 0;
         return PS_OK;
     }
-    double *v = ws->z, *w = ws->asc;
+    /* c a^(k-1) b is zero when it is below 1e-12 of |c| |a|^(k-1) |b| taken
+     * entry by entry: the size of the terms it sums, and the scale of its
+     * rounding error (Higham, Accuracy and Stability of Numerical Algorithms,
+     * 2nd ed., section 3.5, from memory). Norm products would be far larger
+     * for a cascade of fast sections and call its first Markov parameter
+     * zero. */
+    double *v = ws->z, *w = ws->asc, *va = ws->m1, *wa = ws->m1 + n;
     memcpy(v, p->b, n * sizeof *v);
-    double na = frob(p->a, n * n), nb = frob(p->b, n), nc = frob(p->c, n), scale = nb * nc;
+    for (size_t i = 0; i < n; i++)
+        va[i] = fabs(p->b[i]);
     for (size_t k = 1; k <= n; k++) {
-        double mk = 0;
-        for (size_t i = 0; i < n; i++)
+        double mk = 0, scale = 0;
+        for (size_t i = 0; i < n; i++) {
             mk += p->c[i] * v[i];
+            scale += fabs(p->c[i]) * va[i];
+        }
         if (fabs(mk) > 1e-12 * scale) {
             out->gain = mk;
             out->rel_degree = (int)k;
             return PS_OK;
         }
         for (size_t i = 0; i < n; i++) {
-            double s = 0;
-            for (size_t j = 0; j < n; j++)
+            double s = 0, sa = 0;
+            for (size_t j = 0; j < n; j++) {
                 s += p->a[i * n + j] * v[j];
+                sa += fabs(p->a[i * n + j]) * va[j];
+            }
             w[i] = s;
+            wa[i] = sa;
         }
         memcpy(v, w, n * sizeof *v);
-        scale *= fmax(na, DBL_MIN);
+        memcpy(va, wa, n * sizeof *va);
     }
     return ps_diag_set(d, PS_ERR_INPUT, p->line, 0, "c",
                        "every Markov parameter is zero: the transfer function is identically zero");
