@@ -70,9 +70,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
                "redesign above 1\n\n",
             r->opt.marginal_at);
 
-    size_t idw = 5;
-    for (size_t i = 0; i < r->n_rows; i++)
-        idw = strlen(ps_run_row(r, i)->id) > idw ? strlen(ps_run_row(r, i)->id) : idw;
+    size_t idw = r->id_len_max > 5 ? r->id_len_max : 5;
     if (idw > 40)
         idw = 40;
     fprintf(f, "%4s  %-*s  %-16s  %8s  %-6s  %9s  %9s  %9s  %9s\n", "rank", (int)idw, "plant", "verdict",
@@ -97,9 +95,9 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
         fputs("  none\n", f);
     char line[400];
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (!flagged(s->verdict))
+        if (!flagged(ps_run_verdict(r, i)))
             continue;
+        const ps_summary *s = ps_run_row(r, i);
         fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
         snprintf(line, sizeof line, "cause: %s", s->cause);
         wrap(f, line, "    ", 96);
@@ -113,9 +111,10 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
     fputs("\nHeadroom of the plants that pass\n", f);
     size_t n_pass = 0;
     for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (s->verdict != PS_VERDICT_CLEAR && s->verdict != PS_VERDICT_MARGINAL)
+        ps_verdict v = ps_run_verdict(r, i);
+        if (v != PS_VERDICT_CLEAR && v != PS_VERDICT_MARGINAL)
             continue;
+        const ps_summary *s = ps_run_row(r, i);
         n_pass++;
         fprintf(f, "\n  %s  [%s]  largest share: %s\n", s->id, ps_verdict_name(s->verdict), s->cause);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
@@ -130,10 +129,11 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
     if (r->per_verdict[PS_VERDICT_UNREAD]) {
         fprintf(f, "\nEntries that could not be read (%zu)\n", r->per_verdict[PS_VERDICT_UNREAD]);
         for (size_t i = 0; i < r->n_rows; i++) {
+            if (ps_run_verdict(r, i) != PS_VERDICT_UNREAD)
+                continue;
             const ps_summary *s = ps_run_row(r, i);
-            if (s->verdict == PS_VERDICT_UNREAD)
-                fprintf(f, "  %s:%zu:%zu: %s%s%s (field '%s')\n", r->catalogs[s->file_index].file, s->err_line,
-                        s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text, s->err_field);
+            fprintf(f, "  %s:%zu:%zu: %s%s%s (field '%s')\n", r->catalogs[s->file_index].file, s->err_line,
+                    s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text, s->err_field);
         }
     }
 

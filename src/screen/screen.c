@@ -774,7 +774,8 @@ static void store_put(ps_run *r, const ps_summary *s)
 {
     ps_run_store *st = r->store;
     size_t len = pack_summary(s, st->scratch);
-    st->keys[r->n_rows] = (ps_rank_key){s->severity, s->order, st->end, (uint32_t)len, rank_class(s)};
+    st->keys[r->n_rows] =
+        (ps_rank_key){s->severity, s->order, st->end, (uint32_t)len, (int16_t)rank_class(s), (int16_t)s->verdict};
     if (fwrite(st->scratch, 1, len, st->file) != len)
         st->failed = true;
     st->end += len;
@@ -844,10 +845,18 @@ ps_summary *ps_run_next(ps_run *r)
     return s;
 }
 
+static void count_row(ps_run *r, const ps_summary *s)
+{
+    r->per_verdict[s->verdict]++;
+    size_t len = strnlen(s->id, sizeof s->id);
+    if (len > r->id_len_max)
+        r->id_len_max = len;
+}
+
 void ps_run_commit(ps_run *r)
 {
     ps_summary *s = staged(r);
-    r->per_verdict[s->verdict]++;
+    count_row(r, s);
     if (r->store)
         store_put(r, s);
     r->n_rows++;
@@ -863,7 +872,7 @@ ps_status ps_run_put(ps_run *r, ps_summary *s)
         store_put(r, s);
     else
         *staged(r) = *s;
-    r->per_verdict[s->verdict]++;
+    count_row(r, s);
     r->n_rows++;
     return PS_OK;
 }
@@ -909,6 +918,11 @@ const ps_summary *ps_run_row(const ps_run *r, size_t i)
         s->fl.limiting = "none";
     }
     return s;
+}
+
+ps_verdict ps_run_verdict(const ps_run *r, size_t i)
+{
+    return r->store ? (ps_verdict)r->store->keys[i].verdict : r->rows[i].verdict;
 }
 
 bool ps_run_failed(const ps_run *r)

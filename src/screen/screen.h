@@ -150,7 +150,8 @@ typedef struct ps_rank_key {
     size_t order;               /* arrival position in the run */
     uint64_t at;                /* the record's offset in the file */
     uint32_t len;               /* and its length */
-    int32_t cls;                /* 0 not stabilizable, 1 screened, 2 input error */
+    int16_t cls;                /* 0 not stabilizable, 1 screened, 2 input error */
+    int16_t verdict;            /* the row's verdict (a ps_verdict), for ps_run_verdict */
 } ps_rank_key;
 
 typedef struct ps_run_store {
@@ -178,6 +179,7 @@ typedef struct ps_run {
     struct ps_family_result *families; /* boundary and yield studies, catalog order */
     size_t n_families, cap_families;
     size_t per_verdict[PS_VERDICT_COUNT];
+    size_t id_len_max;          /* longest plant id among the rows */
     ps_batch_counts counts;
 } ps_run;
 
@@ -196,6 +198,8 @@ ps_status ps_run_put(ps_run *r, ps_summary *s);
 /* Row i (ranked after ps_run_rank). In a spilled run the pointer is valid
  * for the next PS_RUN_RING - 1 calls. */
 const ps_summary *ps_run_row(const ps_run *r, size_t i);
+/* The verdict of row i (ranked), without reading the row back. */
+ps_verdict ps_run_verdict(const ps_run *r, size_t i);
 /* A spill file could not be written or read: the reports are incomplete. */
 bool ps_run_failed(const ps_run *r);
 /* Rank: not stabilizable first, then severity descending, ties by catalog
