@@ -19,7 +19,7 @@ typedef struct ps_outcome {
     const char *file;
     ps_plant *p;
     const ps_analysis *an;   /* NULL when err is set or the analysis is deferred */
-    const ps_floors *fl;     /* NULL when err is set */
+    const ps_floors *fl;     /* NULL when an is */
     const ps_diag *err;
 } ps_outcome;
 

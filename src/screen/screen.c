@@ -3,9 +3,9 @@
 #include "screen/screen.h"
 
 #include <float.h>
+#include <math.h>
 #include <stddef.h>
 #include <stdint.h>
-#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -708,18 +708,14 @@ static const span spans[] = {
 };
 _Static_assert(PS_TARGET_COUNT == 5, "one text span per target");
 
-/* Bytes of span k that are in use in the summary at base. */
-static size_t span_used(const span *sp, const unsigned char *base, size_t room)
+/* Bytes of span sp in use: a text at field (room bytes readable) up to and
+ * with its NUL, a list up to the count that summary holds. */
+static size_t span_bytes(const span *sp, const unsigned char *field, size_t room, const unsigned char *summary)
 {
     if (sp->count_at == SIZE_MAX) {
-        size_t n = strnlen((const char *)base, room < sp->cap ? room : sp->cap);
+        size_t n = strnlen((const char *)field, room < sp->cap ? room : sp->cap);
         return n < sp->cap ? n + 1 : sp->cap;
     }
-    return 0; /* lists: see list_bytes */
-}
-
-static size_t list_bytes(const span *sp, const unsigned char *summary)
-{
     size_t count;
     memcpy(&count, summary + sp->count_at, sizeof count);
     size_t most = sp->cap / sp->elem;
@@ -735,7 +731,7 @@ static size_t pack_summary(const ps_summary *s, unsigned char *out)
         const span *sp = &spans[k];
         memcpy(out + len, in + pos, sp->at - pos);
         len += sp->at - pos;
-        size_t used = sp->count_at == SIZE_MAX ? span_used(sp, in + sp->at, sp->cap) : list_bytes(sp, in);
+        size_t used = span_bytes(sp, in + sp->at, sp->cap, in);
         memcpy(out + len, in + sp->at, used);
         len += used;
         pos = sp->at + sp->cap;
@@ -757,7 +753,7 @@ static bool unpack_summary(const unsigned char *in, size_t len, ps_summary *s)
             return false;
         memcpy(out + pos, in + at, plain);
         at += plain;
-        size_t used = sp->count_at == SIZE_MAX ? span_used(sp, in + at, len - at) : list_bytes(sp, out);
+        size_t used = span_bytes(sp, in + at, len - at, out);
         if (len - at < used)
             return false;
         memcpy(out + sp->at, in + at, used);
@@ -845,21 +841,21 @@ ps_summary *ps_run_next(ps_run *r)
     return s;
 }
 
-static void count_row(ps_run *r, const ps_summary *s)
+/* Keep s, already in its staged place when in memory, as the next row. */
+static void keep_row(ps_run *r, const ps_summary *s)
 {
+    if (r->store)
+        store_put(r, s);
     r->per_verdict[s->verdict]++;
     size_t len = strnlen(s->id, sizeof s->id);
     if (len > r->id_len_max)
         r->id_len_max = len;
+    r->n_rows++;
 }
 
 void ps_run_commit(ps_run *r)
 {
-    ps_summary *s = staged(r);
-    count_row(r, s);
-    if (r->store)
-        store_put(r, s);
-    r->n_rows++;
+    keep_row(r, staged(r));
 }
 
 ps_status ps_run_put(ps_run *r, ps_summary *s)
@@ -868,12 +864,9 @@ ps_status ps_run_put(ps_run *r, ps_summary *s)
     if (st != PS_OK)
         return st;
     s->order = r->n_rows;
-    if (r->store)
-        store_put(r, s);
-    else
+    if (!r->store)
         *staged(r) = *s;
-    count_row(r, s);
-    r->n_rows++;
+    keep_row(r, s);
     return PS_OK;
 }
 
