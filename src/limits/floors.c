@@ -194,7 +194,7 @@ static bool parity_interlacing(const ps_analysis *an)
     return true;
 }
 
-void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
 {
     ps_cplx p[NP], z[NP], w[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
@@ -286,6 +286,19 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
         out->effort = st == PS_OK ? fmax(g, single) : single;
     }
 
+    /* Structure: parity interlacing, and which controllers the Bode area
+     * floor covers (loop relative degree >= 2; at exactly 1 the integral
+     * gains the term -pi kappa / 2, kappa = lim s L(s); S&P 2nd ed. ch. 5). */
+    out->parity_interlacing = parity_interlacing(an);
+    out->bode_controller_rd = an->rel_degree >= 2 ? 0 : 2 - an->rel_degree;
+}
+
+void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+{
+    ps_cplx p[NP], z[NP];
+    size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
+    double theta = an->delay;
+
     /* Requirement-dependent floors (README "Floors"). */
     out->ms_band = out->ms_poisson = out->mt_poisson = NAN;
     bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
@@ -329,10 +342,10 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
     if (rolloff)
         out->crossover_max = fmin(out->crossover_max, req->wh);
     out->window_open = out->crossover_min < out->crossover_max;
+}
 
-    /* Structure: parity interlacing, and which controllers the Bode area
-     * floor covers (loop relative degree >= 2; at exactly 1 the integral
-     * gains the term -pi kappa / 2, kappa = lim s L(s); S&P 2nd ed. ch. 5). */
-    out->parity_interlacing = parity_interlacing(an);
-    out->bode_controller_rd = an->rel_degree >= 2 ? 0 : 2 - an->rel_degree;
+void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+{
+    ps_floors_plant(ws, an, out);
+    ps_floors_apply(ws, an, req, out);
 }

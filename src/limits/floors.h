@@ -40,4 +40,14 @@ typedef struct ps_floors {
  * back to the single-point products and says so in note. */
 void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
 
+/* The two halves of ps_floors_compute. ps_floors_plant fills what depends
+ * on the plant alone (Bode area, interpolation, effort, structure);
+ * ps_floors_apply then sets, from out's plant half, what the requirements
+ * add (band and Poisson floors, overall Ms and Mt, crossover window). A
+ * search that moves only a requirement computes the plant half once and
+ * applies each candidate to a copy of it: the result is the same, bit for
+ * bit, as a full ps_floors_compute. */
+void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out);
+void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
+
 #endif

@@ -110,14 +110,20 @@ static double severity_of(const ps_floors *fl, const ps_requirements *q, double 
     return s;
 }
 
-bool ps_screen_passes(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *req, double *severity)
+/* Whether the floors in ws->fl pass req (see ps_screen_passes). */
+static bool judge(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *req, double *severity)
 {
     double a, b, c;
-    ps_floors_compute(ws->lws, an, req, &ws->fl);
     double s = severity_of(&ws->fl, req, &a, &b, &c);
     if (severity)
         *severity = s;
     return !ws->fl.infinite && !an->hidden_unstable && s <= 1.0;
+}
+
+bool ps_screen_passes(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *req, double *severity)
+{
+    ps_floors_compute(ws->lws, an, req, &ws->fl);
+    return judge(ws, an, req, severity);
 }
 
 const ps_floors *ps_screen_last_floors(const ps_screen_ws *ws)
@@ -268,6 +274,7 @@ typedef struct probe {
     ps_requirements req;
     ps_target_kind kind;
     double band_eps;
+    ps_floors plant_fl; /* plant half of base's floors: the roll-off and band searches move only a requirement */
 } probe;
 
 /* How far x is from passing: <= 0 passes. The share of the allowed
@@ -276,8 +283,25 @@ typedef struct probe {
  * which lets the root finder below use its values, not only its sign. */
 static double probe_margin(probe *pr, double x)
 {
-    ps_analysis *w = &pr->ws->work;
     ps_requirements q = pr->req;
+    if (pr->kind == PS_TARGET_ROLLOFF || pr->kind == PS_TARGET_BAND) {
+        if (pr->kind == PS_TARGET_ROLLOFF) {
+            if (!(x > q.wb))
+                return INFINITY;
+            q.wh = x;
+        } else {
+            q.wb = x;
+            q.eps = pr->band_eps;
+        }
+        pr->ws->fl = pr->plant_fl;
+        ps_floors_apply(pr->ws->lws, pr->base, &q, &pr->ws->fl);
+        if (pr->ws->fl.infinite || pr->base->hidden_unstable)
+            return INFINITY;
+        double sev = pr->kind == PS_TARGET_BAND ? ps_share_peak(pr->ws->fl.ms, q.ms_allowed) : 0.0;
+        bool pass = pr->kind == PS_TARGET_BAND ? pr->ws->fl.ms <= q.ms_allowed : judge(pr->ws, pr->base, &q, &sev);
+        return pass ? fmin(sev - 1.0, 0.0) : fmax(sev - 1.0, DBL_MIN);
+    }
+    ps_analysis *w = &pr->ws->work;
     memcpy(w, pr->base, sizeof *w);
     switch (pr->kind) {
     case PS_TARGET_POLE:
@@ -296,18 +320,7 @@ static double probe_margin(probe *pr, double x)
         break;
     case PS_TARGET_DELAY: w->delay = x; break;
     case PS_TARGET_ROLLOFF:
-        if (!(x > q.wb))
-            return INFINITY;
-        q.wh = x;
-        break;
     case PS_TARGET_BAND:
-        q.wb = x;
-        q.eps = pr->band_eps;
-        ps_floors_compute(pr->ws->lws, w, &q, &pr->ws->fl);
-        if (pr->ws->fl.infinite || w->hidden_unstable)
-            return INFINITY;
-        return pr->ws->fl.ms <= q.ms_allowed ? fmin(ps_share_peak(pr->ws->fl.ms, q.ms_allowed) - 1.0, 0.0)
-                                             : fmax(ps_share_peak(pr->ws->fl.ms, q.ms_allowed) - 1.0, DBL_MIN);
     case PS_TARGET_COUNT: break;
     }
     double sev;
@@ -426,8 +439,9 @@ static double plant_scale(const ps_analysis *an, const ps_requirements *q)
 
 static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *q, ps_summary *s)
 {
-    probe pr = {ws, an, *q, PS_TARGET_POLE, s->band_eps};
+    probe pr = {.ws = ws, .base = an, .req = *q, .kind = PS_TARGET_POLE, .band_eps = s->band_eps};
     ps_limits_skip_effort(ws->lws, !(q->effort_allowed > 0));
+    ps_floors_plant(ws->lws, an, &pr.plant_fl);
     double scale = plant_scale(an, q);
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         ps_target *t = &s->target[k];
@@ -505,14 +519,17 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
     r.eps = s->band_eps;
     s->n_curve = PS_CURVE_N;
     ps_limits_skip_effort(ws->lws, true); /* the curve is the Ms floor alone */
+    ps_floors plant_fl;
+    ps_floors_plant(ws->lws, an, &plant_fl); /* only the band edge moves along the curve */
+    ps_limits_skip_effort(ws->lws, false);
     for (size_t i = 0; i < PS_CURVE_N; i++) {
         double wb = lo * pow(hi / lo, (double)i / (PS_CURVE_N - 1));
         r.wb = wb;
-        ps_floors_compute(ws->lws, an, &r, &ws->fl);
+        ws->fl = plant_fl;
+        ps_floors_apply(ws->lws, an, &r, &ws->fl);
         s->curve_wb[i] = wb;
         s->curve_ms[i] = ws->fl.ms;
     }
-    ps_limits_skip_effort(ws->lws, false);
 }
 
 static void copy_roots(const ps_root *r, size_t n, ps_cplx *out, size_t *n_out)
