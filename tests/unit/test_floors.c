@@ -2,6 +2,7 @@
  * values and closed forms worked from the formulas. */
 #include <criterion/criterion.h>
 #include <math.h>
+#include <stddef.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -273,4 +274,54 @@ Test(floors, bode_coverage_by_relative_degree)
     cr_assert_eq(fl.bode_controller_rd, 1);
     run((ps_cplx[]){{-1, 0}}, 1, (ps_cplx[]){{3, 0}}, 1, 1.0, 0.0);
     cr_assert_eq(fl.bode_controller_rd, 2);
+}
+
+/* Same value, bit for bit, or both NaN. */
+static bool same_double(double a, double b)
+{
+    return (isnan(a) && isnan(b)) || memcmp(&a, &b, sizeof a) == 0;
+}
+
+/* ps_floors_plant once, then ps_floors_apply on one copy for a run of
+ * different requirements, gives what a full ps_floors_compute gives for each
+ * (the searches rely on it). Applying several requirements in turn to the
+ * same copy catches a requirement field the apply step leaves stale. */
+Test(floors, plant_half_then_requirements_equals_full_compute)
+{
+    run((ps_cplx[]){{19, 0}}, 1, (ps_cplx[]){{3.1, 0}, {1.2, 2.5}, {1.2, -2.5}, {-9, 0}}, 4, 2.0, 0.004);
+    ps_floors half, applied, full;
+    ps_floors_plant(lws, &an, &half);
+    applied = half;
+    const double wb[] = {0.0, 0.3, 2.0, 5.5}, wh[] = {0.0, 12.0, 40.0, 400.0}, delta[] = {0.0, 0.3, 0.7};
+    int checked = 0;
+    for (size_t i = 0; i < 4; i++)
+        for (size_t j = 0; j < 4; j++)
+            for (size_t k = 0; k < 3; k++) {
+                ps_requirements q = p.req;
+                q.wb = wb[i];
+                q.eps = 0.4;
+                q.wh = wh[j];
+                q.delta = delta[k];
+                if (q.wh > 0 && !(q.wh > q.wb))
+                    continue;
+                ps_floors_apply(lws, &an, &q, &applied);
+                ps_floors_compute(lws, &an, &q, &full);
+                _Static_assert(offsetof(ps_floors, mt) - offsetof(ps_floors, bode_area) == 8 * sizeof(double),
+                               "the nine floor values follow each other");
+                const double *a = &applied.bode_area, *f = &full.bode_area;
+                for (size_t m = 0; m < 9; m++) /* bode_area .. mt */
+                    cr_assert(same_double(a[m], f[m]), "field %zu at wb %g wh %g delta %g: %.17g vs %.17g", m,
+                              q.wb, q.wh, q.delta, a[m], f[m]);
+                cr_assert_str_eq(applied.limiting, full.limiting);
+                cr_assert(same_double(applied.crossover_min, full.crossover_min));
+                cr_assert(same_double(applied.crossover_max, full.crossover_max));
+                cr_assert_eq(applied.window_open, full.window_open);
+                cr_assert_eq(applied.infinite, full.infinite);
+                cr_assert(same_double(applied.cond, full.cond));
+                cr_assert_eq(applied.parity_interlacing, full.parity_interlacing);
+                cr_assert_eq(applied.bode_controller_rd, full.bode_controller_rd);
+                cr_assert_str_eq(applied.note, full.note);
+                checked++;
+            }
+    cr_assert_geq(checked, 30);
 }
