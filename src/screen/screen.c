@@ -330,23 +330,19 @@ static double probe_margin(probe *pr, double x)
     return pass ? fmin(sev - 1.0, 0.0) : fmax(sev - 1.0, DBL_MIN);
 }
 
-static bool probe_passes(probe *pr, double x)
-{
-    return probe_margin(pr, x) <= 0;
-}
-
 enum { STEP_MAX = 400, BISECT_MAX = 200 };
 #define STEP 1.25
 #define BISECT_RTOL 1e-10
 
-/* Boundary between a passing x_pass and a failing x_fail, to BISECT_RTOL
- * relative; returns the passing end (the conservative value). Illinois
- * (regula falsi with the stale end's value halved) on log x when both ends
- * are positive, on x otherwise; a bisection step whenever the secant point
- * is not well inside the bracket or a margin is infinite. */
-static double bisect(probe *pr, double x_pass, double x_fail)
+/* Boundary between a passing x_pass and a failing x_fail (margins m_pass <=
+ * 0 < m_fail known), to BISECT_RTOL relative; returns the passing end (the
+ * conservative value). Illinois (regula falsi with the stale end's value
+ * halved) on log x when both ends are positive, on x otherwise. A secant
+ * point closer to an end than half the tolerance is moved that far inside,
+ * so a step that lands on the boundary closes the bracket; a bisection step
+ * is taken when a margin is infinite or the margins are not ordered. */
+static double bisect(probe *pr, double x_pass, double m_pass, double x_fail, double m_fail)
 {
-    double m_pass = probe_margin(pr, x_pass), m_fail = probe_margin(pr, x_fail);
     int stale = 0; /* +1: x_pass kept on the last step, -1: x_fail kept */
     for (int i = 0; i < BISECT_MAX && fabs(x_fail - x_pass) > BISECT_RTOL * fmax(fabs(x_pass), fabs(x_fail));
          i++) {
@@ -354,9 +350,11 @@ static double bisect(probe *pr, double x_pass, double x_fail)
         double a = logs ? log(x_pass) : x_pass, b = logs ? log(x_fail) : x_fail, u = 0.5 * (a + b);
         if (isfinite(m_pass) && isfinite(m_fail) && m_fail > m_pass) {
             double s = a + (b - a) * (0 - m_pass) / (m_fail - m_pass);
-            double lo = fmin(a, b), hi = fmax(a, b), guard = 0.01 * (hi - lo);
-            if (s > lo + guard && s < hi - guard)
-                u = s;
+            double lo = fmin(a, b), hi = fmax(a, b);
+            double tol = logs ? BISECT_RTOL : BISECT_RTOL * fmax(fabs(x_pass), fabs(x_fail));
+            double guard = fmin(0.5 * tol, 0.25 * (hi - lo));
+            if (s >= lo && s <= hi)
+                u = fmin(fmax(s, lo + guard), hi - guard);
         }
         double mid = logs ? exp(u) : u, m = probe_margin(pr, mid);
         if (m <= 0) {
@@ -381,27 +379,29 @@ static double bisect(probe *pr, double x_pass, double x_fail)
 static void search(probe *pr, ps_target *t, double x0, double lo, double hi, bool worse_up)
 {
     double good_end = worse_up ? lo : hi, bad_end = worse_up ? hi : lo;
-    if (!probe_passes(pr, good_end)) {
+    double m_good = probe_margin(pr, good_end);
+    if (!(m_good <= 0)) {
         t->state = PS_TARGET_NONE;
         t->searched = good_end;
         snprintf(t->why, sizeof t->why, "fails even at %.3g, the easy end of the searched range", good_end);
         return;
     }
-    t->passes_now = probe_passes(pr, x0);
-    double x = x0, prev = x0;
+    double m0 = probe_margin(pr, x0);
+    t->passes_now = m0 <= 0;
+    double x = x0, m = m0, prev = x0, m_prev = m0;
     bool found = false;
     if (t->passes_now) { /* walk towards the hard end until it fails */
         double f = STEP; /* galloping: the step factor squares each time */
         for (int i = 0; i < STEP_MAX && !found; i++, f = fmin(f * f, 1e3)) {
             prev = x;
+            m_prev = m;
             x = worse_up ? (x > 0 ? x * f : hi * 1e-12) : x / f;
-            if (worse_up ? x >= bad_end : x <= bad_end) {
+            if (worse_up ? x >= bad_end : x <= bad_end)
                 x = bad_end;
-                if (probe_passes(pr, x))
-                    break;
-                found = true;
-            } else
-                found = !probe_passes(pr, x);
+            m = probe_margin(pr, x);
+            found = !(m <= 0);
+            if (x == bad_end)
+                break;
         }
         if (!found) {
             t->state = PS_TARGET_UNBOUNDED;
@@ -409,19 +409,23 @@ static void search(probe *pr, ps_target *t, double x0, double lo, double hi, boo
             snprintf(t->why, sizeof t->why, "passes up to the end of the searched range (%.3g)", bad_end);
             return;
         }
-        t->limit = bisect(pr, prev, x);
+        t->limit = bisect(pr, prev, m_prev, x, m);
     } else { /* walk towards the easy end until it passes */
         double f = STEP;
         for (int i = 0; i < STEP_MAX && !found; i++, f = fmin(f * f, 1e3)) {
             prev = x;
+            m_prev = m;
             x = worse_up ? x / f : x * f;
             if (worse_up ? x <= good_end : x >= good_end) {
                 x = good_end;
+                m = m_good;
                 found = true; /* passes: checked above */
-            } else
-                found = probe_passes(pr, x);
+            } else {
+                m = probe_margin(pr, x);
+                found = m <= 0;
+            }
         }
-        t->limit = bisect(pr, x, prev);
+        t->limit = bisect(pr, x, m, prev, m_prev);
     }
     t->state = PS_TARGET_FOUND;
 }
