@@ -34,7 +34,10 @@ const char *ps_target_label(ps_target_kind k);
 void ps_requirements_text(const ps_summary *s, char *buf, size_t n);
 
 /* Writers. Each returns PS_OK or PS_ERR_IO (PS_ERR_NOMEM for JSON). */
-ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour);
+/* The terminal listing: at most `show` rows per section (0: all); a cut
+ * section ends with a line saying how many more there are and, when `full`
+ * is not NULL, which file holds them all. */
+ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, const char *full);
 ps_status ps_write_csv(FILE *f, const ps_run *r);
 ps_status ps_write_families_csv(FILE *f, const ps_run *r); /* one row per boundary and yield study */
 ps_status ps_write_json(FILE *f, const ps_run *r);

@@ -4,6 +4,7 @@
 #include "report/reports.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <string.h>
 
 /* SGR sequences per verdict (our own choice; only used on a terminal). */
@@ -61,8 +62,21 @@ static bool flagged(ps_verdict v)
     return v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE;
 }
 
-ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
+/* The line that closes a section cut at `show` rows. */
+static void more(FILE *f, size_t left, const char *full)
 {
+    if (left == 0)
+        return;
+    if (full)
+        fprintf(f, "  ... and %zu more (all of them in %s; --show all prints them here)\n", left, full);
+    else
+        fprintf(f, "  ... and %zu more (--show all prints them here)\n", left);
+}
+
+ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, const char *full)
+{
+    if (show == 0)
+        show = SIZE_MAX;
     fprintf(f, "plantsieve %s screening of %zu plant%s from", PS_VERSION, r->n_rows, r->n_rows == 1 ? "" : "s");
     for (size_t i = 0; i < r->n_catalogs; i++)
         fprintf(f, " %s%s", r->catalogs[i].file, r->catalogs[i].failed ? " (not read to the end)" : "");
@@ -75,7 +89,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
         idw = 40;
     fprintf(f, "%4s  %-*s  %-16s  %8s  %-6s  %9s  %9s  %9s  %9s\n", "rank", (int)idw, "plant", "verdict",
             "severity", "worst", "Ms floor", "Ms allow", "Mt floor", "Mt allow");
-    for (size_t i = 0; i < r->n_rows; i++) {
+    for (size_t i = 0; i < r->n_rows && i < show; i++) {
         const ps_summary *s = ps_run_row(r, i);
         char sev[16], msf[16], msa[16], mtf[16], mta[16];
         num(sev, sizeof sev, s->severity);
@@ -88,16 +102,19 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
                 colour ? tint(s->verdict) : "", ps_verdict_name(s->verdict), colour ? "\033[0m" : "", sev,
                 s->worst, msf, msa, mtf, mta);
     }
+    more(f, r->n_rows > show ? r->n_rows - show : 0, full);
 
     size_t n_flag = r->per_verdict[PS_VERDICT_REDESIGN] + r->per_verdict[PS_VERDICT_UNSTABILIZABLE];
     fprintf(f, "\nSend back for mechanical redesign (%zu)\n", n_flag);
     if (n_flag == 0)
         fputs("  none\n", f);
     char line[400];
-    for (size_t i = 0; i < r->n_rows; i++) {
+    size_t shown = 0;
+    for (size_t i = 0; i < r->n_rows && shown < show; i++) {
         if (!flagged(ps_run_verdict(r, i)))
             continue;
         const ps_summary *s = ps_run_row(r, i);
+        shown++;
         fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
         snprintf(line, sizeof line, "cause: %s", s->cause);
         wrap(f, line, "    ", 96);
@@ -108,9 +125,13 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
         }
     }
 
+    if (n_flag > shown)
+        fputc('\n', f);
+    more(f, n_flag - shown, full);
+
     fputs("\nHeadroom of the plants that pass\n", f);
-    size_t n_pass = 0;
-    for (size_t i = 0; i < r->n_rows; i++) {
+    size_t n_pass = 0, all_pass = r->per_verdict[PS_VERDICT_CLEAR] + r->per_verdict[PS_VERDICT_MARGINAL];
+    for (size_t i = 0; i < r->n_rows && n_pass < show; i++) {
         ps_verdict v = ps_run_verdict(r, i);
         if (v != PS_VERDICT_CLEAR && v != PS_VERDICT_MARGINAL)
             continue;
@@ -125,6 +146,9 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour)
     }
     if (n_pass == 0)
         fputs("  none\n", f);
+    if (all_pass > n_pass)
+        fputc('\n', f);
+    more(f, all_pass - n_pass, full);
 
     if (r->per_verdict[PS_VERDICT_UNREAD]) {
         fprintf(f, "\nEntries that could not be read (%zu)\n", r->per_verdict[PS_VERDICT_UNREAD]);

@@ -1,6 +1,6 @@
 /* pool.c - see pool.h. The reader fills chunk A while the workers work on
- * chunk B; when A is full the reader waits for B, commits it, hands A over
- * and goes on with B. Workers take the next job of the chunk from a shared
+ * chunk B; when A is full the reader waits for B, hands A over, commits B
+ * while the workers are on A, and goes on filling B. Workers take the next job of the chunk from a shared
  * counter; every result lands in its own job, so the split never shows. */
 #include "screen/pool.h"
 
@@ -165,27 +165,41 @@ ps_pool *ps_pool_new(size_t threads, ps_run *run, ps_pool_error_fn say, void *ct
     return p;
 }
 
-/* Wait for the chunk in flight and commit it. */
-static ps_status land(ps_pool *p)
+/* Wait until the workers are done with the chunk in flight. */
+static void wait_flight(ps_pool *p)
 {
-    if (!p->flight)
-        return PS_OK;
     pthread_mutex_lock(&p->mu);
     while (p->busy > 0)
         pthread_cond_wait(&p->done, &p->mu);
     pthread_mutex_unlock(&p->mu);
+}
+
+/* Commit n finished jobs in order. */
+static ps_status commit(ps_pool *p, job *jobs, size_t n)
+{
     ps_status st = PS_OK;
-    for (size_t j = 0; j < p->flight_n; j++) {
-        job *jb = &p->flight[j];
+    for (size_t j = 0; j < n; j++) {
+        job *jb = &jobs[j];
         if (jb->has_err && p->say)
             p->say(p->ctx, jb->file, &jb->p, &jb->err);
         p->analysis_errors += jb->analysis_err;
         if (st == PS_OK)
             st = ps_run_put(p->run, &jb->s);
     }
+    return st;
+}
+
+/* Wait for the chunk in flight and commit it. */
+static ps_status land(ps_pool *p)
+{
+    if (!p->flight)
+        return PS_OK;
+    wait_flight(p);
+    job *done = p->flight;
+    size_t n = p->flight_n;
     p->flight = NULL;
     p->flight_n = 0;
-    return st;
+    return commit(p, done, n);
 }
 
 static void launch(ps_pool *p, job *jobs, size_t n)
@@ -223,16 +237,24 @@ void ps_pool_free(ps_pool *p)
     free(p);
 }
 
-/* Hand the filled chunk over once the one in flight has landed. */
+/* Hand the filled chunk over as soon as the workers are done with the one
+ * in flight, then commit that one while they work on the new one (the
+ * reader refills it afterwards). */
 static ps_status hand_over(ps_pool *p)
 {
-    ps_status st = land(p);
-    if (p->fill > 0) {
-        launch(p, p->chunk[p->cur], p->fill);
-        p->cur ^= 1;
-        p->fill = 0;
+    if (p->fill == 0)
+        return land(p);
+    job *done = NULL;
+    size_t n = 0;
+    if (p->flight) {
+        wait_flight(p);
+        done = p->flight;
+        n = p->flight_n;
     }
-    return st;
+    launch(p, p->chunk[p->cur], p->fill);
+    p->cur ^= 1;
+    p->fill = 0;
+    return done ? commit(p, done, n) : PS_OK;
 }
 
 ps_status ps_pool_flush(ps_pool *p)

@@ -135,6 +135,27 @@ assert all(t["state"] == "not-applicable" for p in b["plants"] for t in p["targe
 PY
 check "screen: --detail none keeps verdicts and ranking, drops targets" 0 $?
 "$ps" screen --detail some --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: bad --detail is a usage error" 2 $?
+# --show: the stdout listing is cut per section; the .txt report stays whole.
+demo="$src/catalogs/demo-variants.yaml"
+"$ps" screen --show 3 -o "$tmp/show3" --gate never "$demo" >"$tmp/show3.out" 2>&1; check "screen --show 3" 0 $?
+"$py" - "$tmp/show3.out" "$tmp/thr1.out" "$tmp/show3/demo-variants.screen.txt" <<'PY'
+import re, sys
+cut, whole, txt = (open(p).read() for p in sys.argv[1:4])
+rows = lambda t: re.findall(r"^ *\d+  \S+ +(?:clear|marginal|redesign|not-stabilizable|input-error) ", t, re.M)
+n = len(rows(whole))
+assert n > 3 and len(rows(cut)) == 3, (n, len(rows(cut)))
+more = [int(m) for m in re.findall(r"^  \.\.\. and (\d+) more \(all of them in .*show3/demo-variants\.screen\.txt", cut, re.M)]
+flag = int(re.search(r"redesign \((\d+)\)", whole).group(1))
+passing = sum(int(x) for x in re.findall(r"(?:clear|marginal) (\d+)", whole.split("Counts:")[1]))
+assert more == [n - 3, flag - 3, passing - 3], (more, n, flag, passing)
+assert txt == whole, "the .txt report is cut too"
+PY
+check "screen: --show 3 cuts each section with the right counts, .txt whole" 0 $?
+"$ps" screen --show all --no-files --gate never "$demo" >"$tmp/showall.out" 2>&1
+grep -q "^  \.\.\. and" "$tmp/showall.out"; check "screen: --show all cuts nothing" 1 $?
+"$ps" screen --show 2 --no-files --gate never "$cf" >"$tmp/out" 2>&1
+grep -q "more (--show all prints them here)" "$tmp/out"; check "screen: --no-files cut names no file" 0 $?
+"$ps" screen --show 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --show 0 is a usage error" 2 $?
 # Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte.
 "$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
 check "screen --memory-rows 3" 0 $?
