@@ -644,6 +644,7 @@ void ps_run_free(ps_run *r)
     free(r->families);
     if (r->store) {
         fclose(r->store->file);
+        free(r->store->file_buf);
         free(r->store->keys);
         free(r->store);
     }
@@ -809,9 +810,15 @@ static ps_status spill(ps_run *r)
         free(st);
         return PS_ERR_IO;
     }
+    /* Records go out in large writes (stdio's default buffer for a file is a
+     * page: a system call every few records). Without the buffer the
+     * default stays. */
+    if ((st->file_buf = malloc(PS_RUN_WRITE_BUF)))
+        setvbuf(st->file, st->file_buf, _IOFBF, PS_RUN_WRITE_BUF);
     st->cap_keys = 2 * (r->n_rows + 1024);
     if (!(st->keys = malloc(st->cap_keys * sizeof *st->keys))) {
         fclose(st->file);
+        free(st->file_buf);
         free(st);
         return PS_ERR_NOMEM;
     }

@@ -143,7 +143,7 @@ typedef struct ps_catalog_entry {
  * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
  * the file holds each summary as a compact record (texts and lists cut to
  * their length: about 0.9-1.4 kB instead of 3.4 kB). */
-enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536 };
+enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536, PS_RUN_WRITE_BUF = 1 << 20 };
 
 typedef struct ps_rank_key {
     double severity;
@@ -156,6 +156,7 @@ typedef struct ps_rank_key {
 
 typedef struct ps_run_store {
     FILE *file;                 /* NULL while every row is in memory */
+    char *file_buf;             /* stdio buffer of file (PS_RUN_WRITE_BUF bytes) */
     ps_rank_key *keys;          /* one per row (spilled runs), ranked by ps_run_rank */
     size_t cap_keys;
     uint64_t end;               /* bytes written */
