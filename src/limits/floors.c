@@ -293,25 +293,22 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
     out->bode_controller_rd = an->rel_degree >= 2 ? 0 : 2 - an->rel_degree;
 }
 
-void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+/* The floors on ||S|| that the band edge moves: band-forced and Poisson. */
+static void band_floors(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np,
+                        const ps_requirements *req, ps_floors *out)
 {
-    ps_cplx p[NP], z[NP];
-    size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
-    double theta = an->delay;
-
-    /* Requirement-dependent floors (README "Floors"). */
-    out->ms_band = out->ms_poisson = out->mt_poisson = NAN;
+    out->ms_band = out->ms_poisson = NAN;
     bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
     if (rolloff)
         out->ms_band = ps_band_floor_ws(ws, out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0, req->wh,
                                      req->delta, req->k);
     if (band)
         out->ms_poisson = out->infinite ? INFINITY : ps_poisson_s_floor(z, nz, p, np, req->eps, req->wb);
-    if (rolloff && req->delta > 0)
-        out->mt_poisson = out->infinite ? INFINITY
-                                        : ps_poisson_t_floor(z, nz, p, np, theta, req->delta / (1 - req->delta), req->wh);
+}
 
-    /* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >= ||S|| - 1 (S + T = 1). */
+/* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >= ||S|| - 1 (S + T = 1). */
+static void overall(ps_floors *out)
+{
     double s_only = out->ms_interpolation, t_only = out->mt_interpolation;
     const char *s_src = "interpolation";
     if (out->ms_band > s_only) {
@@ -327,6 +324,22 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
     out->ms = fmax(s_only, t_only - 1.0);
     out->mt = fmax(t_only, s_only - 1.0);
     out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
+}
+
+void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+{
+    ps_cplx p[NP], z[NP];
+    size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
+    double theta = an->delay;
+
+    /* Requirement-dependent floors (README "Floors"). */
+    band_floors(ws, z, nz, p, np, req, out);
+    bool rolloff = req && req->wh > 0;
+    out->mt_poisson = NAN;
+    if (rolloff && req->delta > 0)
+        out->mt_poisson = out->infinite ? INFINITY
+                                        : ps_poisson_t_floor(z, nz, p, np, theta, req->delta / (1 - req->delta), req->wh);
+    overall(out);
 
     /* Crossover window, rules of thumb (S&P 2nd ed. ch. 5): w_c > 2 p for a
      * real RHP pole (|p| for complex), w_c < z/2 for a real RHP zero (|z|
@@ -342,6 +355,14 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
     if (rolloff)
         out->crossover_max = fmin(out->crossover_max, req->wh);
     out->window_open = out->crossover_min < out->crossover_max;
+}
+
+void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+{
+    ps_cplx p[NP], z[NP];
+    size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
+    band_floors(ws, z, nz, p, np, req, out);
+    overall(out);
 }
 
 void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)

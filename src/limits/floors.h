@@ -50,4 +50,11 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
 void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out);
 void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
 
+/* Only the band edge (wb, eps) moved since out was last applied with the
+ * same plant and otherwise the same requirements: recomputes the band-forced
+ * and Poisson Ms floors and the overall Ms and Mt, and keeps the rest (the
+ * Poisson Mt floor and the crossover window do not depend on the band).
+ * Equal, bit for bit, to ps_floors_apply under those conditions. */
+void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
+
 #endif

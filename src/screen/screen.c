@@ -275,6 +275,7 @@ typedef struct probe {
     ps_target_kind kind;
     double band_eps;
     ps_floors plant_fl; /* plant half of base's floors: the roll-off and band searches move only a requirement */
+    ps_floors band_fl;  /* plant_fl applied to the requirements with band_eps: the band search moves only wb */
 } probe;
 
 /* How far x is from passing: <= 0 passes. The share of the allowed
@@ -293,8 +294,13 @@ static double probe_margin(probe *pr, double x)
             q.wb = x;
             q.eps = pr->band_eps;
         }
-        pr->ws->fl = pr->plant_fl;
-        ps_floors_apply(pr->ws->lws, pr->base, &q, &pr->ws->fl);
+        if (pr->kind == PS_TARGET_ROLLOFF) {
+            pr->ws->fl = pr->plant_fl;
+            ps_floors_apply(pr->ws->lws, pr->base, &q, &pr->ws->fl);
+        } else {
+            pr->ws->fl = pr->band_fl;
+            ps_floors_apply_band(pr->ws->lws, pr->base, &q, &pr->ws->fl);
+        }
         if (pr->ws->fl.infinite || pr->base->hidden_unstable)
             return INFINITY;
         double sev = pr->kind == PS_TARGET_BAND ? ps_share_peak(pr->ws->fl.ms, q.ms_allowed) : 0.0;
@@ -446,6 +452,10 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
     probe pr = {.ws = ws, .base = an, .req = *q, .kind = PS_TARGET_POLE, .band_eps = s->band_eps};
     ps_limits_skip_effort(ws->lws, !(q->effort_allowed > 0));
     ps_floors_plant(ws->lws, an, &pr.plant_fl);
+    ps_requirements qb = *q;
+    qb.eps = s->band_eps;
+    pr.band_fl = pr.plant_fl;
+    ps_floors_apply(ws->lws, an, &qb, &pr.band_fl);
     double scale = plant_scale(an, q);
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         ps_target *t = &s->target[k];
@@ -523,14 +533,16 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
     r.eps = s->band_eps;
     s->n_curve = PS_CURVE_N;
     ps_limits_skip_effort(ws->lws, true); /* the curve is the Ms floor alone */
-    ps_floors plant_fl;
-    ps_floors_plant(ws->lws, an, &plant_fl); /* only the band edge moves along the curve */
+    ps_floors base;
+    ps_floors_plant(ws->lws, an, &base); /* only the band edge moves along the curve */
     ps_limits_skip_effort(ws->lws, false);
+    r.wb = lo;
+    ps_floors_apply(ws->lws, an, &r, &base);
     for (size_t i = 0; i < PS_CURVE_N; i++) {
         double wb = lo * pow(hi / lo, (double)i / (PS_CURVE_N - 1));
         r.wb = wb;
-        ws->fl = plant_fl;
-        ps_floors_apply(ws->lws, an, &r, &ws->fl);
+        ws->fl = base;
+        ps_floors_apply_band(ws->lws, an, &r, &ws->fl);
         s->curve_wb[i] = wb;
         s->curve_ms[i] = ws->fl.ms;
     }

@@ -282,6 +282,26 @@ static bool same_double(double a, double b)
     return (isnan(a) && isnan(b)) || memcmp(&a, &b, sizeof a) == 0;
 }
 
+/* Every field of a equals f's, bit for bit (q names the case). */
+static void same_floors(const ps_floors *a_fl, const ps_floors *f_fl, const ps_requirements *q)
+{
+    _Static_assert(offsetof(ps_floors, mt) - offsetof(ps_floors, bode_area) == 8 * sizeof(double),
+                   "the nine floor values follow each other");
+    const double *a = &a_fl->bode_area, *f = &f_fl->bode_area;
+    for (size_t m = 0; m < 9; m++) /* bode_area .. mt */
+        cr_assert(same_double(a[m], f[m]), "field %zu at wb %g wh %g delta %g: %.17g vs %.17g", m, q->wb, q->wh,
+                  q->delta, a[m], f[m]);
+    cr_assert_str_eq(a_fl->limiting, f_fl->limiting);
+    cr_assert(same_double(a_fl->crossover_min, f_fl->crossover_min));
+    cr_assert(same_double(a_fl->crossover_max, f_fl->crossover_max));
+    cr_assert_eq(a_fl->window_open, f_fl->window_open);
+    cr_assert_eq(a_fl->infinite, f_fl->infinite);
+    cr_assert(same_double(a_fl->cond, f_fl->cond));
+    cr_assert_eq(a_fl->parity_interlacing, f_fl->parity_interlacing);
+    cr_assert_eq(a_fl->bode_controller_rd, f_fl->bode_controller_rd);
+    cr_assert_str_eq(a_fl->note, f_fl->note);
+}
+
 /* ps_floors_plant once, then ps_floors_apply on one copy for a run of
  * different requirements, gives what a full ps_floors_compute gives for each
  * (the searches rely on it). Applying several requirements in turn to the
@@ -306,22 +326,43 @@ Test(floors, plant_half_then_requirements_equals_full_compute)
                     continue;
                 ps_floors_apply(lws, &an, &q, &applied);
                 ps_floors_compute(lws, &an, &q, &full);
-                _Static_assert(offsetof(ps_floors, mt) - offsetof(ps_floors, bode_area) == 8 * sizeof(double),
-                               "the nine floor values follow each other");
-                const double *a = &applied.bode_area, *f = &full.bode_area;
-                for (size_t m = 0; m < 9; m++) /* bode_area .. mt */
-                    cr_assert(same_double(a[m], f[m]), "field %zu at wb %g wh %g delta %g: %.17g vs %.17g", m,
-                              q.wb, q.wh, q.delta, a[m], f[m]);
-                cr_assert_str_eq(applied.limiting, full.limiting);
-                cr_assert(same_double(applied.crossover_min, full.crossover_min));
-                cr_assert(same_double(applied.crossover_max, full.crossover_max));
-                cr_assert_eq(applied.window_open, full.window_open);
-                cr_assert_eq(applied.infinite, full.infinite);
-                cr_assert(same_double(applied.cond, full.cond));
-                cr_assert_eq(applied.parity_interlacing, full.parity_interlacing);
-                cr_assert_eq(applied.bode_controller_rd, full.bode_controller_rd);
-                cr_assert_str_eq(applied.note, full.note);
+                same_floors(&applied, &full, &q);
                 checked++;
             }
     cr_assert_geq(checked, 30);
+}
+
+/* After one ps_floors_apply, moving only the band edge (wb, eps) with
+ * ps_floors_apply_band gives the full floors for each band edge (the band
+ * target and the Ms-vs-band curve rely on it); the Poisson Mt floor is
+ * active (delta > 0) so a stale one would show. */
+Test(floors, band_only_update_equals_full_compute)
+{
+    run((ps_cplx[]){{19, 0}, {4.5, 0}}, 2, (ps_cplx[]){{3.1, 0}, {1.2, 2.5}, {1.2, -2.5}, {-9, 0}}, 4, 2.0, 0.0);
+    const double wh[] = {12.0, 40.0, 400.0}, delta[] = {0.3, 0.7}, wb[] = {0.05, 0.3, 2.0, 5.5, 11.0};
+    int checked = 0;
+    for (size_t j = 0; j < 3; j++)
+        for (size_t k = 0; k < 2; k++) {
+            ps_requirements q = p.req;
+            q.wh = wh[j];
+            q.delta = delta[k];
+            q.wb = 1.0;
+            q.eps = 0.5;
+            ps_floors base, moved, full;
+            ps_floors_plant(lws, &an, &base);
+            ps_floors_apply(lws, &an, &q, &base);
+            cr_assert(isfinite(base.mt_poisson), "the Poisson Mt floor is active in this case");
+            for (size_t i = 0; i < 5; i++) {
+                q.wb = wb[i];
+                q.eps = i % 2 ? 0.1 : 0.7071;
+                if (!(q.wh > q.wb))
+                    continue;
+                moved = base;
+                ps_floors_apply_band(lws, &an, &q, &moved);
+                ps_floors_compute(lws, &an, &q, &full);
+                same_floors(&moved, &full, &q);
+                checked++;
+            }
+        }
+    cr_assert_geq(checked, 25);
 }
