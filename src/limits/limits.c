@@ -256,6 +256,12 @@ ps_status ps_pick_confluent(ps_limits_ws *ws, const ps_cplx *s, const unsigned *
     if (n > NP)
         return ps_diag_set(d, PS_ERR_NUMERIC, 0, 0, "", "more interpolation conditions (%zu) than supported (%d)",
                            n, NP);
+    if (n == 1 && s[0].re > 0) {
+        /* One point: the constant function meets it, so the least norm is
+         * |w| (the 1 x 1 Pick matrix gives the same, one rounding apart). */
+        *out = hypot(taylor[0].re, taylor[0].im);
+        return PS_OK;
+    }
     for (size_t k = 0; k < npts; k++)
         for (size_t l = 0; l < npts; l++) {
             double complex sk = cx(s[k]), sl = cx(s[l]);
