@@ -381,17 +381,12 @@ static double bisect(probe *pr, double x_pass, double m_pass, double x_fail, dou
 }
 
 /* Search x in [lo, hi] for the pass/fail boundary, starting at x0.
- * worse_up: larger x is harder (passing set below the boundary). */
+ * worse_up: larger x is harder (passing set below the boundary). The
+ * verdict is taken as monotone along x: when x0 passes, so does the easy
+ * end, which is then not evaluated. */
 static void search(probe *pr, ps_target *t, double x0, double lo, double hi, bool worse_up)
 {
     double good_end = worse_up ? lo : hi, bad_end = worse_up ? hi : lo;
-    double m_good = probe_margin(pr, good_end);
-    if (!(m_good <= 0)) {
-        t->state = PS_TARGET_NONE;
-        t->searched = good_end;
-        snprintf(t->why, sizeof t->why, "fails even at %.3g, the easy end of the searched range", good_end);
-        return;
-    }
     double m0 = probe_margin(pr, x0);
     t->passes_now = m0 <= 0;
     double x = x0, m = m0, prev = x0, m_prev = m0;
@@ -417,6 +412,13 @@ static void search(probe *pr, ps_target *t, double x0, double lo, double hi, boo
         }
         t->limit = bisect(pr, prev, m_prev, x, m);
     } else { /* walk towards the easy end until it passes */
+        double m_good = x0 == good_end ? m0 : probe_margin(pr, good_end);
+        if (!(m_good <= 0)) {
+            t->state = PS_TARGET_NONE;
+            t->searched = good_end;
+            snprintf(t->why, sizeof t->why, "fails even at %.3g, the easy end of the searched range", good_end);
+            return;
+        }
         double f = STEP;
         for (int i = 0; i < STEP_MAX && !found; i++, f = fmin(f * f, 1e3)) {
             prev = x;
