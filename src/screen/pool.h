@@ -11,7 +11,7 @@
 
 #include "screen/screen.h"
 
-enum { PS_POOL_CHUNK = 512, PS_POOL_MAX_THREADS = 64 };
+enum { PS_POOL_CHUNK = 512, PS_POOL_MAX_THREADS = 64, PS_POOL_WORKER_NICE = 5 };
 
 typedef struct ps_pool ps_pool;
 
