@@ -56,7 +56,8 @@ static const char usage_text[] =
     "                      stabilizable), marginal (also marginal), never\n"
     "  --marginal-at X     share of the allowed log-peak that makes a plant marginal\n"
     "                      (default 0.8)\n"
-    "  --no-files          print the table only, write no report files\n"
+    "  --no-files          print the listing only, write no report files; past\n"
+    "                      --memory-rows only the rows it can print are kept\n"
     "  --threads N         assess plants on N threads (default: the online CPUs);\n"
     "                      the reports are the same for any N\n"
     "  --quiet             no progress line on stderr (shown only on a terminal)\n"
@@ -322,7 +323,7 @@ static int cmd_screen(int argc, char **argv)
 {
     const char *outdir = "reports";
     gate g = GATE_REDESIGN;
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL};
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
     bool files = true, dashdash = false, quiet = false;
     size_t show = SHOW_DEFAULT;
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
@@ -421,6 +422,8 @@ static int cmd_screen(int argc, char **argv)
         free(cats);
         return usage_error("screen needs at least one catalog file", NULL);
     }
+    if (!files)
+        opt.keep_top = show; /* only the cut listing reads the rows (0: all) */
     screen_ctx c = {0};
     ps_run_init(&c.run, &opt);
     c.ws = ps_screen_ws_new();
@@ -597,7 +600,7 @@ static int cmd_explain(int argc, char **argv)
         if (argv[i][0] == '-' && argv[i][1] != '\0')
             return usage_error("unknown option", argv[i]);
     screen_ctx c = {0};
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL};
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
     ps_run_init(&c.run, &opt);
     c.only_id = argv[0];
     c.also = explain_one;

@@ -657,10 +657,19 @@ void ps_run_free(ps_run *r)
     free(r->rows);
     free(r->families);
     if (r->store) {
-        fclose(r->store->file);
-        free(r->store->file_buf);
-        free(r->store->keys);
-        free(r->store);
+        ps_run_store *st = r->store;
+        if (st->file)
+            fclose(st->file);
+        free(st->file_buf);
+        free(st->keys);
+        for (size_t k = 0; k < st->n_slots; k++)
+            free(st->slot[k]);
+        free(st->slot);
+        free(st->slot_refs);
+        free(st->free_slots);
+        for (int h = 0; h < 3; h++)
+            free(st->heap[h]);
+        free(st);
     }
     memset(r, 0, sizeof *r);
 }
@@ -802,12 +811,124 @@ static bool unpack_summary(const unsigned char *in, size_t len, ps_summary *s)
     return true;
 }
 
+/* ---- keep_top runs: the records the cut listing can print ---- */
+
+static int by_key(const void *a, const void *b);
+
+/* Heap of row indices with the row that ranks last on top. */
+static bool ranks_after(const ps_run_store *st, size_t a, size_t b)
+{
+    return by_key(&st->keys[a], &st->keys[b]) > 0;
+}
+static void heap_up(ps_run_store *st, size_t *h, size_t i)
+{
+    while (i > 0 && ranks_after(st, h[i], h[(i - 1) / 2])) {
+        size_t p = (i - 1) / 2, t = h[p];
+        h[p] = h[i];
+        h[i] = t;
+        i = p;
+    }
+}
+static void heap_down(ps_run_store *st, size_t *h, size_t n)
+{
+    for (size_t i = 0;;) {
+        size_t l = 2 * i + 1, r = l + 1, m = i;
+        if (l < n && ranks_after(st, h[l], h[m]))
+            m = l;
+        if (r < n && ranks_after(st, h[r], h[m]))
+            m = r;
+        if (m == i)
+            return;
+        size_t t = h[m];
+        h[m] = h[i];
+        h[i] = t;
+        i = m;
+    }
+}
+static void slot_release(ps_run_store *st, size_t row)
+{
+    size_t k = (size_t)st->keys[row].at;
+    if (--st->slot_refs[k] == 0) {
+        free(st->slot[k]);
+        st->slot[k] = NULL;
+        st->free_slots[st->n_free++] = k;
+        st->keys[row].len = 0;
+    }
+}
+/* The lists a row of this verdict appears in (terminal_report.c). */
+static unsigned row_lists(ps_verdict v)
+{
+    unsigned m = 1u; /* the ranking */
+    if (v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE)
+        m |= 2u;
+    if (v == PS_VERDICT_CLEAR || v == PS_VERDICT_MARGINAL)
+        m |= 4u;
+    return m;
+}
+static ps_status keep_put(ps_run *r, size_t row, const unsigned char *rec, size_t len)
+{
+    ps_run_store *st = r->store;
+    size_t n = r->opt.keep_top;
+    ps_rank_key *key = &st->keys[row];
+    unsigned lists = row_lists((ps_verdict)key->verdict), take = 0;
+    for (int h = 0; h < 3; h++)
+        if ((lists >> h & 1u) && (st->heap_len[h] < n || ranks_after(st, st->heap[h][0], row)))
+            take |= 1u << h;
+    bool unread = key->verdict == PS_VERDICT_UNREAD;
+    key->len = 0;
+    if (!take && !unread)
+        return PS_OK;
+    if (st->n_free == 0 && st->n_slots == st->cap_slots) {
+        size_t cap = st->cap_slots ? 2 * st->cap_slots : 64;
+        unsigned char **sl = realloc(st->slot, cap * sizeof *sl);
+        if (sl)
+            st->slot = sl;
+        unsigned *rf = sl ? realloc(st->slot_refs, cap * sizeof *rf) : NULL;
+        if (rf)
+            st->slot_refs = rf;
+        size_t *fr = rf ? realloc(st->free_slots, cap * sizeof *fr) : NULL;
+        if (!fr)
+            return PS_ERR_NOMEM;
+        st->free_slots = fr;
+        st->cap_slots = cap;
+    }
+    size_t k = st->n_free ? st->free_slots[--st->n_free] : st->n_slots++;
+    if (!(st->slot[k] = malloc(len))) {
+        st->free_slots[st->n_free++] = k;
+        return PS_ERR_NOMEM;
+    }
+    memcpy(st->slot[k], rec, len);
+    st->slot_refs[k] = unread;
+    key->at = k;
+    key->len = (uint32_t)len;
+    for (int h = 0; h < 3; h++) {
+        if (!(take >> h & 1u))
+            continue;
+        st->slot_refs[k]++;
+        if (st->heap_len[h] < n) {
+            st->heap[h][st->heap_len[h]] = row;
+            heap_up(st, st->heap[h], st->heap_len[h]++);
+        } else {
+            size_t out = st->heap[h][0];
+            st->heap[h][0] = row;
+            heap_down(st, st->heap[h], n);
+            slot_release(st, out);
+        }
+    }
+    return PS_OK;
+}
+
 static void store_put(ps_run *r, const ps_summary *s)
 {
     ps_run_store *st = r->store;
     size_t len = pack_summary(s, st->scratch);
     st->keys[r->n_rows] =
         (ps_rank_key){s->severity, s->order, st->end, (uint32_t)len, (int16_t)rank_class(s), (int16_t)s->verdict};
+    if (!st->file) {
+        if (keep_put(r, r->n_rows, st->scratch, len) != PS_OK)
+            st->failed = true;
+        return;
+    }
     if (fwrite(st->scratch, 1, len, st->file) != len)
         st->failed = true;
     st->end += len;
@@ -820,23 +941,23 @@ static ps_status spill(ps_run *r)
     ps_run_store *st = calloc(1, sizeof *st);
     if (!st)
         return PS_ERR_NOMEM;
-    if (!(st->file = tmpfile())) {
-        free(st);
-        return PS_ERR_IO;
+    r->store = st; /* freed by ps_run_free from here on */
+    if (r->opt.keep_top) {
+        for (int h = 0; h < 3; h++)
+            if (!(st->heap[h] = malloc(r->opt.keep_top * sizeof *st->heap[h])))
+                return PS_ERR_NOMEM;
+    } else {
+        if (!(st->file = tmpfile()))
+            return PS_ERR_IO;
+        /* Records go out in large writes (stdio's default buffer for a file
+         * is a page: a system call every few records). Without the buffer
+         * the default stays. */
+        if ((st->file_buf = malloc(PS_RUN_WRITE_BUF)))
+            setvbuf(st->file, st->file_buf, _IOFBF, PS_RUN_WRITE_BUF);
     }
-    /* Records go out in large writes (stdio's default buffer for a file is a
-     * page: a system call every few records). Without the buffer the
-     * default stays. */
-    if ((st->file_buf = malloc(PS_RUN_WRITE_BUF)))
-        setvbuf(st->file, st->file_buf, _IOFBF, PS_RUN_WRITE_BUF);
     st->cap_keys = 2 * (r->n_rows + 1024);
-    if (!(st->keys = malloc(st->cap_keys * sizeof *st->keys))) {
-        fclose(st->file);
-        free(st->file_buf);
-        free(st);
+    if (!(st->keys = malloc(st->cap_keys * sizeof *st->keys)))
         return PS_ERR_NOMEM;
-    }
-    r->store = st;
     size_t n = r->n_rows;
     r->n_rows = 0;
     for (; r->n_rows < n; r->n_rows++)
@@ -943,7 +1064,7 @@ const ps_summary *ps_run_row(const ps_run *r, size_t i)
     ps_summary *s = &st->ring[st->ring_pos];
     st->ring_pos = (st->ring_pos + 1) % PS_RUN_RING;
     const ps_rank_key *key = &st->keys[i];
-    const unsigned char *rec = record_at(st, key);
+    const unsigned char *rec = !st->file ? (key->len ? st->slot[key->at] : NULL) : record_at(st, key);
     if (!rec || !unpack_summary(rec, key->len, s)) {
         st->failed = true;
         memset(s, 0, sizeof *s);
@@ -997,7 +1118,7 @@ void ps_run_rank(ps_run *r)
     if (r->store) {
         if (r->n_rows > 1)
             qsort(r->store->keys, r->n_rows, sizeof *r->store->keys, by_key);
-        if (fflush(r->store->file) != 0) /* ps_run_row reads with pread from here on */
+        if (r->store->file && fflush(r->store->file) != 0) /* ps_run_row reads with pread from here on */
             r->store->failed = true;
     } else if (r->n_rows > 1)
         qsort(r->rows, r->n_rows, sizeof *r->rows, by_rank);

@@ -105,6 +105,11 @@ typedef struct ps_screen_opts {
     double marginal_at;         /* default PS_MARGINAL_AT */
     size_t memory_rows;         /* summaries kept in memory before the run uses its file; 0: PS_RUN_MEMORY_ROWS */
     ps_detail detail;           /* which plants get redesign targets and the Ms-vs-band curve */
+    size_t keep_top;            /* > 0: a run read only by the terminal listing cut at keep_top rows a
+                                   list (no report files): past memory_rows it keeps the records of
+                                   the rows that can still be among the first keep_top of the ranking,
+                                   of the redesign list or of the passing list, and of every input
+                                   error, in memory, and writes no file; 0: every record is kept */
 } ps_screen_opts;
 
 typedef struct ps_screen_ws ps_screen_ws;
@@ -168,6 +173,13 @@ typedef struct ps_run_store {
     ps_summary ring[PS_RUN_RING]; /* rows read back for ps_run_row */
     size_t ring_pos;
     bool failed;                /* a write or read of the file failed */
+    /* keep_top runs (no file): records in slots (key.at = slot, len 0 when
+     * dropped); per list a heap of the keep_top best rows so far, worst on
+     * top; a slot lives while some list holds its row (or it is an input error). */
+    unsigned char **slot;
+    unsigned *slot_refs;
+    size_t n_slots, cap_slots, *free_slots, n_free;
+    size_t *heap[3], heap_len[3];
 } ps_run_store;
 
 typedef struct ps_run {

@@ -156,6 +156,17 @@ grep -q "^  \.\.\. and" "$tmp/showall.out"; check "screen: --show all cuts nothi
 "$ps" screen --show 2 --no-files --gate never "$cf" >"$tmp/out" 2>&1
 grep -q "more (--show all prints them here)" "$tmp/out"; check "screen: --no-files cut names no file" 0 $?
 "$ps" screen --show 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --show 0 is a usage error" 2 $?
+# With --no-files a spilled run keeps only the rows its cut listing can print (rank heaps, no
+# file): the listing must be the one of a run that keeps every row in memory, input errors too.
+broken="$src/catalogs/broken/broken-entries.yaml"
+for n in 1 3 10; do
+    "$ps" screen --no-files --gate never --show $n "$demo" "$broken" >"$tmp/keep-mem.out" 2>&1
+    for m in 1 4; do
+        "$ps" screen --no-files --gate never --show $n --memory-rows $m "$demo" "$broken" >"$tmp/keep-top.out" 2>&1
+        cmp -s "$tmp/keep-mem.out" "$tmp/keep-top.out"
+        check "screen --no-files --show $n --memory-rows $m: same listing as in memory" 0 $?
+    done
+done
 # Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte.
 "$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
 check "screen --memory-rows 3" 0 $?
