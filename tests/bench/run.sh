@@ -7,6 +7,7 @@
 #   read    plantsieve read CAT                       (parse only)
 #   screen  plantsieve screen --no-files --gate never CAT   (full screening)
 #   screen --detail none   the same without redesign targets and band curve
+#   screen --show all      the same listing every row (every record through the run file)
 #   survey  plantsieve survey CAT > /dev/null         (floors, no targets)
 #   numpy   np_floors.py CAT                          (vectorised baseline; compute and total)
 # For N above NUMPY_SUBSET, numpy runs on the first NUMPY_SUBSET plants (the
@@ -142,7 +143,8 @@ say "catalogs: gen_catalog.py seed $SEED (cache $BENCH_DIR); repetitions: $REPS 
 say ""
 
 DETAIL=0; "$PS" --help 2>&1 | grep -q -- '--detail' && DETAIL=1
-declare -A SN_S SN_RSS
+SHOW=0; "$PS" --help 2>&1 | grep -q -- '--show' && SHOW=1
+declare -A SN_S SN_RSS SA_S SA_RSS
 declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN
 for n in "${SIZES[@]}"; do
     cat=$(catalog "$n") || { say "generating the N=$n catalog failed"; exit 1; }
@@ -157,6 +159,10 @@ for n in "${SIZES[@]}"; do
     if [[ $DETAIL == 1 ]]; then
         measure screen-none "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --detail none "$cat"
         SN_S[$n]=$M_S; SN_RSS[$n]=$M_RSS; say "# N=$n screen --detail none runs: $ALL_S s"
+    fi
+    if [[ $SHOW == 1 ]]; then
+        measure screen-all "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --show all "$cat"
+        SA_S[$n]=$M_S; SA_RSS[$n]=$M_RSS; say "# N=$n screen --show all runs: $ALL_S s"
     fi
     measure survey "$n" "$reps" "0 3" "$PS" survey "$cat"
     SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; say "# N=$n survey runs: $ALL_S s"
@@ -225,6 +231,14 @@ if [[ $DETAIL == 1 ]]; then
             "$(fmt_rate "$n" "${SN_S[$n]}")" "${SN_RSS[$n]}" "$(ratio "${SN_S[$n]}" "${R_S[$n]}")")"
     done
 fi
+if [[ $SHOW == 1 ]]; then
+    for n in "${SIZES[@]}"; do
+        say "$(printf '%9s | screen --show all    %9.3f s, %s plants/s, peak RSS %s MiB, over read %s' "$n" "${SA_S[$n]}" \
+            "$(fmt_rate "$n" "${SA_S[$n]}")" "${SA_RSS[$n]}" "$(ratio "${SA_S[$n]}" "${R_S[$n]}")")"
+    done
+    say "  (--show all: every row on stdout, so every record goes through the run file, as in a run"
+    say "   that writes the report files; the default listing stops at 40 rows a list and keeps only those)"
+fi
 say ""
 say "Columns: RSS rd/sc/sv = peak RSS in MiB of read/screen/survey. np/screen:c = numpy compute time"
 say "(prepare + floors, no YAML load) over screen time, np/screen:t = numpy process total (imports +"
@@ -246,6 +260,10 @@ if [[ -n "$big" ]]; then
     if [[ $DETAIL == 1 ]]; then
         r=$(ratio "${SN_S[$big]}" "${R_S[$big]}")
         say "    the same with --detail none (floors, verdicts, ranking; no targets): $r  -> $(verdict "$r" 2 le)"
+    fi
+    if [[ $SHOW == 1 ]]; then
+        r=$(ratio "${SA_S[$big]}" "${R_S[$big]}")
+        say "    the same with --show all (every record through the run file): $r  -> $(verdict "$r" 2 le)"
     fi
     rss=$(printf '%s\n' "${R_RSS[$big]}" "${SC_RSS[$big]}" "${SV_RSS[$big]}" | maxof)
     say "  peak RSS < 256 MiB at N=$big: read ${R_RSS[$big]}, screen ${SC_RSS[$big]}, survey ${SV_RSS[$big]} MiB  -> $(verdict "$rss" 255.999 le)"
