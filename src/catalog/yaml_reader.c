@@ -885,6 +885,14 @@ static bool read_value(yaml_rd *r, ps_plant *p, ps_field f, const ev *v)
 
 /* Fields of one mapping (after its start event) into p: a plant entry, or
  * the defaults when is_defaults. Errors go to the entry diagnostic. */
+/* src cut to fit n bytes (what snprintf "%s" does, without the format). */
+static void copy_key(char *dst, size_t n, const char *src)
+{
+    size_t len = strnlen(src, n - 1);
+    memcpy(dst, src, len);
+    dst[len] = '\0';
+}
+
 static bool read_fields(yaml_rd *r, ps_plant *p, bool is_defaults)
 {
     unsigned seen = 0;
@@ -901,7 +909,7 @@ static bool read_fields(yaml_rd *r, ps_plant *p, bool is_defaults)
         if (k.type == EV_SCALAR) {
             key_ok = true;
             merge = k.plain && strcmp(k.value, "<<") == 0;
-            snprintf(key, sizeof key, "%s", k.value);
+            copy_key(key, sizeof key, k.value);
             if (k.len < sizeof key && !memchr(k.value, '\0', k.len))
                 f = ps_field_lookup(key);
         } else if (k.type == EV_BAD) {

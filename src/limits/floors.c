@@ -251,7 +251,12 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
         if (ps_pick_gamma(ws, p, w, np, &g, &cond, &d) == PS_OK) {
             out->mt_interpolation = fmax(g, mt_single);
             out->ms_interpolation = theta > 0 ? out->mt_interpolation : fmax(ms_single, 1.0);
-            if (theta == 0 && nz > 0) {
+            if (theta == 0 && nz > 0 && np == 1)
+                /* One RHP pole: Chen's joint floor equals the Pick value at
+                 * the pole (his equality Ms_min = Mt_min without delay), so
+                 * no matrix is needed. */
+                out->ms_interpolation = fmax(g, ms_single);
+            else if (theta == 0 && nz > 0) {
                 double chen, c2 = 1.0;
                 if (ps_chen_floor(ws, z, nz, p, np, &chen, &c2, &d) == PS_OK)
                     out->ms_interpolation = fmax(chen, ms_single);

@@ -321,7 +321,8 @@ double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t 
         if (z[j].im < 0)
             continue; /* one bound per complex pair */
         double b = ps_ms_single(&z[j], 1, p, np), th = band_angle(z[j], wb);
-        best = fmax(best, pow(1 / eps, th / (M_PI - th)) * pow(b, M_PI / (M_PI - th)));
+        /* (1/eps)^(th/(pi-th)) * b^(pi/(pi-th)), as one exponential */
+        best = fmax(best, exp((th * log(1 / eps) + M_PI * log(b)) / (M_PI - th)));
     }
     return best;
 }
@@ -336,7 +337,8 @@ double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t 
         if (p[i].im < 0)
             continue;
         double b = ps_mt_single(z, nz, &p[i], 1, theta), th = band_angle(p[i], wh);
-        best = fmax(best, pow(1 / eps_t, (M_PI - th) / th) * pow(b, M_PI / th));
+        /* (1/eps_t)^((pi-th)/th) * b^(pi/th), as one exponential */
+        best = fmax(best, exp(((M_PI - th) * log(1 / eps_t) + M_PI * log(b)) / th));
     }
     return best;
 }

@@ -540,8 +540,9 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
     ps_limits_skip_effort(ws->lws, false);
     r.wb = lo;
     ps_floors_apply(ws->lws, an, &r, &base);
+    double span = log(hi / lo);
     for (size_t i = 0; i < PS_CURVE_N; i++) {
-        double wb = lo * pow(hi / lo, (double)i / (PS_CURVE_N - 1));
+        double wb = lo * exp(span * (double)i / (PS_CURVE_N - 1));
         r.wb = wb;
         ws->fl = base;
         ps_floors_apply_band(ws->lws, an, &r, &ws->fl);
