@@ -23,6 +23,7 @@ struct ps_limits_ws {
     double ev[NP];
     gsl_eigen_herm_workspace *herm[NP + 1];
     double tail_delta, tail_k, tail_sum; /* last roll-off tail series (per unit w_h) */
+    double log_eps_at, log_inv_eps;      /* last band attenuation and ln(1/eps) */
     bool tail_valid;
     bool skip_effort; /* probes that do not count effort skip its Pick problem */
 };
@@ -91,7 +92,11 @@ double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, doubl
         ws->tail_k = k;
         ws->tail_valid = true;
     }
-    double band = wb > 0 ? wb * log(1 / eps) : 0.0;
+    if (wb > 0 && eps != ws->log_eps_at) { /* the band target and curve keep eps */
+        ws->log_eps_at = eps;
+        ws->log_inv_eps = log(1 / eps);
+    }
+    double band = wb > 0 ? wb * ws->log_inv_eps : 0.0;
     return exp((F + band - wh * ws->tail_sum) / (wh - wb));
 }
 

@@ -350,10 +350,13 @@ enum { STEP_MAX = 400, BISECT_MAX = 200 };
 static double bisect(probe *pr, double x_pass, double m_pass, double x_fail, double m_fail)
 {
     int stale = 0; /* +1: x_pass kept on the last step, -1: x_fail kept */
+    /* a, b: the ends on the search axis (log x while both are positive),
+     * carried along so that only the new point costs a logarithm. */
+    bool logs = x_pass > 0 && x_fail > 0;
+    double a = logs ? log(x_pass) : x_pass, b = logs ? log(x_fail) : x_fail;
     for (int i = 0; i < BISECT_MAX && fabs(x_fail - x_pass) > BISECT_RTOL * fmax(fabs(x_pass), fabs(x_fail));
          i++) {
-        bool logs = x_pass > 0 && x_fail > 0;
-        double a = logs ? log(x_pass) : x_pass, b = logs ? log(x_fail) : x_fail, u = 0.5 * (a + b);
+        double u = 0.5 * (a + b);
         if (isfinite(m_pass) && isfinite(m_fail) && m_fail > m_pass) {
             double s = a + (b - a) * (0 - m_pass) / (m_fail - m_pass);
             double lo = fmin(a, b), hi = fmax(a, b);
@@ -365,12 +368,14 @@ static double bisect(probe *pr, double x_pass, double m_pass, double x_fail, dou
         double mid = logs ? exp(u) : u, m = probe_margin(pr, mid);
         if (m <= 0) {
             x_pass = mid;
+            a = u;
             m_pass = m;
             if (stale == 1) /* x_fail kept twice: halve its weight */
                 m_fail *= 0.5;
             stale = 1;
         } else {
             x_fail = mid;
+            b = u;
             m_fail = m;
             if (stale == -1)
                 m_pass *= 0.5;
