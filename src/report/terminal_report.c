@@ -151,14 +151,17 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
     more(f, all_pass - n_pass, full);
 
     if (r->per_verdict[PS_VERDICT_UNREAD]) {
-        fprintf(f, "\nEntries that could not be read (%zu)\n", r->per_verdict[PS_VERDICT_UNREAD]);
-        for (size_t i = 0; i < r->n_rows; i++) {
+        size_t n_unread = r->per_verdict[PS_VERDICT_UNREAD], told = 0;
+        fprintf(f, "\nEntries that could not be read (%zu)\n", n_unread);
+        for (size_t i = 0; i < r->n_rows && told < show; i++) {
             if (ps_run_verdict(r, i) != PS_VERDICT_UNREAD)
                 continue;
             const ps_summary *s = ps_run_row(r, i);
+            told++;
             fprintf(f, "  %s:%zu:%zu: %s%s%s (field '%s')\n", r->catalogs[s->file_index].file, s->err_line,
                     s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text, s->err_field);
         }
+        more(f, n_unread - told, full);
     }
 
     ps_text_families(f, r);

@@ -673,7 +673,7 @@ void ps_run_free(ps_run *r)
         free(st->slot);
         free(st->slot_refs);
         free(st->free_slots);
-        for (int h = 0; h < 3; h++)
+        for (int h = 0; h < PS_RUN_LISTS; h++)
             free(st->heap[h]);
         free(st);
     }
@@ -861,29 +861,36 @@ static void slot_release(ps_run_store *st, size_t row)
         st->keys[row].len = 0;
     }
 }
-/* The lists a row of this verdict appears in (terminal_report.c). */
+/* The lists a row of this verdict appears in (terminal_report.c): the
+ * ranking, the redesign list, the passing list, the input errors. */
 static unsigned row_lists(ps_verdict v)
 {
-    unsigned m = 1u; /* the ranking */
+    unsigned m = 1u;
     if (v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE)
         m |= 2u;
     if (v == PS_VERDICT_CLEAR || v == PS_VERDICT_MARGINAL)
         m |= 4u;
+    if (v == PS_VERDICT_UNREAD)
+        m |= 8u;
     return m;
 }
-static ps_status keep_put(ps_run *r, size_t row, const unsigned char *rec, size_t len)
+/* The lists in which row (its key set) is among the first keep_top so far. */
+static unsigned keep_wanted(const ps_run *r, size_t row)
+{
+    const ps_run_store *st = r->store;
+    unsigned lists = row_lists((ps_verdict)st->keys[row].verdict), take = 0;
+    for (int h = 0; h < PS_RUN_LISTS; h++)
+        if ((lists >> h & 1u) && (st->heap_len[h] < r->opt.keep_top || ranks_after(st, st->heap[h][0], row)))
+            take |= 1u << h;
+    return take;
+}
+/* Keep the record of row for the lists in take, dropping the rows it
+ * pushes out of them. */
+static ps_status keep_put(ps_run *r, size_t row, unsigned take, const unsigned char *rec, size_t len)
 {
     ps_run_store *st = r->store;
     size_t n = r->opt.keep_top;
     ps_rank_key *key = &st->keys[row];
-    unsigned lists = row_lists((ps_verdict)key->verdict), take = 0;
-    for (int h = 0; h < 3; h++)
-        if ((lists >> h & 1u) && (st->heap_len[h] < n || ranks_after(st, st->heap[h][0], row)))
-            take |= 1u << h;
-    bool unread = key->verdict == PS_VERDICT_UNREAD;
-    key->len = 0;
-    if (!take && !unread)
-        return PS_OK;
     if (st->n_free == 0 && st->n_slots == st->cap_slots) {
         size_t cap = st->cap_slots ? 2 * st->cap_slots : 64;
         unsigned char **sl = realloc(st->slot, cap * sizeof *sl);
@@ -904,10 +911,10 @@ static ps_status keep_put(ps_run *r, size_t row, const unsigned char *rec, size_
         return PS_ERR_NOMEM;
     }
     memcpy(st->slot[k], rec, len);
-    st->slot_refs[k] = unread;
+    st->slot_refs[k] = 0;
     key->at = k;
     key->len = (uint32_t)len;
-    for (int h = 0; h < 3; h++) {
+    for (int h = 0; h < PS_RUN_LISTS; h++) {
         if (!(take >> h & 1u))
             continue;
         st->slot_refs[k]++;
@@ -927,14 +934,15 @@ static ps_status keep_put(ps_run *r, size_t row, const unsigned char *rec, size_
 static void store_put(ps_run *r, const ps_summary *s)
 {
     ps_run_store *st = r->store;
-    size_t len = pack_summary(s, st->scratch);
-    st->keys[r->n_rows] =
-        (ps_rank_key){s->severity, s->order, st->end, (uint32_t)len, (int16_t)rank_class(s), (int16_t)s->verdict};
-    if (!st->file) {
-        if (keep_put(r, r->n_rows, st->scratch, len) != PS_OK)
+    st->keys[r->n_rows] = (ps_rank_key){s->severity, s->order, st->end, 0, (int16_t)rank_class(s), (int16_t)s->verdict};
+    if (!st->file) { /* keep_top run: only a record some list still needs is packed */
+        unsigned take = keep_wanted(r, r->n_rows);
+        if (take && keep_put(r, r->n_rows, take, st->scratch, pack_summary(s, st->scratch)) != PS_OK)
             st->failed = true;
         return;
     }
+    size_t len = pack_summary(s, st->scratch);
+    st->keys[r->n_rows].len = (uint32_t)len;
     if (fwrite(st->scratch, 1, len, st->file) != len)
         st->failed = true;
     st->end += len;
@@ -949,7 +957,7 @@ static ps_status spill(ps_run *r)
         return PS_ERR_NOMEM;
     r->store = st; /* freed by ps_run_free from here on */
     if (r->opt.keep_top) {
-        for (int h = 0; h < 3; h++)
+        for (int h = 0; h < PS_RUN_LISTS; h++)
             if (!(st->heap[h] = malloc(r->opt.keep_top * sizeof *st->heap[h])))
                 return PS_ERR_NOMEM;
     } else {

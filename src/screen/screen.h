@@ -108,8 +108,8 @@ typedef struct ps_screen_opts {
     size_t keep_top;            /* > 0: a run read only by the terminal listing cut at keep_top rows a
                                    list (no report files): past memory_rows it keeps the records of
                                    the rows that can still be among the first keep_top of the ranking,
-                                   of the redesign list or of the passing list, and of every input
-                                   error, in memory, and writes no file; 0: every record is kept */
+                                   of the redesign list, of the passing list or of the input errors,
+                                   in memory, and writes no file; 0: every record is kept */
 } ps_screen_opts;
 
 typedef struct ps_screen_ws ps_screen_ws;
@@ -148,7 +148,7 @@ typedef struct ps_catalog_entry {
  * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
  * the file holds each summary as a compact record (texts and lists cut to
  * their length: about 0.9-1.4 kB instead of 3.4 kB). */
-enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536, PS_RUN_WRITE_BUF = 1 << 20 };
+enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536, PS_RUN_WRITE_BUF = 1 << 20, PS_RUN_LISTS = 4 };
 
 typedef struct ps_rank_key {
     double severity;
@@ -174,12 +174,13 @@ typedef struct ps_run_store {
     size_t ring_pos;
     bool failed;                /* a write or read of the file failed */
     /* keep_top runs (no file): records in slots (key.at = slot, len 0 when
-     * dropped); per list a heap of the keep_top best rows so far, worst on
-     * top; a slot lives while some list holds its row (or it is an input error). */
+     * dropped); per list (ranking, redesign, passing, input errors) a heap
+     * of the keep_top first rows so far, the last on top; a slot lives
+     * while some list holds its row. */
     unsigned char **slot;
     unsigned *slot_refs;
     size_t n_slots, cap_slots, *free_slots, n_free;
-    size_t *heap[3], heap_len[3];
+    size_t *heap[PS_RUN_LISTS], heap_len[PS_RUN_LISTS];
 } ps_run_store;
 
 typedef struct ps_run {

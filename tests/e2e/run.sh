@@ -156,6 +156,16 @@ grep -q "^  \.\.\. and" "$tmp/showall.out"; check "screen: --show all cuts nothi
 "$ps" screen --show 2 --no-files --gate never "$cf" >"$tmp/out" 2>&1
 grep -q "more (--show all prints them here)" "$tmp/out"; check "screen: --no-files cut names no file" 0 $?
 "$ps" screen --show 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --show 0 is a usage error" 2 $?
+"$ps" screen --no-files --gate never --show 2 "$src/catalogs/broken/broken-entries.yaml" >"$tmp/out" 2>/dev/null
+"$py" - "$tmp/out" <<'PY'
+import re, sys
+t = open(sys.argv[1]).read()
+n = int(re.search(r"^Entries that could not be read \((\d+)\)", t, re.M).group(1))
+part = t.split("Entries that could not be read")[1].split("\n\n")[0]
+listed = re.findall(r"^  \S+:\d+:\d+: ", part, re.M)
+assert n > 2 and len(listed) == 2 and f"... and {n - 2} more" in part, (n, len(listed))
+PY
+check "screen: --show 2 cuts the unreadable entries with the right count" 0 $?
 # With --no-files a spilled run keeps only the rows its cut listing can print (rank heaps, no
 # file): the listing must be the one of a run that keeps every row in memory, input errors too.
 broken="$src/catalogs/broken/broken-entries.yaml"
