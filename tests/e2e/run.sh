@@ -177,6 +177,10 @@ for n in 1 3 10; do
         check "screen --no-files --show $n --memory-rows $m: same listing as in memory" 0 $?
     done
 done
+for t in 1 5; do
+    "$ps" screen --no-files --gate never --show 3 --memory-rows 2 --threads $t "$demo" "$broken" >"$tmp/keep-t$t.out" 2>&1
+done
+cmp -s "$tmp/keep-t1.out" "$tmp/keep-t5.out"; check "screen --no-files keep mode: same listing on 1 and 5 threads" 0 $?
 # Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte.
 "$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
 check "screen --memory-rows 3" 0 $?
