@@ -883,8 +883,6 @@ static bool read_value(yaml_rd *r, ps_plant *p, ps_field f, const ev *v)
     return true;
 }
 
-/* Fields of one mapping (after its start event) into p: a plant entry, or
- * the defaults when is_defaults. Errors go to the entry diagnostic. */
 /* src cut to fit n bytes (what snprintf "%s" does, without the format). */
 static void copy_key(char *dst, size_t n, const char *src)
 {
@@ -893,6 +891,8 @@ static void copy_key(char *dst, size_t n, const char *src)
     dst[len] = '\0';
 }
 
+/* Fields of one mapping (after its start event) into p: a plant entry, or
+ * the defaults when is_defaults. Errors go to the entry diagnostic. */
 static bool read_fields(yaml_rd *r, ps_plant *p, bool is_defaults)
 {
     unsigned seen = 0;
@@ -1221,7 +1221,7 @@ static void read_stream(yaml_rd *r)
             return;
         }
         char key[YR_KEY_MAX];
-        snprintf(key, sizeof key, "%s", k.value);
+        copy_key(key, sizeof key, k.value);
         bool *seen = strcmp(key, "catalog") == 0    ? &have_catalog
                      : strcmp(key, "defaults") == 0 ? &have_defaults
                      : strcmp(key, "plants") == 0   ? &have_plants

@@ -1,7 +1,8 @@
 /* pool.c - see pool.h. The reader fills chunk A while the workers work on
  * chunk B; when A is full the reader waits for B, hands A over, commits B
- * while the workers are on A, and goes on filling B. Workers take the next job of the chunk from a shared
- * counter; every result lands in its own job, so the split never shows. */
+ * while the workers are on A, and goes on filling B. Workers take the next
+ * job of the chunk from a shared counter; every result lands in its own
+ * job, so the split never shows. */
 #if defined(__linux__) && !defined(_GNU_SOURCE)
 #define _GNU_SOURCE /* syscall(SYS_gettid): the worker's own nice value, see lower_priority */
 #endif

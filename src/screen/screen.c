@@ -282,30 +282,36 @@ typedef struct probe {
  * log-peak minus 1 (the Ms share alone for the band target); +inf for an
  * infinite floor or a hidden mode. Monotone along each target's quantity,
  * which lets the root finder below use its values, not only its sign. */
+/* The margin of a probe that passes (or not) with this severity. */
+static double margin_of(bool pass, double sev)
+{
+    return pass ? fmin(sev - 1.0, 0.0) : fmax(sev - 1.0, DBL_MIN);
+}
+
 static double probe_margin(probe *pr, double x)
 {
     ps_requirements q = pr->req;
-    if (pr->kind == PS_TARGET_ROLLOFF || pr->kind == PS_TARGET_BAND) {
-        if (pr->kind == PS_TARGET_ROLLOFF) {
-            if (!(x > q.wb))
-                return INFINITY;
-            q.wh = x;
-        } else {
-            q.wb = x;
-            q.eps = pr->band_eps;
-        }
-        if (pr->kind == PS_TARGET_ROLLOFF) {
-            pr->ws->fl = pr->plant_fl;
-            ps_floors_apply(pr->ws->lws, pr->base, &q, &pr->ws->fl);
-        } else {
-            pr->ws->fl = pr->band_fl;
-            ps_floors_apply_band(pr->ws->lws, pr->base, &q, &pr->ws->fl);
-        }
-        if (pr->ws->fl.infinite || pr->base->hidden_unstable)
+    ps_floors *fl = &pr->ws->fl;
+    if (pr->kind == PS_TARGET_ROLLOFF) { /* a requirement moves: the plant half is kept */
+        if (!(x > q.wb))
             return INFINITY;
-        double sev = pr->kind == PS_TARGET_BAND ? ps_share_peak(pr->ws->fl.ms, q.ms_allowed) : 0.0;
-        bool pass = pr->kind == PS_TARGET_BAND ? pr->ws->fl.ms <= q.ms_allowed : judge(pr->ws, pr->base, &q, &sev);
-        return pass ? fmin(sev - 1.0, 0.0) : fmax(sev - 1.0, DBL_MIN);
+        q.wh = x;
+        *fl = pr->plant_fl;
+        ps_floors_apply(pr->ws->lws, pr->base, &q, fl);
+        if (fl->infinite || pr->base->hidden_unstable)
+            return INFINITY;
+        double sev;
+        bool pass = judge(pr->ws, pr->base, &q, &sev);
+        return margin_of(pass, sev);
+    }
+    if (pr->kind == PS_TARGET_BAND) { /* only the band edge moves; the Ms share alone */
+        q.wb = x;
+        q.eps = pr->band_eps;
+        *fl = pr->band_fl;
+        ps_floors_apply_band(pr->ws->lws, pr->base, &q, fl);
+        if (fl->infinite || pr->base->hidden_unstable)
+            return INFINITY;
+        return margin_of(fl->ms <= q.ms_allowed, ps_share_peak(fl->ms, q.ms_allowed));
     }
     ps_analysis *w = &pr->ws->work;
     memcpy(w, pr->base, sizeof *w);
@@ -331,9 +337,9 @@ static double probe_margin(probe *pr, double x)
     }
     double sev;
     bool pass = ps_screen_passes(pr->ws, w, &q, &sev);
-    if (pr->ws->fl.infinite || w->hidden_unstable)
+    if (fl->infinite || w->hidden_unstable)
         return INFINITY;
-    return pass ? fmin(sev - 1.0, 0.0) : fmax(sev - 1.0, DBL_MIN);
+    return margin_of(pass, sev);
 }
 
 enum { STEP_MAX = 400, BISECT_MAX = 200 };
