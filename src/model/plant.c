@@ -88,6 +88,12 @@ static void copy_text(char *dst, const char *src, size_t cap)
 
 static size_t capped(size_t n, size_t cap) { return n < cap ? n : cap; }
 
+/* Copy the first n items (at most cap) of an array field. */
+static void copy_items(void *dst, const void *src, size_t n, size_t cap, size_t size)
+{
+    memcpy(dst, src, capped(n, cap) * size);
+}
+
 void ps_plant_copy(ps_plant *dst, const ps_plant *src)
 {
     /* Arrays are copied up to their counts only. The reader copies every
@@ -102,23 +108,21 @@ void ps_plant_copy(ps_plant *dst, const ps_plant *src)
 
     dst->n_num = src->n_num;
     dst->n_den = src->n_den;
-    memcpy(dst->num, src->num, capped(src->n_num, PS_MAX_ORDER + 1) * sizeof src->num[0]);
-    memcpy(dst->den, src->den, capped(src->n_den, PS_MAX_ORDER + 1) * sizeof src->den[0]);
     dst->n_zeros = src->n_zeros;
     dst->n_poles = src->n_poles;
-    memcpy(dst->zeros, src->zeros, capped(src->n_zeros, PS_MAX_ORDER) * sizeof src->zeros[0]);
-    memcpy(dst->poles, src->poles, capped(src->n_poles, PS_MAX_ORDER) * sizeof src->poles[0]);
-    dst->gain = src->gain;
-
     dst->a_rows = src->a_rows;
     dst->a_cols = src->a_cols;
     dst->n_b = src->n_b;
     dst->n_c = src->n_c;
-    memcpy(dst->a, src->a, capped(src->a_rows * src->a_cols, PS_MAX_ORDER * PS_MAX_ORDER) * sizeof src->a[0]);
-    memcpy(dst->b, src->b, capped(src->n_b, PS_MAX_ORDER) * sizeof src->b[0]);
-    memcpy(dst->c, src->c, capped(src->n_c, PS_MAX_ORDER) * sizeof src->c[0]);
+    copy_items(dst->num, src->num, src->n_num, PS_MAX_ORDER + 1, sizeof src->num[0]);
+    copy_items(dst->den, src->den, src->n_den, PS_MAX_ORDER + 1, sizeof src->den[0]);
+    copy_items(dst->zeros, src->zeros, src->n_zeros, PS_MAX_ORDER, sizeof src->zeros[0]);
+    copy_items(dst->poles, src->poles, src->n_poles, PS_MAX_ORDER, sizeof src->poles[0]);
+    copy_items(dst->a, src->a, src->a_rows * src->a_cols, PS_MAX_ORDER * PS_MAX_ORDER, sizeof src->a[0]);
+    copy_items(dst->b, src->b, src->n_b, PS_MAX_ORDER, sizeof src->b[0]);
+    copy_items(dst->c, src->c, src->n_c, PS_MAX_ORDER, sizeof src->c[0]);
+    dst->gain = src->gain;
     dst->d = src->d;
-
     dst->delay = src->delay;
     dst->req = src->req;
     dst->n_warn = src->n_warn;
