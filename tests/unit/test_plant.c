@@ -255,3 +255,67 @@ Test(plant, requirement_defaults_and_ranges)
     ps_plant_mark(&p, PS_F_MS_ALLOWED, 19, 3);
     expect_error("peak_s_allowed", 19, "above 1");
 }
+
+/* ps_plant_copy copies arrays only up to their counts: everything counted
+ * must arrive, whatever the destination held before. */
+Test(plant, copy_carries_every_counted_item)
+{
+    static ps_plant dst;
+    poly((double[]){2.5, -1}, 2, (double[]){1, 0, -19.6}, 3);
+    snprintf(p.note, sizeof p.note, "gap 4 mm");
+    p.n_zeros = 1;
+    p.zeros[0] = (ps_cplx){3, 0};
+    p.n_poles = 2;
+    p.poles[0] = (ps_cplx){-1, 2};
+    p.poles[1] = (ps_cplx){-1, -2};
+    p.gain = 7.5;
+    p.a_rows = p.a_cols = 2;
+    memcpy(p.a, (double[]){0, 1, 19.6, 0}, 4 * sizeof p.a[0]);
+    p.n_b = p.n_c = 2;
+    p.b[1] = 1;
+    p.c[0] = 1;
+    p.d = 0.25;
+    p.delay = 0.01;
+    p.req.wb = 12;
+    ps_plant_warn(&p, "first %d", 1);
+    ps_plant_warn(&p, "second");
+    memset(&dst, 0xa5, sizeof dst);
+    ps_plant_copy(&dst, &p);
+
+    cr_assert_str_eq(dst.id, "v-1");
+    cr_assert_str_eq(dst.note, "gap 4 mm");
+    cr_assert_eq(dst.line, 7);
+    cr_assert_eq(dst.present, p.present);
+    cr_assert_eq(memcmp(dst.field_line, p.field_line, sizeof p.field_line), 0);
+    cr_assert_eq(memcmp(dst.field_col, p.field_col, sizeof p.field_col), 0);
+    cr_assert_eq(dst.form, p.form);
+    cr_assert_eq(dst.n_num, 2);
+    cr_assert_eq(dst.n_den, 3);
+    cr_assert_eq(memcmp(dst.num, p.num, 2 * sizeof p.num[0]), 0);
+    cr_assert_eq(memcmp(dst.den, p.den, 3 * sizeof p.den[0]), 0);
+    cr_assert_eq(dst.n_zeros, 1);
+    cr_assert_eq(dst.n_poles, 2);
+    cr_assert_eq(memcmp(dst.zeros, p.zeros, 1 * sizeof p.zeros[0]), 0);
+    cr_assert_eq(memcmp(dst.poles, p.poles, 2 * sizeof p.poles[0]), 0);
+    cr_assert_eq(dst.gain, 7.5);
+    cr_assert_eq(dst.a_rows, 2);
+    cr_assert_eq(dst.a_cols, 2);
+    cr_assert_eq(memcmp(dst.a, p.a, 4 * sizeof p.a[0]), 0);
+    cr_assert_eq(dst.n_b, 2);
+    cr_assert_eq(dst.n_c, 2);
+    cr_assert_eq(memcmp(dst.b, p.b, 2 * sizeof p.b[0]), 0);
+    cr_assert_eq(memcmp(dst.c, p.c, 2 * sizeof p.c[0]), 0);
+    cr_assert_eq(dst.d, 0.25);
+    cr_assert_eq(dst.delay, 0.01);
+    cr_assert_eq(memcmp(&dst.req, &p.req, sizeof p.req), 0);
+    cr_assert_eq(dst.n_warn, 2);
+    cr_assert_str_eq(dst.warn[0], "first 1");
+    cr_assert_str_eq(dst.warn[1], "second");
+
+    /* the copy checks as the original does */
+    p.n_zeros = p.n_poles = p.a_rows = p.a_cols = p.n_b = p.n_c = 0;
+    ps_plant_copy(&dst, &p);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_plant_check(&dst, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(dst.form, p.form);
+}
