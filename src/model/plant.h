@@ -51,6 +51,8 @@ const char *ps_field_name(ps_field f);
 /* Field for a key; returns PS_F_COUNT when the key is unknown. */
 ps_field ps_field_lookup(const char *key);
 
+/* A field added here must be added to ps_plant_copy too, which copies field
+ * by field (test_plant: copy_carries_every_counted_item). */
 typedef struct ps_plant {
     char id[PS_ID_MAX];
     char note[PS_NOTE_MAX];
