@@ -258,6 +258,8 @@ Test(plant, requirement_defaults_and_ranges)
 
 /* ps_plant_copy copies arrays only up to their counts: everything counted
  * must arrive, whatever the destination held before. */
+#define SAME_ITEMS(f, n) cr_assert_eq(memcmp(dst.f, p.f, (n) * sizeof p.f[0]), 0, "%s differs", #f)
+
 Test(plant, copy_carries_every_counted_item)
 {
     static ps_plant dst;
@@ -291,20 +293,20 @@ Test(plant, copy_carries_every_counted_item)
     cr_assert_eq(dst.form, p.form);
     cr_assert_eq(dst.n_num, 2);
     cr_assert_eq(dst.n_den, 3);
-    cr_assert_eq(memcmp(dst.num, p.num, 2 * sizeof p.num[0]), 0);
-    cr_assert_eq(memcmp(dst.den, p.den, 3 * sizeof p.den[0]), 0);
+    SAME_ITEMS(num, 2);
+    SAME_ITEMS(den, 3);
     cr_assert_eq(dst.n_zeros, 1);
     cr_assert_eq(dst.n_poles, 2);
-    cr_assert_eq(memcmp(dst.zeros, p.zeros, 1 * sizeof p.zeros[0]), 0);
-    cr_assert_eq(memcmp(dst.poles, p.poles, 2 * sizeof p.poles[0]), 0);
+    SAME_ITEMS(zeros, 1);
+    SAME_ITEMS(poles, 2);
     cr_assert_eq(dst.gain, 7.5);
     cr_assert_eq(dst.a_rows, 2);
     cr_assert_eq(dst.a_cols, 2);
-    cr_assert_eq(memcmp(dst.a, p.a, 4 * sizeof p.a[0]), 0);
+    SAME_ITEMS(a, 4);
     cr_assert_eq(dst.n_b, 2);
     cr_assert_eq(dst.n_c, 2);
-    cr_assert_eq(memcmp(dst.b, p.b, 2 * sizeof p.b[0]), 0);
-    cr_assert_eq(memcmp(dst.c, p.c, 2 * sizeof p.c[0]), 0);
+    SAME_ITEMS(b, 2);
+    SAME_ITEMS(c, 2);
     cr_assert_eq(dst.d, 0.25);
     cr_assert_eq(dst.delay, 0.01);
     cr_assert_eq(memcmp(&dst.req, &p.req, sizeof p.req), 0);
