@@ -24,8 +24,11 @@ json_t *ps_json_families(const ps_run *r);
  * controller relative degree that gives the loop relative degree >= 2. */
 const char *ps_bode_coverage_text(int controller_rd);
 /* Add disk_margin_max, margins_from_allowed and time_to_double to fj. */
-void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const double *rhp_real,
-                          size_t n_real);
+/* growth: the RHP poles, one per real pole or conjugate pair (im >= 0);
+ * the time to double is ln 2 / Re p (a pair: an oscillation whose envelope
+ * grows at Re p). */
+void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const ps_cplx *growth,
+                          size_t n_growth);
 /* The `requirements` object. */
 json_t *ps_json_requirements(const ps_requirements *q);
 

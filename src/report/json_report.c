@@ -74,7 +74,7 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
     json_object_set_new(q, "given", given_fields(s));
     json_object_set_new(j, "requirements", q);
     json_t *fj = ps_json_floors(&s->fl);
-    ps_json_floor_extras(fj, &s->fl, &s->req, s->rhp_real, s->n_rhp_real);
+    ps_json_floor_extras(fj, &s->fl, &s->req, s->growth, s->n_growth);
     json_object_set_new(j, "floors", fj);
     json_t *t = json_object();
     for (int k = 0; k < PS_TARGET_COUNT; k++)

@@ -154,8 +154,8 @@ json_t *ps_json_floors(const ps_floors *fl)
     return f;
 }
 
-void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const double *rhp_real,
-                          size_t n_real)
+void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const ps_cplx *growth,
+                          size_t n_growth)
 {
     /* Margins the allowed peaks would guarantee, the best disk margin any
      * controller can reach (1/Ms floor), and the time to double of each
@@ -168,9 +168,10 @@ void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements
                                   ps_json_num(ps_gain_margin_from_mt(q->mt_allowed)), "phase_margin_deg_from_mt",
                                   ps_json_num(ps_phase_margin_from_mt(q->mt_allowed))));
     json_t *ttd = json_array();
-    for (size_t i = 0; i < n_real; i++)
-        json_array_append_new(ttd, json_pack("{s:o,s:o}", "pole", ps_json_num(rhp_real[i]), "seconds",
-                                             ps_json_num(log(2.0) / rhp_real[i])));
+    for (size_t i = 0; i < n_growth; i++)
+        json_array_append_new(ttd, json_pack("{s:o,s:o,s:o}", "pole", ps_json_num(growth[i].re), "imag",
+                                             ps_json_num(growth[i].im), "seconds",
+                                             ps_json_num(log(2.0) / growth[i].re)));
     json_object_set_new(fj, "time_to_double", ttd);
 }
 
@@ -228,12 +229,12 @@ static json_t *plant_json(const ps_outcome *o)
     json_object_set_new(j, "hidden_unstable_mode", json_boolean(an->hidden_unstable));
     const ps_requirements *q = &p->req;
     json_t *fj = ps_json_floors(o->fl);
-    double rhp_real[PS_MAX_ORDER];
-    size_t n_real = 0;
+    ps_cplx growth[PS_MAX_ORDER];
+    size_t n_growth = 0;
     for (size_t i = 0; i < an->n_poles; i++)
-        if (an->poles[i].region == PS_RHP && an->poles[i].v.im == 0)
-            rhp_real[n_real++] = an->poles[i].v.re;
-    ps_json_floor_extras(fj, o->fl, q, rhp_real, n_real);
+        if (an->poles[i].region == PS_RHP && an->poles[i].v.im >= 0)
+            growth[n_growth++] = an->poles[i].v;
+    ps_json_floor_extras(fj, o->fl, q, growth, n_growth);
     json_object_set_new(j, "requirements", ps_json_requirements(q));
     json_object_set_new(j, "floors", fj);
     json_object_set_new(j, "warnings", jwarnings(p));

@@ -15,6 +15,7 @@ static const char *tint(ps_verdict v)
     case PS_VERDICT_MARGINAL: return "\033[33m";
     case PS_VERDICT_REDESIGN: return "\033[1;31m";
     case PS_VERDICT_UNSTABILIZABLE: return "\033[1;35m";
+    case PS_VERDICT_NEEDS_BANDWIDTH: return "\033[34m";
     case PS_VERDICT_UNREAD: return "\033[36m";
     case PS_VERDICT_COUNT: break;
     }
@@ -108,7 +109,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
     fprintf(f, "\nSend back for mechanical redesign (%zu)\n", n_flag);
     if (n_flag == 0)
         fputs("  none\n", f);
-    char line[400];
+    char line[512];
     size_t shown = 0;
     for (size_t i = 0; i < r->n_rows && shown < show; i++) {
         if (!flagged(ps_run_verdict(r, i)))
@@ -149,6 +150,21 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
     if (all_pass > n_pass)
         fputc('\n', f);
     more(f, all_pass - n_pass, full);
+
+    if (r->per_verdict[PS_VERDICT_NEEDS_BANDWIDTH]) {
+        size_t n_nb = r->per_verdict[PS_VERDICT_NEEDS_BANDWIDTH], told = 0;
+        fprintf(f, "\nNot judged: unstable plants given no bandwidth limit (%zu)\n", n_nb);
+        for (size_t i = 0; i < r->n_rows && told < show; i++) {
+            if (ps_run_verdict(r, i) != PS_VERDICT_NEEDS_BANDWIDTH)
+                continue;
+            const ps_summary *s = ps_run_row(r, i);
+            told++;
+            fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
+            snprintf(line, sizeof line, "cause: %s", s->cause);
+            wrap(f, line, "    ", 96);
+        }
+        more(f, n_nb - told, full);
+    }
 
     if (r->per_verdict[PS_VERDICT_UNREAD]) {
         size_t n_unread = r->per_verdict[PS_VERDICT_UNREAD], told = 0;

@@ -21,6 +21,8 @@ const char *ps_verdict_meaning(ps_verdict v)
     case PS_VERDICT_MARGINAL: return "the floors already use most of the allowed log-peak";
     case PS_VERDICT_REDESIGN: return "some floor exceeds what the requirements allow: change the hardware";
     case PS_VERDICT_UNSTABILIZABLE: return "no controller can stabilize this plant as built";
+    case PS_VERDICT_NEEDS_BANDWIDTH:
+        return "an unstable plant with no rolloff_start: without a bandwidth limit it cannot be judged";
     case PS_VERDICT_UNREAD: return "the entry could not be read or checked";
     case PS_VERDICT_COUNT: break;
     }
@@ -30,22 +32,50 @@ const char *ps_verdict_meaning(ps_verdict v)
 const char *ps_target_label(ps_target_kind k)
 {
     switch (k) {
-    case PS_TARGET_POLE: return "largest passing unstable pole";
-    case PS_TARGET_ZERO: return "smallest passing RHP zero";
-    case PS_TARGET_DELAY: return "largest passing delay";
-    case PS_TARGET_ROLLOFF: return "smallest passing available bandwidth";
-    case PS_TARGET_BAND: return "promise-able band edge";
+    case PS_TARGET_POLE: return "dominant unstable pole";
+    case PS_TARGET_ZERO: return "smallest RHP zero";
+    case PS_TARGET_DELAY: return "delay";
+    case PS_TARGET_ROLLOFF: return "available bandwidth (roll-off start)";
+    case PS_TARGET_BAND: return "band edge";
+    case PS_TARGET_EFFORT: return "allowed peak |C S|";
     case PS_TARGET_COUNT: break;
     }
     return "?";
 }
 
-static void delay_text(double th, char *buf, size_t n)
+/* A time in ms below one second, in s from there on. */
+static void time_text(double th, char *buf, size_t n)
 {
     if (th < 1.0)
         snprintf(buf, n, "%.3g ms", th * 1e3);
     else
         snprintf(buf, n, "%.4g s", th);
+}
+
+/* Growth rate Re p per unit of |p| of the dominant RHP pole: the pole
+ * target scales every RHP pole together, so the time to double at a
+ * dominant magnitude m is ln 2 / (m * this). */
+static double growth_per_magnitude(const ps_summary *s)
+{
+    double best = -1, ratio = 1;
+    for (size_t i = 0; i < s->n_growth && i < PS_MAP_MAX; i++) {
+        double m = hypot(s->growth[i].re, s->growth[i].im);
+        if (m > best) {
+            best = m;
+            ratio = s->growth[i].re / m;
+        }
+    }
+    return ratio;
+}
+
+/* The rule of thumb (not a law) on the crossover that this target's
+ * quantity meets, appended when no floor limits the target. */
+static void thumb_text(const ps_summary *s, char *buf, size_t n)
+{
+    buf[0] = '\0';
+    if (isfinite(s->fl.crossover_max) && s->fl.crossover_max > 0)
+        snprintf(buf, n, "; rule of thumb, not a law: crossover below %.3g rad/s (S&P 2nd ed. ch. 5)",
+                 s->fl.crossover_max);
 }
 
 void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n)
@@ -58,34 +88,42 @@ void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n)
         snprintf(buf, n, "%s: no value passes (%s)", ps_target_label(k), t->why);
         return;
     }
-    char now[48], lim[48];
+    char now[48], lim[48], ttd[48], thumb[120];
     switch (k) {
     case PS_TARGET_POLE:
         if (t->state == PS_TARGET_UNBOUNDED)
-            snprintf(buf, n, "unstable pole: passes up to %.4g rad/s (searched); now %.4g rad/s", t->searched, t->now);
-        else
-            snprintf(buf, n, "dominant unstable pole must stay %s %.4g rad/s (time to double %.3g ms); now %.4g rad/s",
-                     t->passes_now ? "at most" : "below", t->limit, 1e3 * log(2.0) / t->limit, t->now);
+            snprintf(buf, n, "dominant unstable pole: every value up to %.4g rad/s passes (the searched range); "
+                             "now %.4g rad/s", t->searched, t->now);
+        else {
+            time_text(log(2.0) / (t->limit * growth_per_magnitude(s)), ttd, sizeof ttd);
+            snprintf(buf, n, "dominant unstable pole must stay below %.4g rad/s (time to double %s); now %.4g rad/s",
+                     t->limit, ttd, t->now);
+        }
         break;
     case PS_TARGET_ZERO:
         if (t->state == PS_TARGET_UNBOUNDED)
-            snprintf(buf, n, "RHP zero: passes down to %.4g rad/s (searched); now %.4g rad/s", t->searched, t->now);
+            snprintf(buf, n, "smallest RHP zero: every value down to %.4g rad/s passes (the searched range); "
+                             "now %.4g rad/s", t->searched, t->now);
         else
-            snprintf(buf, n, "smallest RHP zero must be at least %.4g rad/s; now %.4g rad/s", t->limit, t->now);
+            snprintf(buf, n, "smallest RHP zero must reach %.4g rad/s; now %.4g rad/s", t->limit, t->now);
         break;
     case PS_TARGET_DELAY:
-        delay_text(t->now, now, sizeof now);
-        if (t->state == PS_TARGET_UNBOUNDED)
-            snprintf(buf, n, "delay: %s; now %s", t->why, now);
-        else {
-            delay_text(t->limit, lim, sizeof lim);
+        time_text(t->now, now, sizeof now);
+        if (t->state == PS_TARGET_UNBOUNDED && isinf(t->searched)) {
+            thumb_text(s, thumb, sizeof thumb);
+            snprintf(buf, n, "delay: %s%s; now %s", t->why, thumb, now);
+        } else if (t->state == PS_TARGET_UNBOUNDED) {
+            time_text(t->searched, lim, sizeof lim);
+            snprintf(buf, n, "delay: every value up to %s passes (the searched range); now %s", lim, now);
+        } else {
+            time_text(t->limit, lim, sizeof lim);
             snprintf(buf, n, "delay must stay below %s; now %s", lim, now);
         }
         break;
     case PS_TARGET_ROLLOFF:
         if (t->state == PS_TARGET_UNBOUNDED)
-            snprintf(buf, n, "available bandwidth: passes down to %.4g rad/s (searched); now %.4g rad/s", t->searched,
-                     t->now);
+            snprintf(buf, n, "available bandwidth (roll-off start): every value down to %.4g rad/s passes (the "
+                             "searched range); now %.4g rad/s", t->searched, t->now);
         else
             snprintf(buf, n, "available bandwidth (roll-off start) must reach %.4g rad/s; now %.4g rad/s", t->limit,
                      t->now);
@@ -95,12 +133,15 @@ void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n)
             snprintf(now, sizeof now, "no band required");
         else
             snprintf(now, sizeof now, "required %.4g rad/s", t->now);
-        if (t->state == PS_TARGET_UNBOUNDED)
-            snprintf(buf, n, "band edge with |S| <= %.3g: any up to %.4g rad/s keeps Ms within allowed; %s",
-                     s->band_eps, t->searched, now);
-        else
-            snprintf(buf, n, "widest band edge with |S| <= %.3g under the allowed Ms: %.4g rad/s; %s", s->band_eps,
-                     t->limit, now);
+        if (t->state == PS_TARGET_UNBOUNDED) {
+            thumb_text(s, thumb, sizeof thumb);
+            snprintf(buf, n, "band edge with |S| <= %.3g: no floor limits it up to %.4g rad/s (the searched range)%s; %s",
+                     s->band_eps, t->searched, thumb, now);
+        } else
+            snprintf(buf, n, "band edge with |S| <= %.3g must stay below %.4g rad/s; %s", s->band_eps, t->limit, now);
+        break;
+    case PS_TARGET_EFFORT:
+        snprintf(buf, n, "allowed peak |C S| must reach %.4g (the effort floor); now %.4g", t->limit, t->now);
         break;
     case PS_TARGET_COUNT: break;
     }

@@ -50,14 +50,14 @@ void ps_screen_ws_free(ps_screen_ws *ws)
 const char *ps_verdict_name(ps_verdict v)
 {
     static const char *const names[PS_VERDICT_COUNT] = {"clear", "marginal", "redesign", "not-stabilizable",
-                                                        "input-error"};
+                                                        "needs-bandwidth", "input-error"};
     return (unsigned)v < PS_VERDICT_COUNT ? names[v] : "?";
 }
 
 const char *ps_target_key(ps_target_kind k)
 {
     static const char *const keys[PS_TARGET_COUNT] = {"unstable_pole", "rhp_zero", "delay", "rolloff_start",
-                                                      "band_edge"};
+                                                      "band_edge", "effort_allowed"};
     return (unsigned)k < PS_TARGET_COUNT ? keys[k] : "?";
 }
 
@@ -151,121 +151,6 @@ static double smallest_zero(const ps_analysis *an)
     return m;
 }
 
-static double rhp_real_sum(const ps_analysis *an)
-{
-    double s = 0;
-    for (size_t i = 0; i < an->n_poles; i++)
-        if (an->poles[i].region == PS_RHP)
-            s += an->poles[i].v.re;
-    return s;
-}
-
-/* "40 ms" or "1.2 s". */
-static void delay_words(double th, char *buf, size_t n)
-{
-    if (th < 1.0)
-        snprintf(buf, n, "%.3g ms", th * 1e3);
-    else
-        snprintf(buf, n, "%.3g s", th);
-}
-
-/* "unstable pole 7.9 rad/s" (or "unstable poles, dominant 7.9 rad/s"). */
-static void pole_words(const ps_analysis *an, char *buf, size_t n)
-{
-    snprintf(buf, n, "%s %.3g rad/s", an->n_rhp_poles > 1 ? "unstable poles, dominant" : "unstable pole",
-             dominant_pole(an));
-}
-
-typedef struct component {
-    const char *key;
-    double floor, allowed, share;
-} component;
-
-/* The cause sentence names the floor with the largest share; worst is the
- * summary's "Ms", "Mt", "effort" or "none". */
-static void cause_words(const ps_analysis *an, const ps_floors *fl, const ps_requirements *q, const char *worst,
-                        char *buf, size_t n)
-{
-    if (an->hidden_unstable) {
-        snprintf(buf, n, "hidden unstable mode: no controller can reach or see it");
-        return;
-    }
-    if (fl->infinite) {
-        snprintf(buf, n, "%s", fl->note[0] ? fl->note : "an infinite floor");
-        return;
-    }
-    component c[] = {
-        {"ms_interpolation", fl->ms_interpolation, q->ms_allowed, ps_share_peak(fl->ms_interpolation, q->ms_allowed)},
-        {"ms_band", fl->ms_band, q->ms_allowed, ps_share_peak(fl->ms_band, q->ms_allowed)},
-        {"ms_poisson", fl->ms_poisson, q->ms_allowed, ps_share_peak(fl->ms_poisson, q->ms_allowed)},
-        {"mt_interpolation", fl->mt_interpolation, q->mt_allowed, ps_share_peak(fl->mt_interpolation, q->mt_allowed)},
-        {"mt_poisson", fl->mt_poisson, q->mt_allowed, ps_share_peak(fl->mt_poisson, q->mt_allowed)},
-        {"effort", fl->effort, q->effort_allowed,
-         q->effort_allowed > 0 ? ps_share_effort(fl->effort, q->effort_allowed) : NAN},
-    };
-    size_t best = 0;
-    for (size_t i = 1; i < sizeof c / sizeof c[0]; i++)
-        if (!isnan(c[i].share) && (isnan(c[best].share) || c[i].share > c[best].share))
-            best = i;
-    if (isnan(c[best].share) || c[best].share <= 0) {
-        snprintf(buf, n, "nothing binding: no unstable pole, no RHP zero%s",
-                 q->wb > 0 ? ", and the band requirement costs no peak" : " and no band requirement");
-        return;
-    }
-    /* The Mt share is the worst, but the overall Mt floor is above every
-     * Mt floor of its own (interpolation, Poisson): it is the Ms floor less
-     * one, from ||T|| >= ||S|| - 1 (S + T = 1; see ps_floors_compute). Then
-     * fl->limiting names the Ms floor that sets it; the sentence describes
-     * that floor and ends by saying how it forces the Mt floor. */
-    static const char *const ms_source[] = {"interpolation", "band", "poisson"};
-    static const char *const ms_words[] = {"interpolation", "band-forced", "Poisson"};
-    const char *mt_from = NULL;
-    if (strcmp(worst, "Mt") == 0 && fl->mt > fmax(fl->mt_interpolation, fl->mt_poisson))
-        for (size_t i = 0; i < sizeof ms_source / sizeof ms_source[0]; i++)
-            if (strcmp(fl->limiting, ms_source[i]) == 0) {
-                best = i; /* c[0..2] are the Ms floors in the same order */
-                mt_from = ms_words[i];
-            }
-    char pw[48], dw[24], tail[64];
-    pole_words(an, pw, sizeof pw);
-    delay_words(an->delay, dw, sizeof dw);
-    if (mt_from)
-        tail[0] = '\0'; /* appended below */
-    else
-        snprintf(tail, sizeof tail, " (floor %.3g, allowed %.3g)", c[best].floor, c[best].allowed);
-    const char *k = c[best].key;
-    double z = smallest_zero(an);
-    if (strcmp(k, "ms_band") == 0) {
-        if (q->wb > 0)
-            snprintf(buf, n, "%s and |S| <= %.3g up to %.3g rad/s against a %.3g rad/s available bandwidth%s",
-                     an->n_rhp_poles ? pw : "no unstable pole", q->eps, q->wb, q->wh, tail);
-        else
-            snprintf(buf, n, "%s against a %.3g rad/s available bandwidth (Bode area %.3g rad/s)%s", pw, q->wh,
-                     M_PI * rhp_real_sum(an), tail);
-    } else if (strcmp(k, "ms_poisson") == 0) {
-        snprintf(buf, n, "RHP zero at %.3g rad/s %s the required band (|S| <= %.3g up to %.3g rad/s)%s", z,
-                 z <= q->wb ? "inside" : "near", q->eps, q->wb, tail);
-    } else if (strcmp(k, "mt_poisson") == 0) {
-        snprintf(buf, n, "%s against a %.3g rad/s available bandwidth (|T| <= %.3g beyond it)%s", pw, q->wh,
-                 q->delta / (1 - q->delta), tail);
-    } else if (strcmp(k, "effort") == 0) {
-        snprintf(buf, n, "stabilizing %s needs a peak |C S| of at least %.3g against %.3g allowed", pw,
-                 c[best].floor, c[best].allowed);
-    } else if (an->n_rhp_zeros > 0 && an->delay > 0) {
-        snprintf(buf, n, "%s with an RHP zero at %.3g rad/s and a %s delay%s", pw, z, dw, tail);
-    } else if (an->n_rhp_zeros > 0) {
-        snprintf(buf, n, "RHP zero at %.3g rad/s close to the %s%s", z, pw, tail);
-    } else {
-        snprintf(buf, n, "delay %s with an %s%s", dw, pw, tail);
-    }
-    if (mt_from) {
-        size_t len = strlen(buf);
-        snprintf(buf + len, n - len,
-                 "; Mt floor %.3g (allowed %.3g) follows from the %s Ms floor %.3g (||T|| >= ||S|| - 1)", fl->mt,
-                 q->mt_allowed, mt_from, fl->ms);
-    }
-}
-
 /* ---- redesign targets: monotone bisection along one quantity ---- */
 
 typedef struct probe {
@@ -304,14 +189,16 @@ static double probe_margin(probe *pr, double x)
         bool pass = judge(pr->ws, pr->base, &q, &sev);
         return margin_of(pass, sev);
     }
-    if (pr->kind == PS_TARGET_BAND) { /* only the band edge moves; the Ms share alone */
+    if (pr->kind == PS_TARGET_BAND) { /* only the band edge moves; every floor must pass */
         q.wb = x;
         q.eps = pr->band_eps;
         *fl = pr->band_fl;
         ps_floors_apply_band(pr->ws->lws, pr->base, &q, fl);
         if (fl->infinite || pr->base->hidden_unstable)
             return INFINITY;
-        return margin_of(fl->ms <= q.ms_allowed, ps_share_peak(fl->ms, q.ms_allowed));
+        double sev;
+        bool pass = judge(pr->ws, pr->base, &q, &sev);
+        return margin_of(pass, sev);
     }
     ps_analysis *w = &pr->ws->work;
     memcpy(w, pr->base, sizeof *w);
@@ -333,6 +220,7 @@ static double probe_margin(probe *pr, double x)
     case PS_TARGET_DELAY: w->delay = x; break;
     case PS_TARGET_ROLLOFF:
     case PS_TARGET_BAND:
+    case PS_TARGET_EFFORT:
     case PS_TARGET_COUNT: break;
     }
     double sev;
@@ -391,6 +279,33 @@ static double bisect(probe *pr, double x_pass, double m_pass, double x_fail, dou
     return x_pass;
 }
 
+/* Why the easy end x of a search still fails, from the floors of its
+ * probe: the peak with the largest share, its floor and what is allowed. */
+static void failing_words(const probe *pr, double x, char *buf, size_t n)
+{
+    const ps_floors *fl = &pr->ws->fl;
+    char at[64];
+    switch (pr->kind) {
+    case PS_TARGET_DELAY: snprintf(at, sizeof at, "even with no delay"); break;
+    case PS_TARGET_BAND: snprintf(at, sizeof at, "even with a band edge of only %.3g rad/s", x); break;
+    case PS_TARGET_POLE:
+    case PS_TARGET_ZERO: snprintf(at, sizeof at, "even at %.3g times its present size", x); break;
+    default: snprintf(at, sizeof at, "even at %.3g rad/s", x); break;
+    }
+    if (fl->infinite || pr->base->hidden_unstable) {
+        snprintf(buf, n, "%s no controller stabilizes the plant", at);
+        return;
+    }
+    ps_requirements q = pr->req;
+    double sm, st, se;
+    severity_of(fl, &q, &sm, &st, &se);
+    ps_peak b = ps_peak_binding(sm, st, se);
+    double floor = ps_peak_floor(fl, b);
+    double allowed = b == PS_PEAK_MT ? q.mt_allowed : b == PS_PEAK_EFFORT ? q.effort_allowed : q.ms_allowed;
+    snprintf(buf, n, "%s the %s floor is %.3g against %.3g allowed", at,
+             b == PS_PEAK_EFFORT ? "effort" : ps_peak_name(b), floor, allowed);
+}
+
 /* Search x in [lo, hi] for the pass/fail boundary, starting at x0.
  * worse_up: larger x is harder (passing set below the boundary). The
  * verdict is taken as monotone along x: when x0 passes, so does the easy
@@ -427,7 +342,7 @@ static void search(probe *pr, ps_target *t, double x0, double lo, double hi, boo
         if (!(m_good <= 0)) {
             t->state = PS_TARGET_NONE;
             t->searched = good_end;
-            snprintf(t->why, sizeof t->why, "fails even at %.3g, the easy end of the searched range", good_end);
+            failing_words(pr, good_end, t->why, sizeof t->why);
             return;
         }
         double f = STEP;
@@ -506,10 +421,11 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
                 t->state = PS_TARGET_UNBOUNDED;
                 t->passes_now = ps_screen_passes(ws, an, q, NULL);
                 t->searched = INFINITY;
-                snprintf(t->why, sizeof t->why, "no unstable pole: the floors do not depend on the delay");
+                snprintf(t->why, sizeof t->why, "no unstable pole: the delay raises no floor above 1");
                 if (!t->passes_now) {
                     t->state = PS_TARGET_NONE;
-                    snprintf(t->why, sizeof t->why, "fails for any delay (the delay is not the cause)");
+                    snprintf(t->why, sizeof t->why, "no unstable pole: the delay raises no floor above 1, and the "
+                                                    "plant fails without it");
                 }
                 break;
             }
@@ -529,6 +445,26 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
             search(&pr, t, q->wb > 0 ? q->wb : scale * 1e-6, scale * 1e-6, hi, true);
             if (!(q->wb > 0))
                 t->passes_now = false;
+            break;
+        }
+        case PS_TARGET_EFFORT: {
+            /* The effort share passes exactly when the allowed peak of
+             * |C S| reaches the effort floor: no search is needed. */
+            t->now = q->effort_allowed > 0 ? q->effort_allowed : NAN;
+            if (!(q->effort_allowed > 0)) {
+                snprintf(t->why, sizeof t->why, "no effort_allowed given: effort is not counted");
+                break;
+            }
+            double e = s->fl.effort;
+            t->passes_now = e <= q->effort_allowed;
+            if (!isfinite(e)) {
+                t->state = PS_TARGET_NONE;
+                t->searched = INFINITY;
+                snprintf(t->why, sizeof t->why, "no controller stabilizes the plant");
+            } else {
+                t->state = PS_TARGET_FOUND;
+                t->limit = e;
+            }
             break;
         }
         case PS_TARGET_COUNT: break;
@@ -560,6 +496,17 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
         s->curve_wb[i] = wb;
         s->curve_ms[i] = ws->fl.ms;
     }
+}
+
+/* The cause of a needs-bandwidth verdict: what is missing and why it matters. */
+static void text_needs_bandwidth(const ps_analysis *an, const ps_floors *fl, char *buf, size_t n)
+{
+    double p = dominant_pole(an);
+    snprintf(buf, n,
+             "unstable pole%s %.3g rad/s and no rolloff_start: without a bandwidth limit the floors (Ms %.3g, "
+             "Mt %.3g) cannot rule the plant in or out; give rolloff_start, the bandwidth the actuator, sensor "
+             "and sampling allow",
+             an->n_rhp_poles > 1 ? "s, dominant" : "", p, fl->ms, fl->mt);
 }
 
 static void copy_roots(const ps_root *r, size_t n, ps_cplx *out, size_t *n_out)
@@ -597,22 +544,23 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
         s->req_overridden[f] = ps_plant_has(o->p, (ps_field)f);
     s->severity = severity_of(o->fl, q, &s->share_ms, &s->share_mt, &s->share_effort);
     s->verdict = ps_verdict_of(s->severity, o->fl->infinite, an->hidden_unstable, opt->marginal_at);
-    if (!isnan(s->share_ms) || !isnan(s->share_mt)) {
-        double best = s->share_ms;
-        s->worst = "Ms";
-        if (s->share_mt > best) {
-            best = s->share_mt;
-            s->worst = "Mt";
-        }
-        if (s->share_effort > best)
-            s->worst = "effort";
+    ps_peak binding = ps_peak_binding(s->share_ms, s->share_mt, s->share_effort);
+    s->worst = ps_peak_name(binding);
+    ps_attribution_compute(ws->lws, &ws->work, an, q, o->fl, binding, &s->attr);
+    ps_attribution_cause(&s->attr, an, q, o->fl, s->cause, sizeof s->cause);
+    /* An unstable plant given no bandwidth limit is judged only when a
+     * bandwidth-free floor already fails it: with unlimited bandwidth the
+     * Bode area costs no peak and the passing floors may all be 1. */
+    bool passes = s->verdict == PS_VERDICT_CLEAR || s->verdict == PS_VERDICT_MARGINAL;
+    if (passes && an->n_rhp_poles > 0 && !(q->wh > 0)) {
+        s->verdict = PS_VERDICT_NEEDS_BANDWIDTH;
+        text_needs_bandwidth(an, o->fl, s->cause, sizeof s->cause);
     }
-    cause_words(an, o->fl, q, s->worst, s->cause, sizeof s->cause);
     copy_roots(an->poles, an->n_poles, s->poles, &s->n_poles);
     copy_roots(an->zeros, an->n_zeros, s->zeros, &s->n_zeros);
-    for (size_t i = 0; i < an->n_poles && s->n_rhp_real < PS_MAP_MAX; i++)
-        if (an->poles[i].region == PS_RHP && an->poles[i].v.im == 0)
-            s->rhp_real[s->n_rhp_real++] = an->poles[i].v.re;
+    for (size_t i = 0; i < an->n_poles && s->n_growth < PS_MAP_MAX; i++)
+        if (an->poles[i].region == PS_RHP && an->poles[i].v.im >= 0)
+            s->growth[s->n_growth++] = an->poles[i].v;
     s->n_rhp_poles = an->n_rhp_poles;
     s->n_rhp_zeros = an->n_rhp_zeros;
     s->delay = an->delay;
@@ -622,14 +570,16 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     /* The band target and curve use the plant's attenuation, or the -3 dB
      * level that defines the sensitivity bandwidth (S&P 2nd ed. sec. 2.4.5, from memory). */
     s->band_eps = q->wb > 0 ? q->eps : M_SQRT1_2;
-    if (s->verdict == PS_VERDICT_UNSTABILIZABLE) {
+    if (an->hidden_unstable) {
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             s->target[k] = (ps_target){.state = PS_TARGET_NA, .limit = NAN, .now = NAN};
-            snprintf(s->target[k].why, sizeof s->target[k].why, "not stabilizable: no change of this value helps");
+            snprintf(s->target[k].why, sizeof s->target[k].why,
+                     "a hidden unstable mode: no change of this value makes the plant stabilizable");
         }
         return;
     }
-    bool flagged = s->verdict == PS_VERDICT_MARGINAL || s->verdict == PS_VERDICT_REDESIGN;
+    bool flagged = s->verdict == PS_VERDICT_MARGINAL || s->verdict == PS_VERDICT_REDESIGN ||
+                   s->verdict == PS_VERDICT_UNSTABILIZABLE;
     if (opt->detail == PS_DETAIL_NONE || (opt->detail == PS_DETAIL_FLAGGED && !flagged)) {
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             s->target[k] = (ps_target){.state = PS_TARGET_NA, .limit = NAN, .now = NAN};
@@ -760,10 +710,11 @@ typedef struct span {
 
 static const span spans[] = {
     TEXT(id),           TEXT(cause),          TEXT(fl.note),        TEXT(target[0].why),  TEXT(target[1].why),
-    TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  LIST(curve_wb, n_curve), LIST(curve_ms, n_curve),
-    LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(rhp_real, n_rhp_real), TEXT(err_field), TEXT(err_text),
+    TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  TEXT(target[5].why),
+    LIST(curve_wb, n_curve), LIST(curve_ms, n_curve),
+    LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(growth, n_growth), TEXT(err_field), TEXT(err_text),
 };
-_Static_assert(PS_TARGET_COUNT == 5, "one text span per target");
+_Static_assert(PS_TARGET_COUNT == 6, "one text span per target");
 
 /* Bytes of span sp in use: a text at field (room bytes readable) up to and
  * with its NUL, a list up to the count that summary holds. */
@@ -868,7 +819,8 @@ static void slot_release(ps_run_store *st, size_t row)
     }
 }
 /* The lists a row of this verdict appears in (terminal_report.c): the
- * ranking, the redesign list, the passing list, the input errors. */
+ * ranking, the redesign list, the passing list, the entries not judged
+ * (input errors and plants that need a bandwidth limit). */
 static unsigned row_lists(ps_verdict v)
 {
     unsigned m = 1u;
@@ -876,7 +828,7 @@ static unsigned row_lists(ps_verdict v)
         m |= 2u;
     if (v == PS_VERDICT_CLEAR || v == PS_VERDICT_MARGINAL)
         m |= 4u;
-    if (v == PS_VERDICT_UNREAD)
+    if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
         m |= 8u;
     return m;
 }
@@ -1106,10 +1058,16 @@ bool ps_run_failed(const ps_run *r)
     return r->store && r->store->failed;
 }
 
-/* Rank key: 0 not stabilizable, 1 screened (by severity), 2 input error. */
+/* Rank key: 0 not stabilizable, 1 screened (by severity), 2 needs a
+ * bandwidth limit, 3 input error. */
 static int rank_class(const ps_summary *s)
 {
-    return s->verdict == PS_VERDICT_UNSTABILIZABLE ? 0 : s->verdict == PS_VERDICT_UNREAD ? 2 : 1;
+    switch (s->verdict) {
+    case PS_VERDICT_UNSTABILIZABLE: return 0;
+    case PS_VERDICT_NEEDS_BANDWIDTH: return 2;
+    case PS_VERDICT_UNREAD: return 3;
+    default: return 1;
+    }
 }
 
 static int by_rank(const void *a, const void *b)

@@ -14,18 +14,21 @@
 #include "limits/floors.h"
 #include "model/plant.h"
 #include "roots/roots.h"
+#include "screen/attribution.h"
 
 typedef enum ps_verdict {
     PS_VERDICT_CLEAR = 0,      /* every floor well inside what is allowed */
     PS_VERDICT_MARGINAL,       /* floors use at least marginal_at of the allowed log-peak */
     PS_VERDICT_REDESIGN,       /* some floor exceeds what the requirements allow */
     PS_VERDICT_UNSTABILIZABLE, /* hidden unstable mode or an infinite floor */
+    PS_VERDICT_NEEDS_BANDWIDTH, /* an unstable plant with no roll-off start that no bandwidth-free floor fails:
+                                   with unlimited bandwidth every floor it has may be 1, so it is not judged */
     PS_VERDICT_UNREAD,         /* the entry could not be read or checked */
     PS_VERDICT_COUNT
 } ps_verdict;
 
 /* Stable words used in every report ("clear", "marginal", "redesign",
- * "not-stabilizable", "input-error"). */
+ * "not-stabilizable", "needs-bandwidth", "input-error"). */
 const char *ps_verdict_name(ps_verdict v);
 
 /* Default share of the allowed log-peak at which a plant becomes marginal. */
@@ -36,11 +39,13 @@ typedef enum ps_target_kind {
     PS_TARGET_ZERO,     /* smallest RHP zero that passes (all RHP zeros scaled together) */
     PS_TARGET_DELAY,    /* largest delay that passes */
     PS_TARGET_ROLLOFF,  /* smallest roll-off start w_h (available bandwidth) that passes */
-    PS_TARGET_BAND,     /* widest band edge w_b whose Ms floor stays within the allowed Ms */
+    PS_TARGET_BAND,     /* widest band edge w_b with which every floor passes */
+    PS_TARGET_EFFORT,   /* smallest allowed peak |C S| that passes (the effort floor), when effort is counted */
     PS_TARGET_COUNT
 } ps_target_kind;
 
-/* Stable key of a target ("unstable_pole", "rhp_zero", "delay", "rolloff_start", "band_edge"). */
+/* Stable key of a target ("unstable_pole", "rhp_zero", "delay", "rolloff_start", "band_edge",
+ * "effort_allowed"). */
 const char *ps_target_key(ps_target_kind k);
 
 typedef enum ps_target_state {
@@ -61,7 +66,7 @@ typedef struct ps_target {
     char why[120];
 } ps_target;
 
-enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 240 };
+enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 360 };
 
 /* What a report needs of one plant: a fixed record, no pointers into the
  * model (the model is gone once the next entry is read). */
@@ -73,8 +78,9 @@ typedef struct ps_summary {
     ps_verdict verdict;
     double severity;            /* max share; INFINITY when not stabilizable, NAN for input errors */
     double share_ms, share_mt, share_effort; /* NAN when not applicable */
-    const char *worst;          /* "Ms", "Mt", "effort" or "none" */
-    char cause[PS_CAUSE_MAX];
+    const char *worst;          /* "Ms", "Mt", "effort" or "none" (ps_peak_name of attr.binding) */
+    char cause[PS_CAUSE_MAX];   /* one sentence from attr */
+    ps_attribution attr;        /* the binding floor taken apart by factor */
     ps_floors fl;
     ps_requirements req;
     bool req_overridden[PS_F_COUNT]; /* the field was given on the plant (or by catalog defaults) */
@@ -85,8 +91,8 @@ typedef struct ps_summary {
     /* the plant as analysed (first PS_MAP_MAX of each; counts are the true counts) */
     size_t n_poles, n_zeros, n_rhp_poles, n_rhp_zeros;
     ps_cplx poles[PS_MAP_MAX], zeros[PS_MAP_MAX];
-    size_t n_rhp_real;          /* real RHP poles (for times to double) */
-    double rhp_real[PS_MAP_MAX];
+    size_t n_growth;            /* RHP poles, one per real pole or conjugate pair (im >= 0), for times to double */
+    ps_cplx growth[PS_MAP_MAX];
     double delay, gain;
     int rel_degree;
     bool hidden_unstable;

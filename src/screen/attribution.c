@@ -1,0 +1,360 @@
+/* attribution.c - the binding floor of one plant taken apart: each factor
+ * relaxed alone, the floor recomputed, the factors ranked (see attribution.h). */
+#include "screen/attribution.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <string.h>
+
+const char *ps_peak_name(ps_peak p)
+{
+    switch (p) {
+    case PS_PEAK_MS: return "Ms";
+    case PS_PEAK_MT: return "Mt";
+    case PS_PEAK_EFFORT: return "effort";
+    case PS_PEAK_NONE: break;
+    }
+    return "none";
+}
+
+const char *ps_factor_key(ps_factor f)
+{
+    static const char *const keys[PS_FACTOR_COUNT] = {"delay", "rhp_zeros", "rolloff_start", "band"};
+    return (unsigned)f < PS_FACTOR_COUNT ? keys[f] : "?";
+}
+
+const char *ps_factor_relaxed_words(ps_factor f)
+{
+    static const char *const words[PS_FACTOR_COUNT] = {"without the delay", "without the RHP zeros",
+                                                       "with unlimited bandwidth", "without the band requirement"};
+    return (unsigned)f < PS_FACTOR_COUNT ? words[f] : "?";
+}
+
+ps_peak ps_peak_binding(double share_ms, double share_mt, double share_effort)
+{
+    ps_peak b = PS_PEAK_NONE;
+    double best = 0.0;
+    if (share_ms > best) {
+        best = share_ms;
+        b = PS_PEAK_MS;
+    }
+    if (share_mt > best) {
+        best = share_mt;
+        b = PS_PEAK_MT;
+    }
+    if (share_effort > best)
+        b = PS_PEAK_EFFORT;
+    return b;
+}
+
+double ps_peak_floor(const ps_floors *fl, ps_peak b)
+{
+    switch (b) {
+    case PS_PEAK_MS: return fl->ms;
+    case PS_PEAK_MT: return fl->mt;
+    case PS_PEAK_EFFORT: return fl->effort;
+    case PS_PEAK_NONE: break;
+    }
+    return NAN;
+}
+
+static double allowed_of(const ps_requirements *q, ps_peak b)
+{
+    switch (b) {
+    case PS_PEAK_MS: return q->ms_allowed;
+    case PS_PEAK_MT: return q->mt_allowed;
+    case PS_PEAK_EFFORT: return q->effort_allowed;
+    case PS_PEAK_NONE: break;
+    }
+    return NAN;
+}
+
+/* Relax the factors in mask on copies of the plant and requirements. */
+static void relax(unsigned mask, ps_analysis *w, ps_requirements *q)
+{
+    if (mask & 1u << PS_FACTOR_DELAY)
+        w->delay = 0.0;
+    if (mask & 1u << PS_FACTOR_ZEROS) {
+        /* The minimum-phase mirror: same |P(jw)|, no RHP zero. */
+        for (size_t j = 0; j < w->n_zeros; j++)
+            if (w->zeros[j].region == PS_RHP) {
+                w->zeros[j].v.re = -w->zeros[j].v.re;
+                w->zeros[j].region = PS_LHP;
+            }
+        w->n_rhp_zeros = 0;
+    }
+    if (mask & 1u << PS_FACTOR_ROLLOFF)
+        q->wh = 0.0;
+    if (mask & 1u << PS_FACTOR_BAND)
+        q->wb = 0.0;
+}
+
+static double relaxed_floor(ps_limits_ws *lws, ps_analysis *scratch, const ps_analysis *an,
+                            const ps_requirements *q, ps_peak b, unsigned mask)
+{
+    ps_requirements rq = *q;
+    memcpy(scratch, an, sizeof *scratch);
+    relax(mask, scratch, &rq);
+    ps_floors fl;
+    ps_floors_compute(lws, scratch, &rq, &fl);
+    return ps_peak_floor(&fl, b);
+}
+
+void ps_attribution_compute(ps_limits_ws *lws, ps_analysis *scratch, const ps_analysis *an, const ps_requirements *q,
+                            const ps_floors *fl, ps_peak binding, ps_attribution *out)
+{
+    memset(out, 0, sizeof *out);
+    out->binding = binding;
+    out->floor = ps_peak_floor(fl, binding);
+    out->allowed = allowed_of(q, binding);
+    out->all_relaxed = NAN;
+    out->present[PS_FACTOR_DELAY] = an->delay > 0;
+    out->present[PS_FACTOR_ZEROS] = an->n_rhp_zeros > 0;
+    out->present[PS_FACTOR_ROLLOFF] = q->wh > 0;
+    out->present[PS_FACTOR_BAND] = q->wb > 0;
+    for (int f = 0; f < PS_FACTOR_COUNT; f++)
+        out->without[f] = NAN;
+    if (binding == PS_PEAK_NONE || !isfinite(out->floor))
+        return;
+    bool skipped = ps_limits_effort_skipped(lws);
+    ps_limits_skip_effort(lws, false);
+    unsigned all = 0;
+    for (int f = 0; f < PS_FACTOR_COUNT; f++) {
+        if (!out->present[f])
+            continue;
+        all |= 1u << f;
+        out->without[f] = relaxed_floor(lws, scratch, an, q, binding, 1u << f);
+        /* insertion by the relaxed floor, lowest first; ties keep enum order */
+        size_t k = out->n_present++;
+        while (k > 0 && out->without[out->order[k - 1]] > out->without[f]) {
+            out->order[k] = out->order[k - 1];
+            k--;
+        }
+        out->order[k] = (unsigned char)f;
+    }
+    for (size_t i = 0; i < out->n_present; i++)
+        if (out->without[out->order[i]] < out->floor * (1 - PS_ATTR_RTOL))
+            out->n_lowering = i + 1;
+    if (out->n_present > 1)
+        out->all_relaxed = relaxed_floor(lws, scratch, an, q, binding, all);
+    else if (out->n_present == 1)
+        out->all_relaxed = out->without[out->order[0]];
+    ps_limits_skip_effort(lws, skipped);
+}
+
+/* ---- the sentence ---- */
+
+typedef struct text {
+    char *buf;
+    size_t n, len;
+} text;
+
+static void put(text *t, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+
+static void put(text *t, const char *fmt, ...)
+{
+    if (t->len >= t->n)
+        return;
+    va_list ap;
+    va_start(ap, fmt);
+    int w = vsnprintf(t->buf + t->len, t->n - t->len, fmt, ap);
+    va_end(ap);
+    if (w > 0)
+        t->len = t->len + (size_t)w < t->n ? t->len + (size_t)w : t->n - 1;
+}
+
+/* A time in ms below one second, in s from there on. */
+static void put_time(text *t, double s)
+{
+    if (s < 1.0)
+        put(t, "%.3g ms", s * 1e3);
+    else
+        put(t, "%.3g s", s);
+}
+
+/* The RHP pole of largest magnitude (first of a pair: im >= 0). */
+static const ps_root *dominant(const ps_analysis *an)
+{
+    const ps_root *d = NULL;
+    for (size_t i = 0; i < an->n_poles; i++) {
+        const ps_root *r = &an->poles[i];
+        if (r->region != PS_RHP || r->v.im < 0)
+            continue;
+        if (!d || hypot(r->v.re, r->v.im) > hypot(d->v.re, d->v.im))
+            d = r;
+    }
+    return d;
+}
+
+/* "the unstable pole 7 rad/s", "the unstable pole pair 0.5+-6j rad/s",
+ * "the unstable poles, dominant 7 rad/s". */
+static void put_poles(text *t, const ps_analysis *an)
+{
+    const ps_root *d = dominant(an);
+    if (!d)
+        return;
+    bool pair = d->v.im > 0;
+    bool more = an->n_rhp_poles > (pair ? 2u : 1u);
+    put(t, "%s", more ? "the unstable poles, dominant " : pair ? "the unstable pole pair " : "the unstable pole ");
+    if (pair)
+        put(t, "%.3g+-%.3gj rad/s", d->v.re, d->v.im);
+    else
+        put(t, "%.3g rad/s", d->v.re);
+}
+
+/* The RHP zero nearest an RHP pole (relative to the pole), for the zero's words. */
+static double nearest_zero(const ps_analysis *an, const ps_root **zero, const ps_root **pole)
+{
+    double best = INFINITY;
+    *zero = *pole = NULL;
+    for (size_t j = 0; j < an->n_zeros; j++) {
+        const ps_root *z = &an->zeros[j];
+        if (z->region != PS_RHP || z->v.im < 0)
+            continue;
+        if (!*zero || hypot(z->v.re, z->v.im) < hypot((*zero)->v.re, (*zero)->v.im))
+            *zero = z; /* smallest, when no pole is near */
+        for (size_t i = 0; i < an->n_poles; i++) {
+            const ps_root *p = &an->poles[i];
+            if (p->region != PS_RHP || p->v.im < 0)
+                continue;
+            double rel = hypot(z->v.re - p->v.re, z->v.im - p->v.im) / hypot(p->v.re, p->v.im);
+            if (rel < best) {
+                best = rel;
+                *pole = p;
+            }
+        }
+    }
+    if (*pole) /* name the zero that is near that pole */
+        for (size_t j = 0; j < an->n_zeros; j++) {
+            const ps_root *z = &an->zeros[j];
+            if (z->region == PS_RHP && z->v.im >= 0 &&
+                hypot(z->v.re - (*pole)->v.re, z->v.im - (*pole)->v.im) / hypot((*pole)->v.re, (*pole)->v.im) == best)
+                *zero = z;
+        }
+    return best;
+}
+
+/* A zero near a pole is named with its distance when within half the pole's size. */
+#define NEAR_ZERO_SHARE 0.5
+
+static void put_cplx(text *t, ps_cplx v)
+{
+    if (v.im != 0)
+        put(t, "%.3g+-%.3gj rad/s", v.re, fabs(v.im));
+    else
+        put(t, "%.3g rad/s", v.re);
+}
+
+/* One factor with its value; returns whether the words named an unstable pole. */
+static bool put_factor(text *t, ps_factor f, const ps_analysis *an, const ps_requirements *q)
+{
+    switch (f) {
+    case PS_FACTOR_DELAY:
+        put(t, "delay ");
+        put_time(t, an->delay);
+        return false;
+    case PS_FACTOR_ZEROS: {
+        const ps_root *z, *p;
+        double rel = nearest_zero(an, &z, &p);
+        bool one = an->n_rhp_zeros == (z->v.im != 0 ? 2u : 1u);
+        put(t, "%s", one ? (z->v.im != 0 ? "RHP zero pair " : "RHP zero ") : "RHP zeros, among them ");
+        put_cplx(t, z->v);
+        if (p && rel < NEAR_ZERO_SHARE) {
+            put(t, " (%.2g %% from the unstable pole%s ", 100 * rel, p->v.im != 0 ? " pair" : "");
+            put_cplx(t, p->v);
+            put(t, ")");
+            return true;
+        }
+        return false;
+    }
+    case PS_FACTOR_ROLLOFF: put(t, "available bandwidth %.3g rad/s", q->wh); return false;
+    case PS_FACTOR_BAND: put(t, "required band |S| <= %.3g up to %.3g rad/s", q->eps, q->wb); return false;
+    case PS_FACTOR_COUNT: break;
+    }
+    return false;
+}
+
+/* The relaxation in words, "zero" singular for one real zero or one pair. */
+static const char *relaxed_words(ps_factor f, const ps_analysis *an)
+{
+    if (f == PS_FACTOR_ZEROS && an->n_rhp_zeros <= 2) {
+        const ps_root *z, *p;
+        nearest_zero(an, &z, &p);
+        if (an->n_rhp_zeros == (z->v.im != 0 ? 2u : 1u))
+            return z->v.im != 0 ? "without the RHP zero pair" : "without the RHP zero";
+    }
+    return ps_factor_relaxed_words(f);
+}
+
+static const char *peak_words(ps_peak b)
+{
+    return b == PS_PEAK_EFFORT ? "effort floor (peak |C S|)" : b == PS_PEAK_MT ? "Mt floor" : "Ms floor";
+}
+
+void ps_attribution_cause(const ps_attribution *a, const ps_analysis *an, const ps_requirements *q,
+                          const ps_floors *fl, char *buf, size_t n)
+{
+    text t = {buf, n, 0};
+    buf[0] = '\0';
+    if (an->hidden_unstable) {
+        put(&t, "hidden unstable mode: no controller can reach or see it");
+        return;
+    }
+    if (fl->infinite) {
+        const ps_root *z, *p;
+        nearest_zero(an, &z, &p);
+        if (z && p) {
+            put(&t, "RHP zero ");
+            put_cplx(&t, z->v);
+            put(&t, " coincides with the unstable pole ");
+            put_cplx(&t, p->v);
+            put(&t, ": no controller stabilizes the plant while they coincide");
+        } else
+            put(&t, "%s", fl->note[0] ? fl->note : "an infinite floor");
+        return;
+    }
+    if (a->binding == PS_PEAK_NONE) {
+        put(&t, "no floor above 1: none of the allowed peaks is used");
+        return;
+    }
+    /* The lead: the factors that lower the floor, largest first; when none
+     * does alone, every present factor (they hold it together). */
+    size_t n_lead = a->n_lowering ? a->n_lowering : a->n_present;
+    bool pole_named = false;
+    if (a->binding == PS_PEAK_EFFORT && a->n_lowering == 0) {
+        put(&t, "stabilizing ");
+        put_poles(&t, an);
+        put(&t, " at plant gain %.3g", an->gain);
+        pole_named = true;
+        n_lead = 0;
+    }
+    for (size_t i = 0; i < n_lead; i++) {
+        put(&t, "%s", i == 0 ? "" : i + 1 == n_lead ? " and " : ", ");
+        pole_named |= put_factor(&t, (ps_factor)a->order[i], an, q);
+    }
+    if (!pole_named && an->n_rhp_poles > 0) {
+        put(&t, n_lead ? " with " : "");
+        put_poles(&t, an);
+    }
+    put(&t, ": %s %.3g against %.3g allowed", peak_words(a->binding), a->floor, a->allowed);
+    /* The figures: each present factor's relaxation. */
+    const char *sep = " (";
+    for (size_t i = 0; i < a->n_lowering; i++) {
+        ps_factor f = (ps_factor)a->order[i];
+        put(&t, "%s%.3g %s", sep, a->without[f], relaxed_words(f, an));
+        sep = "; ";
+    }
+    if (a->n_lowering == 0 && a->n_present > 1)
+        put(&t, "%sno single relaxation lowers it; %.3g with all of them relaxed", sep, a->all_relaxed),
+            sep = "; ";
+    for (size_t i = a->n_lowering; i < a->n_present; i++) {
+        ps_factor f = (ps_factor)a->order[i];
+        if (a->n_lowering == 0 && a->n_present > 1)
+            break;
+        put(&t, "%sunchanged %s", sep, relaxed_words(f, an));
+        sep = "; ";
+    }
+    if (sep[0] == ';')
+        put(&t, ")");
+}
