@@ -484,7 +484,7 @@ static int cmd_screen(int argc, char **argv)
                    (g == GATE_MARGINAL && pv[PS_VERDICT_MARGINAL]);
     if (tripped)
         rc = EXIT_GATE;
-    if (c.run.counts.errors)
+    if (c.run.counts.errors || pv[PS_VERDICT_NEEDS_BANDWIDTH]) /* entries that could not be judged */
         rc = EXIT_ENTRIES;
     if (io_failed)
         rc = EXIT_IO;

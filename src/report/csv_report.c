@@ -44,7 +44,10 @@ static const char *const head_cols[] = {
     "rolloff_start", "bode_area",    "ms_interpolation", "mt_interpolation", "ms_band",
     "ms_poisson",    "mt_poisson",   "limiting",         "rhp_poles",        "rhp_zeros",
     "delay",         "hidden_unstable_mode", "crossover_min", "crossover_max", "window_open",
+    "binding_floor", "first_factor", "without_delay", "without_rhp_zeros", "without_rolloff_start",
+    "without_band",
 };
+_Static_assert(PS_FACTOR_COUNT == 4, "one without_ column per factor");
 /* Columns after the per-target groups. */
 static const char *const tail_cols[] = {"error_line", "error_column", "error_field", "error"};
 
@@ -137,6 +140,13 @@ static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t r
     cell_num(o, fl->crossover_min);
     cell_num(o, fl->crossover_max);
     cell_bool(o, fl->window_open);
+    /* The attribution (screen/attribution.h): the binding floor, the factor
+     * whose relaxation lowers it most, and the floor each relaxation leaves. */
+    const ps_attribution *a = &s->attr;
+    cell_num(o, a->floor);
+    cell_text(o, a->n_lowering ? ps_factor_key((ps_factor)a->order[0]) : NULL);
+    for (int f = 0; f < PS_FACTOR_COUNT; f++)
+        cell_num(o, a->without[f]);
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         const ps_target *t = &s->target[k];
         cell_text(o, ps_target_state_name(t->state));

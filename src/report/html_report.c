@@ -327,8 +327,11 @@ static void severity_figure(FILE *f, const ps_run *r)
             bool unstab = s->verdict == PS_VERDICT_UNSTABILIZABLE;
             double v = isfinite(s->severity) ? fmax(0.0, s->severity) : 0;
             bool off = v > top;
+            bool unjudged = s->verdict == PS_VERDICT_NEEDS_BANDWIDTH;
             if (pass == 1) {
-                if (unstab)
+                if (unjudged)
+                    snprintf(buf, sizeof buf, "not judged: no rolloff_start given");
+                else if (unstab)
                     snprintf(buf, sizeof buf, "not stabilizable (off-scale)");
                 else if (!isfinite(s->severity))
                     snprintf(buf, sizeof buf, "no share (nothing to bound)");
@@ -347,10 +350,10 @@ static void severity_figure(FILE *f, const ps_run *r)
                               : s->verdict == PS_VERDICT_MARGINAL ? "bar-marginal"
                               : s->verdict == PS_VERDICT_REDESIGN ? "bar-redesign"
                                                                   : "bar-unstab";
-            if (unstab || isfinite(s->severity))
+            if (!unjudged && (unstab || isfinite(s->severity)))
                 fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L,
                         y + 4, unstab ? PW : XS(fmin(v, top)) - L);
-            if (off && !unstab)
+            if (off && !unstab && !unjudged)
                 fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl7 6l-7 6z\"/>\n", L + PW + 1, y + 4);
             fprintf(f, "</g>\n");
         }
@@ -801,7 +804,7 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
 static void yield_rect(FILE *f, int v, size_t k, double x, double y, double w, double h)
 {
     static const char *const cls[PS_VERDICT_COUNT] = {"bar-clear", "bar-marginal", "bar-redesign", "bar-unstab-y",
-                                                      "bar-unread"};
+                                                      "bar-unread", "bar-unread"};
     fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"", cls[v], x, y, w, h);
     if (v == PS_VERDICT_UNSTABILIZABLE)
         fprintf(f, " fill=\"url(#ps-hatch-y%zu)\"", k);

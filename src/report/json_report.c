@@ -27,6 +27,20 @@ static json_t *jtarget(const ps_summary *s, ps_target_kind k)
                      "passes_now", t->passes_now, "text", ps_json_str(text), "why", ps_json_str(t->why));
 }
 
+/* The binding floor taken apart (screen/attribution.h): the present
+ * factors, lowest relaxed floor first. */
+static json_t *jattribution(const ps_attribution *a)
+{
+    json_t *fs = json_array();
+    for (size_t i = 0; i < a->n_present; i++) {
+        ps_factor f = (ps_factor)a->order[i];
+        json_array_append_new(fs, json_pack("{s:s,s:o,s:b}", "factor", ps_factor_key(f), "floor_without",
+                                            ps_json_num(a->without[f]), "lowers", i < a->n_lowering));
+    }
+    return json_pack("{s:s,s:o,s:o,s:o,s:o}", "binding", ps_peak_name(a->binding), "floor", ps_json_num(a->floor),
+                     "allowed", ps_json_num(a->allowed), "factors", fs, "all_relaxed", ps_json_num(a->all_relaxed));
+}
+
 static json_t *given_fields(const ps_summary *s)
 {
     json_t *a = json_array();
@@ -52,6 +66,7 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
     json_object_set_new(j, "worst", json_string(s->worst));
     json_object_set_new(j, "cause", ps_json_str(s->cause));
     if (s->verdict == PS_VERDICT_UNREAD) {
+        json_object_set_new(j, "attribution", json_null());
         json_object_set_new(j, "plant", json_null());
         json_object_set_new(j, "requirements", json_null());
         json_object_set_new(j, "floors", json_null());
@@ -76,6 +91,7 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
     json_t *fj = ps_json_floors(&s->fl);
     ps_json_floor_extras(fj, &s->fl, &s->req, s->growth, s->n_growth);
     json_object_set_new(j, "floors", fj);
+    json_object_set_new(j, "attribution", jattribution(&s->attr));
     json_t *t = json_object();
     for (int k = 0; k < PS_TARGET_COUNT; k++)
         json_object_set_new(t, ps_target_key((ps_target_kind)k), jtarget(s, (ps_target_kind)k));

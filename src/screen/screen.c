@@ -819,8 +819,8 @@ static void slot_release(ps_run_store *st, size_t row)
     }
 }
 /* The lists a row of this verdict appears in (terminal_report.c): the
- * ranking, the redesign list, the passing list, the entries not judged
- * (input errors and plants that need a bandwidth limit). */
+ * ranking, the redesign list, the passing list, the input errors, the
+ * plants that need a bandwidth limit. */
 static unsigned row_lists(ps_verdict v)
 {
     unsigned m = 1u;
@@ -828,8 +828,10 @@ static unsigned row_lists(ps_verdict v)
         m |= 2u;
     if (v == PS_VERDICT_CLEAR || v == PS_VERDICT_MARGINAL)
         m |= 4u;
-    if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
+    if (v == PS_VERDICT_UNREAD)
         m |= 8u;
+    if (v == PS_VERDICT_NEEDS_BANDWIDTH)
+        m |= 16u;
     return m;
 }
 /* The lists in which row (its key set) is among the first keep_top so far. */

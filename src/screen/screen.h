@@ -154,7 +154,7 @@ typedef struct ps_catalog_entry {
  * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
  * the file holds each summary as a compact record (texts and lists cut to
  * their length: about 0.9-1.4 kB instead of 3.4 kB). */
-enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536, PS_RUN_WRITE_BUF = 1 << 20, PS_RUN_LISTS = 4 };
+enum { PS_RUN_MEMORY_ROWS = 16384, PS_RUN_RING = 8, PS_RUN_WINDOW = 65536, PS_RUN_WRITE_BUF = 1 << 20, PS_RUN_LISTS = 5 };
 
 typedef struct ps_rank_key {
     double severity;
@@ -180,7 +180,7 @@ typedef struct ps_run_store {
     size_t ring_pos;
     bool failed;                /* a write or read of the file failed */
     /* keep_top runs (no file): records in slots (key.at = slot, len 0 when
-     * dropped); per list (ranking, redesign, passing, input errors) a heap
+     * dropped); per list (ranking, redesign, passing, input errors, needs-bandwidth) a heap
      * of the keep_top first rows so far, the last on top; a slot lives
      * while some list holds its row. */
     unsigned char **slot;

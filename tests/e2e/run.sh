@@ -301,12 +301,11 @@ PY
     check "Markdown ranking matches the CSV: $stem" 0 $?
 done
 
-# Cause: an Mt floor that only follows from an Ms floor by ||T|| >= ||S|| - 1
-# names that Ms floor. one-pole-tight: band floor exp(pi p / w_h) (Stein 2003)
-# = exp(12 pi / 40) = 2.566, so Mt >= 1.566 > 1.25 allowed while its own Mt
-# floors are 1.
-contains "cause names the Ms floor behind the Mt floor" "$tmp/scr/closed-form.screen.csv" \
-    "; Mt floor 1.57 (allowed 1.25) follows from the band-forced Ms floor 2.57 (||T|| >= ||S|| - 1)"
+# Cause by attribution. one-pole-tight: band floor exp(pi p / w_h) (Stein 2003)
+# = exp(12 pi / 40) = 2.566, so Mt >= 1.566 > 1.25 allowed (||T|| >= ||S|| - 1)
+# while its own Mt floors are 1: unlimited bandwidth takes the Mt floor to 1.
+contains "cause names the bandwidth with the figure its relaxation gives" "$tmp/scr/closed-form.screen.csv" \
+    "available bandwidth 40 rad/s with the unstable pole 12 rad/s: Mt floor 1.57 against 1.25 allowed (1 with unlimited bandwidth)"
 "$py" - "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" <<'PY'
 import json, math, sys
 P = {p["id"]: p for p in json.load(open(sys.argv[1]))["plants"]}
@@ -314,17 +313,29 @@ fl = P["one-pole-tight"]["floors"]
 assert abs(fl["ms"] - math.exp(12 * math.pi / 40)) <= 1e-9 * fl["ms"], fl["ms"]
 assert fl["mt"] == fl["ms"] - 1 and fl["limiting"] == "band", fl
 assert P["one-pole-tight"]["worst"] == "Mt"
-# Everywhere: the sentence appears exactly when the worst share is an Mt floor set by an Ms floor.
+# Everywhere: the attribution's binding floor is the floor the verdict names,
+# every factor the cause names lowers it, and the first one is named first.
+words = {"delay": "delay ", "rhp_zeros": "RHP zero", "rolloff_start": "available bandwidth", "band": "required band"}
 for f in sys.argv[1:]:
     for p in json.load(open(f))["plants"]:
-        fl = p["floors"]
-        own_mt = fl and max(x for x in (fl["mt_interpolation"], fl["mt_poisson"], 0) if x is not None)
-        derived = bool(fl) and p["worst"] == "Mt" and fl["mt"] is not None and fl["mt"] > own_mt
-        assert derived == ("follows from the" in p["cause"]), (p["id"], p["cause"])
-        if not derived and fl and p["verdict"] != "not-stabilizable" and p["worst"] != "effort" and fl["ms"] > 1:
-            assert "(floor " in p["cause"], (p["id"], p["cause"])
+        a = p["attribution"]
+        if a is None or p["verdict"] in ("not-stabilizable", "needs-bandwidth"):
+            continue
+        assert a["binding"] == p["worst"], (p["id"], a, p["worst"])
+        if a["binding"] == "none":
+            assert p["cause"].startswith("no floor above 1"), (p["id"], p["cause"])
+            continue
+        key = {"Ms": "ms", "Mt": "mt", "effort": "effort"}[a["binding"]]
+        assert a["floor"] == p["floors"][key], (p["id"], a, p["floors"][key])
+        named = [x for x in a["factors"] if x["lowers"]]
+        for x in named:
+            assert x["floor_without"] < a["floor"], (p["id"], x)
+        if named:
+            first = words[named[0]["factor"]]
+            pos = [p["cause"].find(words[x["factor"]]) for x in named]
+            assert min(pos) >= 0 and pos[0] == min(pos), (p["id"], p["cause"], named)
 PY
-check "cause names the Ms floor exactly when Mt follows from it" 0 $?
+check "cause names the factors the attribution ranks, in its order" 0 $?
 
 # Colour: only on a terminal and only without NO_COLOR (https://no-color.org).
 esc=$(printf '\033')
