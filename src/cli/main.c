@@ -15,6 +15,7 @@
 #include "report/json_parts.h"
 #include "report/listing.h"
 #include "report/reports.h"
+#include "screen/audit.h"
 #include "screen/screen.h"
 #include "screen/pool.h"
 #include "screen/study.h"
@@ -201,6 +202,8 @@ typedef struct screen_ctx {
     const char *only_id; /* explain: keep this plant only */
     void (*also)(const ps_outcome *o, const ps_summary *s); /* explain: print while the model is here */
     size_t found;
+    char **members;      /* explain of a family id: the ids of its grid plants */
+    size_t n_members;
 } screen_ctx;
 
 static void say_entry_error(void *ctx, const char *file, const ps_plant *p, const ps_diag *err)
@@ -208,6 +211,19 @@ static void say_entry_error(void *ctx, const char *file, const ps_plant *p, cons
     (void)ctx;
     fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", file, err->line, err->col, p->id[0] ? "plant '" : "",
             p->id, p->id[0] ? "': " : "", err->text);
+}
+
+static void remember_member(screen_ctx *c, const char *id)
+{
+    char **m = realloc(c->members, (c->n_members + 1) * sizeof *m);
+    if (!m || !(m[c->n_members] = strdup(id))) {
+        if (m)
+            c->members = m;
+        c->nomem = true;
+        return;
+    }
+    c->members = m;
+    c->n_members++;
 }
 
 static void screen_entry(void *ctx, const ps_outcome *o)
@@ -222,8 +238,12 @@ static void screen_entry(void *ctx, const ps_outcome *o)
     }
     if (o->err)
         say_entry_error(c, o->file, o->p, o->err);
-    if (c->only_id && strcmp(o->p->id, c->only_id) != 0)
+    if (c->only_id && strcmp(o->p->id, c->only_id) != 0) {
+        size_t n = strlen(c->only_id);
+        if (strncmp(o->p->id, c->only_id, n) == 0 && o->p->id[n] == '[') /* a grid plant of that family */
+            remember_member(c, o->p->id);
         return;
+    }
     ps_summary *s = ps_run_next(&c->run);
     if (!s) {
         c->nomem = true;
@@ -498,26 +518,26 @@ static int cmd_screen(int argc, char **argv)
     return rc;
 }
 
-/* explain: every number of one plant in the order it is checked by hand. */
+/* explain: every number of one plant in the order it is checked by hand;
+ * the words come from the library (screen/audit.h, screen/attribution.h). */
 static void print_roots(const char *label, const ps_root *r, size_t n)
 {
     printf("  %-22s", label);
     if (n == 0)
         fputs(" none", stdout);
     for (size_t i = 0; i < n; i++)
-        printf(" %.6g%+.6gj[%s]", r[i].v.re, r[i].v.im, ps_region_name(r[i].region));
+        printf(" %.10g%+.10gj[%s]", r[i].v.re, r[i].v.im, ps_region_name(r[i].region));
     putchar('\n');
 }
 
-static void print_floor(const char *name, double v, const char *formula, const char *source, const char *assume)
+static void print_value(double v)
 {
     if (isnan(v))
-        printf("\n  %s = not applicable\n", name);
+        fputs("not applicable", stdout);
     else if (isinf(v))
-        printf("\n  %s = infinite\n", name);
+        fputs("infinite", stdout);
     else
-        printf("\n  %s = %.6g\n", name, v);
-    printf("    formula:    %s\n    source:     %s\n    assumption: %s\n", formula, source, assume);
+        printf("%.10g", v);
 }
 
 static void explain_one(const ps_outcome *o, const ps_summary *s)
@@ -532,62 +552,79 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     const ps_analysis *an = o->an;
     const ps_floors *fl = o->fl;
     const ps_requirements *q = &p->req;
-    char req[400];
-    ps_requirements_text(s, req, sizeof req);
+    char line[600];
+    ps_requirements_text(s, line, sizeof line);
     puts("1. The plant as analysed (roots: GSL companion solver, Newton-polished; state space: balanced eigenvalues)");
     print_roots("poles", an->poles, an->n_poles);
     print_roots("zeros", an->zeros, an->n_zeros);
-    printf("  %-22s %.6g\n  %-22s %d\n  %-22s %.6g s\n  %-22s %s\n", "gain", an->gain, "relative degree",
-           an->rel_degree, "delay", an->delay, "hidden unstable mode", an->hidden_unstable ? "YES" : "no");
-    printf("\n2. Requirements: %s\n", req);
+    printf("  %-22s %.10g\n  %-22s %d\n  %-22s %.10g s\n  %-22s %s\n", "gain", an->gain, "relative degree",
+           an->rel_degree, "delay", an->delay, "hidden unstable mode", an->hidden_unstable ? "yes" : "no");
+    printf("\n2. Requirements: %s\n", line);
+    printf("  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n"
+           "  %-22s %.10g\n  %-22s %.10g\n",
+           "peak_s_allowed", q->ms_allowed, "peak_t_allowed", q->mt_allowed, "band_edge", q->wb > 0 ? q->wb : 0.0,
+           "band_attenuation", q->wb > 0 ? q->eps : 1.0, "rolloff_start", q->wh > 0 ? q->wh : 0.0, "rolloff_gain",
+           q->delta, "rolloff_slope", q->k, "effort_allowed", q->effort_allowed);
+    puts("  (0 means not given)");
     puts("\n3. Floors (each holds for every stabilizing LTI controller, under its assumption)");
-    print_floor("Bode area F", fl->bode_area, "F = pi * sum Re p over the RHP poles",
-                "Bode sensitivity integral; Freudenberg & Looze, IEEE TAC 30(6), 1985",
-                "closed loop stable, loop of relative degree >= 2 (degree 1 adds -pi/2 lim s L(s))");
-    print_floor("Ms interpolation floor", fl->ms_interpolation,
-                "sqrt(1 + sigma_max^2(Qz^-1/2 Qzp Qp^-1/2)); one pair: |z + conj p| / |z - p|",
-                "J. Chen, IEEE TAC 45(6), 2000; S&P 2nd ed. 2005, ch. 5",
-                "no RHP pole/zero cancellation with the controller; with delay equal to the Mt floor");
-    print_floor("Mt interpolation floor", fl->mt_interpolation,
-                "Nevanlinna-Pick minimum norm, points p_i, values e^{p_i theta} / B_z(p_i) (repeated p: with derivatives)",
-                "S&P 2nd ed. 2005, ch. 5", "internal stability");
-    print_floor("Ms band floor", fl->ms_band, "exp([F + w_b ln(1/eps) - I(delta, k)] / (w_h - w_b)), I the exact roll-off tail",
-                "Bode integral with the band and roll-off; delta = 0: Stein 2003",
-                "the future loop meets |L| <= delta (w_h/w)^(1+k) beyond w_h (assumption about the controller)");
-    print_floor("Ms Poisson floor", fl->ms_poisson,
-                "(1/eps)^{Theta/(pi-Theta)} |B_p(z)^-1|^{pi/(pi-Theta)} at each RHP zero",
-                "Poisson integral; Freudenberg & Looze, IEEE TAC 30(6), 1985", "|S| <= eps on [0, w_b]");
-    print_floor("Mt Poisson floor", fl->mt_poisson,
-                "(1/eps_T)^{(pi-Theta)/Theta} (|B_z(p)^-1| e^{Re p theta})^{pi/Theta}, eps_T = delta/(1-delta)",
-                "Poisson integral for T; Freudenberg & Looze 1985", "|T| <= delta/(1-delta) beyond w_h (from the roll-off)");
-    print_floor("effort floor (peak |C S|)", fl->effort, "Pick, points p_i, values e^{p_i theta} / G_s(p_i)",
-                "S&P 2nd ed. 2005, ch. 5 (single pole: 1/|G_s(p)|)", "internal stability");
-    printf("\n  overall Ms floor = %.6g, Mt floor = %.6g (max of the above, with ||S|| >= ||T|| - 1 and the converse);"
-           " limiting: %s\n", fl->ms, fl->mt, fl->limiting);
-    printf("  crossover window (rules of thumb, not laws): %.4g .. %.4g rad/s, %s\n", fl->crossover_min,
-           fl->crossover_max, fl->window_open ? "open" : "CLOSED");
+    ps_audit audit;
+    ps_audit_floors(an, q, fl, &audit);
+    for (size_t i = 0; i < audit.n; i++) {
+        const ps_audit_item *it = &audit.item[i];
+        printf("\n  [%s] %s = ", it->key, it->name);
+        print_value(it->value);
+        printf("\n    formula:    %s\n", it->formula);
+        if (it->inputs[0])
+            printf("    inputs:     %s\n", it->inputs);
+        printf("    source:     %s\n    assumption: %s\n", it->source, it->assumption);
+    }
+    printf("\n  crossover window (rules of thumb, not laws; S&P 2nd ed. ch. 5): %.4g .. %.4g rad/s, %s\n",
+           fl->crossover_min, fl->crossover_max, fl->window_open ? "open" : "closed");
     printf("  parity interlacing (Youla, Bongiorno & Lu, Automatica 10, 1974): %s\n",
-           fl->parity_interlacing ? "holds - a stable controller can stabilize"
-                                  : "FAILS - every stabilizing controller is itself unstable");
+           fl->parity_interlacing ? "holds: a stable controller can stabilize"
+                                  : "fails: every stabilizing controller is itself unstable");
     printf("  Bode area floor covers: %s\n", ps_bode_coverage_text(fl->bode_controller_rd));
     if (fl->note[0])
         printf("  note: %s\n", fl->note);
-    puts("\n4. Severity (share of the allowed log-peak)");
-    printf("  Ms: ln(%.6g)/ln(%.6g) = %.4g\n  Mt: ln(%.6g)/ln(%.6g) = %.4g\n", fmax(fl->ms, 1), q->ms_allowed,
-           s->share_ms, fmax(fl->mt, 1), q->mt_allowed, s->share_mt);
-    if (q->effort_allowed > 0)
-        printf("  effort: ln(1 + %.6g)/ln(1 + %.6g) = %.4g\n", fl->effort, q->effort_allowed, s->share_effort);
-    else
-        puts("  effort: no effort_allowed given, not counted");
-    printf("  severity = %.4g (worst: %s)\n", s->severity, s->worst);
-    printf("\n5. Verdict: %s - %s\n   cause: %s\n", ps_verdict_name(s->verdict), ps_verdict_meaning(s->verdict),
+    puts("\n4. Severity (share of the allowed log-peak; a floor below 1 counts as 1)");
+    printf("  [share_ms] ln(%.10g)/ln(%.10g) = ", fmax(fl->ms, 1), q->ms_allowed);
+    print_value(s->share_ms);
+    printf("\n  [share_mt] ln(%.10g)/ln(%.10g) = ", fmax(fl->mt, 1), q->mt_allowed);
+    print_value(s->share_mt);
+    if (q->effort_allowed > 0) {
+        printf("\n  [share_effort] ln(1 + %.10g)/ln(1 + %.10g) = ", fl->effort, q->effort_allowed);
+        print_value(s->share_effort);
+    } else
+        fputs("\n  effort: no effort_allowed given, not counted", stdout);
+    printf("\n  [severity] = ");
+    print_value(s->severity);
+    printf(" (worst: %s)\n", s->worst);
+    const ps_attribution *a = &s->attr;
+    puts("\n5. What raises the binding floor (each factor relaxed alone, the floor recomputed in full)");
+    if (a->binding == PS_PEAK_NONE || !isfinite(a->floor))
+        puts("  no finite binding floor above 1: nothing to take apart");
+    else {
+        printf("  binding: %s floor %.10g against %.10g allowed\n", ps_peak_name(a->binding), a->floor, a->allowed);
+        if (a->n_present == 0)
+            puts("  the plant and its requirements have none of the factors (delay, RHP zeros, roll-off start, band)");
+        for (size_t i = 0; i < a->n_present; i++) {
+            ps_factor f = (ps_factor)a->order[i];
+            printf("  [without_%s] %s: %.10g (%s)\n", ps_factor_key(f), ps_factor_relaxed_words(f), a->without[f],
+                   i < a->n_lowering ? "lowers it: named in the cause" : "does not lower it");
+        }
+        if (a->n_present > 1)
+            printf("  [all_relaxed] every factor relaxed at once: %.10g\n", a->all_relaxed);
+    }
+    printf("\n6. Verdict: %s: %s\n   cause: %s\n", ps_verdict_name(s->verdict), ps_verdict_meaning(s->verdict),
            s->cause);
     printf("   (marginal from a severity of %.2g, redesign above 1)\n", PS_MARGINAL_AT);
-    puts("\n6. Redesign targets (monotone bisection on the floors, the rest of the plant held fixed)");
-    char line[400];
+    puts("\n7. Redesign targets (bisection on the floors, the rest of the plant held fixed)");
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         ps_target_text(s, (ps_target_kind)k, line, sizeof line);
-        printf("  - %s\n", line[0] ? line : s->target[k].why);
+        if (line[0])
+            printf("  - %s\n", line);
+        else
+            printf("  - %s: %s\n", ps_target_label((ps_target_kind)k), s->target[k].why);
     }
     printf("\n%s\n", ps_caution_text);
 }
@@ -609,13 +646,21 @@ static int cmd_explain(int argc, char **argv)
     int rc = EXIT_CLEAN;
     if (!c.ws || c.nomem)
         rc = EXIT_IO;
-    else if (c.found == 0) {
+    else if (c.found == 0 && c.n_members > 0) {
+        /* A family id: its grid plants are the ones that can be explained. */
+        printf("'%s' is a family of %zu plants; explain one of them:\n", argv[0], c.n_members);
+        for (size_t i = 0; i < c.n_members; i++)
+            printf("  %s\n", c.members[i]);
+    } else if (c.found == 0) {
         fprintf(stderr, "plantsieve: no plant with id '%s' in the catalogs given\n", argv[0]);
         rc = EXIT_USAGE;
     } else if (c.run.counts.errors)
         rc = EXIT_ENTRIES;
     if (!ok)
         rc = EXIT_IO;
+    for (size_t i = 0; i < c.n_members; i++)
+        free(c.members[i]);
+    free(c.members);
     ps_screen_ws_free(c.ws);
     ps_run_free(&c.run);
     if (fflush(stdout) != 0 || ferror(stdout))

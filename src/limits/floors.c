@@ -208,6 +208,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
     out->infinite = isinf(ms_single) || isinf(mt_single);
     bool ok_points = distinct(p, np) && distinct(z, nz);
     if (out->infinite) {
+        out->ms_route = out->mt_route = PS_ROUTE_INFINITE;
         out->ms_interpolation = out->mt_interpolation = INFINITY;
         snprintf(out->note, sizeof out->note, "%s",
                  an->hidden_unstable ? "hidden unstable mode: no controller can stabilize this plant"
@@ -216,6 +217,8 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
         out->ms_interpolation = ms_single; /* = 1: nothing to interpolate against */
         out->mt_interpolation = 1.0;
     } else if (!ok_points) {
+        out->mt_route = PS_ROUTE_CONFLUENT;
+        out->ms_route = theta > 0 ? PS_ROUTE_EQUAL_MT : nz > 0 ? PS_ROUTE_CONFLUENT : PS_ROUTE_NONE;
         /* Repeated RHP roots: derivative conditions at each repeated point
          * (confluent Pick). Without delay the floor on ||S|| is the Pick value
          * at the zeros, which equals the one at the poles (Chen's equality). */
@@ -230,6 +233,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
         if (st == PS_OK)
             snprintf(out->note, sizeof out->note, "repeated RHP root: confluent interpolation (derivative conditions)");
         else {
+            out->ms_route = out->mt_route = PS_ROUTE_SINGLE;
             out->ms_interpolation = ms_single;
             out->mt_interpolation = mt_single;
             snprintf(out->note, sizeof out->note,
@@ -248,6 +252,9 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
             w[i] = (ps_cplx){creal(v), cimag(v)};
         }
         double g, cond = 1.0;
+        out->mt_route = np == 1 ? PS_ROUTE_ONE_POINT : PS_ROUTE_PICK;
+        out->ms_route = theta > 0 ? PS_ROUTE_EQUAL_MT : nz == 0 ? PS_ROUTE_NONE : np == 1 ? PS_ROUTE_ONE_POINT
+                                                                                          : PS_ROUTE_CHEN;
         if (ps_pick_gamma(ws, p, w, np, &g, &cond, &d) == PS_OK) {
             out->mt_interpolation = fmax(g, mt_single);
             out->ms_interpolation = theta > 0 ? out->mt_interpolation : fmax(ms_single, 1.0);
@@ -260,9 +267,12 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
                 double chen, c2 = 1.0;
                 if (ps_chen_floor(ws, z, nz, p, np, &chen, &c2, &d) == PS_OK)
                     out->ms_interpolation = fmax(chen, ms_single);
+                else
+                    out->ms_route = PS_ROUTE_SINGLE;
                 cond = fmax(cond, c2);
             }
         } else {
+            out->ms_route = out->mt_route = PS_ROUTE_SINGLE;
             out->ms_interpolation = ms_single;
             out->mt_interpolation = mt_single;
             snprintf(out->note, sizeof out->note, "joint floor not computed (%.100s): single-point products shown",

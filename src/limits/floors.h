@@ -13,6 +13,18 @@
  * multiplicity for the interpolation floors (confluent Pick). */
 #define PS_MERGE_RTOL 1e-6
 
+/* How an interpolation floor was computed (for the audit trail). */
+typedef enum ps_route {
+    PS_ROUTE_NONE = 0,   /* no RHP point to interpolate at: the value is what S or T is forced to (0 or 1) */
+    PS_ROUTE_INFINITE,   /* an exact RHP cancellation or a hidden unstable mode */
+    PS_ROUTE_ONE_POINT,  /* one RHP pole: the Pick value is |w| */
+    PS_ROUTE_PICK,       /* Nevanlinna-Pick matrices at the RHP poles */
+    PS_ROUTE_CHEN,       /* Chen's joint formula (Ms, no delay, several RHP poles and RHP zeros) */
+    PS_ROUTE_CONFLUENT,  /* repeated RHP roots: confluent Pick */
+    PS_ROUTE_SINGLE,     /* fallback: the single-point products */
+    PS_ROUTE_EQUAL_MT    /* Ms with delay: equal to the Mt floor */
+} ps_route;
+
 typedef struct ps_floors {
     double bode_area;        /* pi * sum Re p over RHP poles */
     double ms_interpolation; /* tight joint floor on ||S|| (Chen; with delay the Pick value) */
@@ -32,6 +44,7 @@ typedef struct ps_floors {
                                 can stabilize; false: every stabilizing controller is itself unstable */
     int bode_controller_rd;  /* smallest controller relative degree for which the loop has relative degree
                                 >= 2, so the Bode area floor holds with no correction term */
+    ps_route ms_route, mt_route; /* how ms_interpolation and mt_interpolation were computed */
     char note[160];          /* a fallback taken, or why a value is missing */
 } ps_floors;
 

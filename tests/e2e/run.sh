@@ -103,7 +103,11 @@ cf="$src/tests/data/e2e/closed-form.yaml"
 "$ps" screen -o "$tmp/scr" --gate sometimes "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: bad gate is a usage error" 2 $?
 "$ps" screen -o "$tmp/scr" --gate never "$src/catalogs/broken/broken-entries.yaml" >"$tmp/out" 2>"$tmp/err"; check "screen: unreadable entries" 3 $?
 "$ps" explain pole-zero "$cf" >"$tmp/out" 2>"$tmp/err"; check "explain exits 0" 0 $?
-contains "explain shows the floor formula" "$tmp/out" "|z + conj p| / |z - p|"
+contains "explain shows the formula of the route taken (one RHP pole)" "$tmp/out" "prod_j |p + conj z_j|/|p - z_j| at the one RHP pole p"
+contains "explain shows the attribution table" "$tmp/out" "[without_rhp_zeros] without the RHP zeros: 1 (lowers it: named in the cause)"
+"$ps" explain glide-gap "$src/catalogs/demo-variants.yaml" >"$tmp/out" 2>"$tmp/err"; check "explain of a family id exits 0" 0 $?
+contains "explain of a family id lists its grid plants" "$tmp/out" "'glide-gap' is a family of 6 plants; explain one of them:"
+contains "explain of a family id lists its grid plants" "$tmp/out" "  glide-gap[gap=0.012]"
 "$ps" explain nosuch "$cf" >"$tmp/out" 2>"$tmp/err"; check "explain: unknown id" 2 $?
 "$ps" screen -o "$tmp/scr2" --gate never "$cf" >/dev/null 2>&1
 for ext in txt csv json md html; do
