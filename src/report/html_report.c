@@ -982,9 +982,9 @@ static void band_figure(FILE *f, const ps_summary *s)
     if (!(whi > 0))
         return;
     const ps_target *bt = &s->target[PS_TARGET_BAND];
-    bool promise = bt->state == PS_TARGET_FOUND && isfinite(bt->limit) && bt->limit > 0;
+    bool widest = bt->state == PS_TARGET_FOUND && isfinite(bt->limit) && bt->limit > 0;
     bool required = s->req.wb > 0 && isfinite(s->req.wb);
-    if (promise) {
+    if (widest) {
         wlo = fmin(wlo, bt->limit);
         whi = fmax(whi, bt->limit);
     }
@@ -1062,10 +1062,10 @@ static void band_figure(FILE *f, const ps_summary *s)
         snprintf(buf, sizeof buf, "required %.3g", s->req.wb);
         svg_text(f, PX(s->req.wb) + 3, T + PH - 6, "start", "small", 0, buf);
     }
-    if (promise) {
+    if (widest) {
         svg_line(f, PX(bt->limit), T, PX(bt->limit), T + PH, "promise");
         fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", PX(bt->limit), T + PH);
-        snprintf(buf, sizeof buf, "promise-able %.3g rad/s", bt->limit);
+        snprintf(buf, sizeof buf, "widest band edge %.3g rad/s", bt->limit);
         /* Left of the line the floor is still below the allowed Ms, so the
          * top-left corner is free; near the left edge use the right side. */
         bool left = PX(bt->limit) - L > 125;
@@ -1083,8 +1083,8 @@ static void band_figure(FILE *f, const ps_summary *s)
             s->band_eps);
     if (required)
         fprintf(f, " Dotted: the required band edge.");
-    if (promise)
-        fprintf(f, " Solid with a triangle: the widest band edge that can be promised.");
+    if (widest)
+        fprintf(f, " Solid with a triangle: the widest band edge with which every floor passes.");
     if (clipped)
         fprintf(f, " Values above %.3g are drawn on the top edge.", ytop);
     if (text[0]) {

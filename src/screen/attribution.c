@@ -292,26 +292,40 @@ static const char *peak_words(ps_peak b)
     return b == PS_PEAK_EFFORT ? "effort floor (peak |C S|)" : b == PS_PEAK_MT ? "Mt floor" : "Ms floor";
 }
 
+/* Closer than this (relative to the pole) an RHP zero sits on the pole. */
+#define ON_POLE_RTOL 1e-6
+
+bool ps_cancellation_movable(const ps_analysis *an, const ps_floors *fl, bool realised)
+{
+    if (realised || !fl->infinite)
+        return false;
+    const ps_root *z, *p;
+    return nearest_zero(an, &z, &p) <= ON_POLE_RTOL;
+}
+
 void ps_attribution_cause(const ps_attribution *a, const ps_analysis *an, const ps_requirements *q,
-                          const ps_floors *fl, char *buf, size_t n)
+                          const ps_floors *fl, bool realised, char *buf, size_t n)
 {
     text t = {buf, n, 0};
     buf[0] = '\0';
+    if (ps_cancellation_movable(an, fl, realised)) {
+        const ps_root *z, *p;
+        nearest_zero(an, &z, &p);
+        put(&t, "RHP zero ");
+        put_cplx(&t, z->v);
+        put(&t, " on the unstable pole ");
+        put_cplx(&t, p->v);
+        put(&t, ": the mode is hidden from every controller, so none stabilizes the plant; a zero or pole moved "
+                "off the other makes it stabilizable");
+        return;
+    }
     if (an->hidden_unstable) {
-        put(&t, "hidden unstable mode: no controller can reach or see it");
+        put(&t, "hidden unstable mode: no controller can reach or see it; the actuator or sensor must change so "
+                "that it can");
         return;
     }
     if (fl->infinite) {
-        const ps_root *z, *p;
-        nearest_zero(an, &z, &p);
-        if (z && p) {
-            put(&t, "RHP zero ");
-            put_cplx(&t, z->v);
-            put(&t, " coincides with the unstable pole ");
-            put_cplx(&t, p->v);
-            put(&t, ": no controller stabilizes the plant while they coincide");
-        } else
-            put(&t, "%s", fl->note[0] ? fl->note : "an infinite floor");
+        put(&t, "%s", fl->note[0] ? fl->note : "an infinite floor");
         return;
     }
     if (a->binding == PS_PEAK_NONE) {

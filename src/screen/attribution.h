@@ -65,8 +65,15 @@ double ps_peak_floor(const ps_floors *fl, ps_peak b);
 
 /* The cause in one sentence, built from the attribution: the factors that
  * lower the binding floor, largest first, each with the floor its
- * relaxation leaves. Names no factor the plant lacks. */
+ * relaxation leaves. Names no factor the plant lacks. realised: the plant
+ * was given in state space (a hidden mode is then one of the realisation,
+ * not a zero that could move). */
 void ps_attribution_cause(const ps_attribution *a, const ps_analysis *an, const ps_requirements *q,
-                          const ps_floors *fl, char *buf, size_t n);
+                          const ps_floors *fl, bool realised, char *buf, size_t n);
+
+/* A hidden unstable mode of a rational plant is an RHP zero on an RHP pole:
+ * moving either one makes the plant stabilizable (what the redesign targets
+ * then search). False for state-space plants and for any other infinity. */
+bool ps_cancellation_movable(const ps_analysis *an, const ps_floors *fl, bool realised);
 
 #endif

@@ -24,6 +24,7 @@
 struct ps_screen_ws {
     ps_limits_ws *lws;
     ps_analysis work;   /* the plant with one thing changed, for the targets */
+    ps_analysis base;   /* a plant whose zero sits on a pole, searched as a plant without hidden mode */
     ps_floors fl;
 };
 
@@ -547,7 +548,8 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     ps_peak binding = ps_peak_binding(s->share_ms, s->share_mt, s->share_effort);
     s->worst = ps_peak_name(binding);
     ps_attribution_compute(ws->lws, &ws->work, an, q, o->fl, binding, &s->attr);
-    ps_attribution_cause(&s->attr, an, q, o->fl, s->cause, sizeof s->cause);
+    bool realised = o->p->form == PS_FORM_SS;
+    ps_attribution_cause(&s->attr, an, q, o->fl, realised, s->cause, sizeof s->cause);
     /* An unstable plant given no bandwidth limit is judged only when a
      * bandwidth-free floor already fails it: with unlimited bandwidth the
      * Bode area costs no peak and the passing floors may all be 1. */
@@ -570,7 +572,13 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     /* The band target and curve use the plant's attenuation, or the -3 dB
      * level that defines the sensitivity bandwidth (S&P 2nd ed. sec. 2.4.5, from memory). */
     s->band_eps = q->wb > 0 ? q->eps : M_SQRT1_2;
-    if (an->hidden_unstable) {
+    if (ps_cancellation_movable(an, o->fl, realised)) {
+        /* The hidden mode is a zero on a pole: the targets search the
+         * plant with the two apart (the floors then say how far). */
+        memcpy(&ws->base, an, sizeof ws->base);
+        ws->base.hidden_unstable = false;
+        an = &ws->base;
+    } else if (an->hidden_unstable) {
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             s->target[k] = (ps_target){.state = PS_TARGET_NA, .limit = NAN, .now = NAN};
             snprintf(s->target[k].why, sizeof s->target[k].why,

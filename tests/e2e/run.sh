@@ -109,6 +109,52 @@ contains "explain shows the attribution table" "$tmp/out" "[without_rhp_zeros] w
 contains "explain of a family id lists its grid plants" "$tmp/out" "'glide-gap' is a family of 6 plants; explain one of them:"
 contains "explain of a family id lists its grid plants" "$tmp/out" "  glide-gap[gap=0.012]"
 "$ps" explain nosuch "$cf" >"$tmp/out" 2>"$tmp/err"; check "explain: unknown id" 2 $?
+
+# Claims that were once false (tests/data/e2e/claims.yaml says why each holds).
+claims="$src/tests/data/e2e/claims.yaml"
+"$ps" screen -o "$tmp/claims" --gate never "$claims" >"$tmp/out" 2>"$tmp/err"
+check "screen: unstable plants without a bandwidth limit are not judged (exit 3, gate never)" 3 $?
+"$py" - "$tmp/claims/claims.screen.json" "$tmp/claims/claims.screen.txt" <<'PY'
+import json, math, re, sys
+doc = json.load(open(sys.argv[1]))
+P = {p["id"]: p for p in doc["plants"]}
+assert doc["counts"]["per_verdict"]["needs-bandwidth"] == 2, doc["counts"]["per_verdict"]
+for pid in ("rod-no-bw", "fast-no-bw"):
+    assert P[pid]["verdict"] == "needs-bandwidth" and "no rolloff_start" in P[pid]["cause"], P[pid]["cause"]
+    assert "no unstable pole" not in P[pid]["cause"]
+# ranked apart: after every judged plant
+ranks = [p["verdict"] for p in sorted(doc["plants"], key=lambda p: p["rank"])]
+assert ranks[-2:] == ["needs-bandwidth"] * 2, ranks
+# time to double of an RHP pair: ln 2 / Re p (the envelope of the oscillation)
+ttd = P["wobble-pair"]["floors"]["time_to_double"]
+assert len(ttd) == 1 and ttd[0]["pole"] == 0.5 and ttd[0]["imag"] == 6.0, ttd
+assert abs(ttd[0]["seconds"] - math.log(2) / 0.5) < 1e-12, ttd
+t = P["wobble-pair"]["targets"]["unstable_pole"]
+scale = t["limit"] / t["now"]                  # every RHP pole scaled together
+m = re.search(r"time to double ([0-9.]+) (ms|s)\)", t["text"])
+got = float(m.group(1)) * (1e-3 if m.group(2) == "ms" else 1)
+want = math.log(2) / (0.5 * scale)
+assert abs(got - want) <= 5e-3 * want, (t["text"], want)  # printed to 3 digits
+# no floor limits the band edge of a stable delayed plant: the rule of thumb says so, marked
+b = P["slow-delay"]["targets"]["band_edge"]["text"]
+assert "no floor limits it" in b and "rule of thumb, not a law: crossover below 2 rad/s" in b, b
+# effort lever: 1/|G_s(2)| = |2 + 2| |2 + 5| / 1.5 (S&P 2nd ed. ch. 5, one RHP pole)
+e = P["effort-short"]
+assert e["worst"] == "effort" and abs(e["floors"]["effort"] - 4 * 7 / 1.5) < 1e-9 * 18.7, e["floors"]["effort"]
+te = e["targets"]["effort_allowed"]
+assert te["state"] == "found" and te["limit"] == e["floors"]["effort"] and te["now"] == 1, te
+assert te["text"].startswith("allowed peak |C S| must reach 18.67"), te["text"]
+# a zero on a pole: not stabilizable, and the zero target says how far it must move
+c = P["cancel-exact"]
+assert c["verdict"] == "not-stabilizable" and "moved off the other makes it stabilizable" in c["cause"], c["cause"]
+assert c["targets"]["rhp_zero"]["state"] == "found" and c["targets"]["rhp_zero"]["limit"] > 3, c["targets"]
+# one verb per direction in every target line, passing or failing
+text = open(sys.argv[2]).read()
+for line in re.findall(r"^    - (.*)$", text, re.M):
+    assert not re.search(r"at most|at least|promise|largest passing|smallest passing", line), line
+assert "e+03 ms" not in text and "an unstable poles" not in text
+PY
+check "claims: needs-bandwidth, time to double, rules of thumb, effort lever, movable cancellation" 0 $?
 "$ps" screen -o "$tmp/scr2" --gate never "$cf" >/dev/null 2>&1
 for ext in txt csv json md html; do
     cmp -s "$tmp/scr/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?

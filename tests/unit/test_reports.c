@@ -441,8 +441,8 @@ Test(reports, html_escapes_and_has_one_plant_row_per_plant)
     cr_assert_not_null(strstr(doc, "not stabilizable (off-scale)"));
     cr_assert_not_null(strstr(doc, "input error, no bar: bad-row"));
     cr_assert_not_null(strstr(doc, "Symmetric-log axes"));
-    cr_assert_not_null(strstr(doc, "promise-able 8.3 rad/s"));
-    cr_assert_not_null(strstr(doc, "promise-able 3.77 rad/s"));
+    cr_assert_not_null(strstr(doc, "widest band edge 8.3 rad/s"));
+    cr_assert_not_null(strstr(doc, "widest band edge 3.77 rad/s"));
     /* printf's words for non-finite numbers never reach the page. */
     cr_assert_not(has_word(doc, "nan"));
     cr_assert_not(has_word(doc, "inf"));
