@@ -26,7 +26,7 @@ enum {
     EXIT_CLEAN = 0,      /* every entry read (and, for screening, every plant passed) */
     EXIT_GATE = 1,       /* screening: the gate tripped (by default: some plant needs redesign or is not stabilizable) */
     EXIT_USAGE = 2,      /* bad command line */
-    EXIT_ENTRIES = 3,    /* some entries could not be read; the rest were processed */
+    EXIT_ENTRIES = 3,    /* some entries could not be read or (screen) judged; the rest were processed */
     EXIT_IO = 4          /* a catalog could not be opened or parsed, or output failed */
 };
 
@@ -45,7 +45,8 @@ static const char usage_text[] =
     "  screen CATALOG...   rank every plant, give verdicts, causes and redesign targets;\n"
     "                      print the ranked table and write the reports\n"
     "  explain ID CATALOG...  every number behind one plant's verdict, with formula,\n"
-    "                      inputs, source and assumption\n"
+    "                      inputs, source and assumption, and what raises the binding\n"
+    "                      floor; a family id lists the family's plants\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
     "                      gain, relative degree, delay, warnings and floors\n"
     "  read CATALOG...     read every entry and discard it; print the count (the\n"
@@ -76,7 +77,8 @@ static const char usage_text[] =
     "\n"
     "Catalogs are YAML (.yaml, .yml) or CSV (.csv). Exit codes: 0 success (screen:\n"
     "the gate passed), 1 the gate tripped, 2 usage error, 3 some entries rejected\n"
-    "(the rest processed), 4 a catalog, a report or the output failed.\n";
+    "or (screen) some plants not judged: an unstable plant needs rolloff_start (the\n"
+    "rest processed), 4 a catalog, a report or the output failed.\n";
 
 typedef struct cli_ctx {
     ps_listing *listing;
