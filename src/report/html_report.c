@@ -221,7 +221,7 @@ static void ranking(FILE *f, const ps_run *r)
         return;
     }
     fprintf(f, "<p>Worst first: not stabilizable, then by severity (the largest share of the allowed log-peak), "
-               "input errors last in catalog order.</p>\n");
+               "then the plants not judged for want of a bandwidth limit, input errors last, each in catalog order.</p>\n");
     fprintf(f, "<table class=\"ranking\">\n<thead><tr><th>Rank</th><th>Plant</th><th>Verdict</th><th>Severity</th>"
                "<th>Worst</th><th>Ms floor</th><th>Ms allowed</th><th>Mt floor</th><th>Mt allowed</th>"
                "<th>Limiting</th><th>Cause</th><th>Source</th></tr></thead>\n<tbody>\n");

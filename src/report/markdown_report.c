@@ -93,7 +93,7 @@ static void ranked_table(FILE *f, const ps_run *r)
         return;
     }
     fprintf(f, "Worst first: not stabilizable, then by severity (largest share of the allowed log-peak), "
-               "input errors last.\n\n");
+               "then the plants not judged for want of a bandwidth limit, input errors last.\n\n");
     fprintf(f, "| Rank | Plant | Verdict | Severity | Worst | Ms floor | Ms allowed | Mt floor | Mt allowed | Cause |\n");
     fprintf(f, "|---:|---|---|---:|---|---:|---:|---:|---:|---|\n");
     for (size_t i = 0; i < r->n_rows; i++) {

@@ -223,7 +223,7 @@ ps_verdict ps_run_verdict(const ps_run *r, size_t i);
 /* A spill file could not be written or read: the reports are incomplete. */
 bool ps_run_failed(const ps_run *r);
 /* Rank: not stabilizable first, then severity descending, ties by catalog
- * order; input errors last in catalog order. Deterministic. */
+ * order; then needs-bandwidth, then input errors, each in catalog order. Deterministic. */
 void ps_run_rank(ps_run *r);
 
 #endif
