@@ -358,8 +358,9 @@ static void band_floors(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_
 /* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >=
  * ||S|| - 1 (S + T = 1). A roll-off requirement |L| <= delta (w_h/w)^(1+k)
  * makes the loop strictly proper, so S -> 1 and ||S|| >= 1; when that is
- * the only source of the 1, the note says so. */
-static void overall(bool rolloff, ps_floors *out)
+ * the only source of the 1, the note says so. limiting names what sets ms;
+ * a plant no controller stabilizes has none of the floors as its limit. */
+static void overall(const ps_analysis *an, bool rolloff, ps_floors *out)
 {
     double s_only = out->ms_interpolation, t_only = out->mt_interpolation;
     const char *s_src = "interpolation";
@@ -378,7 +379,12 @@ static void overall(bool rolloff, ps_floors *out)
         s_only = 1.0;
     out->ms = fmax(s_only, t_only - 1.0);
     out->mt = fmax(t_only, s_only - 1.0);
-    out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
+    if (an->hidden_unstable)
+        out->limiting = "hidden-mode";
+    else if (out->infinite)
+        out->limiting = "cancellation";
+    else
+        out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
 
     /* The plant half's note, then this half's sentence (the same whatever
      * was applied to out before). */
@@ -401,7 +407,7 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
     if (rolloff && req->delta > 0)
         out->mt_poisson = out->infinite ? INFINITY
                                         : ps_poisson_t_floor(z, nz, p, np, theta, req->delta / (1 - req->delta), req->wh);
-    overall(rolloff, out);
+    overall(an, rolloff, out);
 
     /* Crossover window, rules of thumb (S&P 2nd ed. ch. 5): w_c > 2 p for a
      * real RHP pole (|p| for complex), w_c < z/2 for a real RHP zero (|z|
@@ -424,7 +430,7 @@ void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requ
     ps_cplx p[NP], z[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
     band_floors(ws, z, nz, p, np, req, out);
-    overall(req && req->wh > 0, out);
+    overall(an, req && req->wh > 0, out);
 }
 
 void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)

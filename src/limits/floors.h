@@ -28,7 +28,9 @@ typedef struct ps_floors {
     double ms, mt;           /* overall, with ||S|| >= ||T|| - 1 and the converse; a roll-off requirement
                                 adds ||S|| >= 1 (the loop is then strictly proper) */
     const char *limiting;    /* which result sets ms: "interpolation", "band", "poisson", "complementary",
-                                "none" (ms <= 1) */
+                                "none" (ms <= 1); or why no controller stabilizes: "hidden-mode" (a hidden
+                                unstable mode), "cancellation" (an RHP zero on an RHP pole, not flagged as
+                                a hidden mode: e.g. a search moved one onto the other) */
     bool infinite;           /* an exact RHP cancellation: no controller stabilizes */
     double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
     bool window_open;

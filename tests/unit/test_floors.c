@@ -199,12 +199,58 @@ Test(floors, overall_with_zero_floors_keeps_s_plus_t_equal_one)
     cr_assert_str_eq(fl.limiting, "poisson");
 }
 
+/* No controller stabilizes a plant with a hidden unstable mode: limiting
+ * names that, not a floor. Shared RHP root of a rational plant (the roots
+ * module calls it a hidden mode) and a state-space mode the input does not
+ * reach (PBH). */
 Test(floors, exact_cancellation_is_infinite)
 {
     run((ps_cplx[]){{3.3, 0}}, 1, (ps_cplx[]){{3.3, 0}, {-1, 0}}, 2, 1.0, 0.0);
     cr_assert(an.hidden_unstable);
     cr_assert(fl.infinite);
     cr_assert(isinf(fl.ms));
+    cr_assert_str_eq(fl.limiting, "hidden-mode");
+}
+
+Test(floors, hidden_state_space_mode_is_named)
+{
+    /* unstable state 2.3 not driven by the input (PBH), with a band and a roll-off requirement */
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "ss");
+    double a[4] = {2.3, 0.0, 0.0, -1.1};
+    memcpy(p.a, a, sizeof a);
+    p.b[0] = 0.0;
+    p.b[1] = 1.0;
+    p.c[0] = 1.0;
+    p.c[1] = 1.0;
+    p.a_rows = p.a_cols = p.n_b = p.n_c = 2;
+    p.present = (1u << PS_F_ID) | (1u << PS_F_A) | (1u << PS_F_B) | (1u << PS_F_C);
+    ps_diag d = {0};
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(rws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert(an.hidden_unstable);
+    ps_requirements q = p.req;
+    q.wb = 0.4;
+    q.eps = 0.2;
+    q.wh = 30.0;
+    ps_floors_compute(lws, &an, &q, &fl);
+    cr_assert_str_eq(fl.limiting, "hidden-mode");
+}
+
+/* An RHP pole moved exactly onto an RHP zero, as the redesign search does
+ * when it scales the poles: the analysis has no hidden-mode flag, the
+ * floors are infinite, and limiting names the cancellation. */
+Test(floors, exact_cancellation_without_hidden_flag_is_named)
+{
+    run((ps_cplx[]){{5.1, 0}}, 1, (ps_cplx[]){{3.4, 0}, {-2, 0}}, 2, 1.0, 0.0);
+    cr_assert_not(an.hidden_unstable);
+    cr_assert_str_eq(fl.limiting, "interpolation");
+    for (size_t i = 0; i < an.n_poles; i++)
+        if (an.poles[i].region == PS_RHP)
+            an.poles[i].v = an.zeros[0].v;
+    ps_floors_compute(lws, &an, &p.req, &fl);
+    cr_assert(fl.infinite);
+    cr_assert_str_eq(fl.limiting, "cancellation");
 }
 
 /* Available-bandwidth form (Stein 2003): one real RHP pole p against W_a with
