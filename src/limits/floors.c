@@ -194,6 +194,43 @@ static bool parity_interlacing(const ps_analysis *an)
     return true;
 }
 
+/* Does the plant alone force S = 1 somewhere on the closed right half plane
+ * or at infinity, so that ||S|| >= 1 for every stabilizing controller
+ * (interpolation constraints, S&P 2nd ed. 2005, ch. 5)? S(z) = 1 at an RHP
+ * zero (maximum modulus) and at a zero on the imaginary axis; S -> 1 at high
+ * frequency when the plant is strictly proper; with a delay and a biproper
+ * loop, sup |S| >= 1/(1 - |L(inf)|) >= 1 (a stable neutral loop has
+ * |L(inf)| < 1). Otherwise (biproper, no delay, every zero in the LHP) a high
+ * gain C = k sends the closed-loop poles to the plant's zeros and ||S|| to 0. */
+static bool s_forced_one(const ps_analysis *an, size_t nz)
+{
+    if (nz > 0 || an->rel_degree >= 1 || an->delay > 0)
+        return true;
+    for (size_t j = 0; j < an->n_zeros; j++)
+        if (an->zeros[j].region == PS_AXIS)
+            return true;
+    return false;
+}
+
+/* A fallback note: what was not computed, why (the diagnostic, cut to width)
+ * and what is shown instead. Without room (the requirement half may append
+ * ROLLOFF_NOTE) the why is left out, so that the appended sentence fits. */
+#define FALLBACK_TAIL ": single-point products shown"
+static void note_fallback(ps_floors *out, const char *what, const char *why, int width, bool room)
+{
+    if (room)
+        snprintf(out->note, sizeof out->note, "%s (%.*s)" FALLBACK_TAIL, what, width, why);
+    else
+        snprintf(out->note, sizeof out->note, "%s" FALLBACK_TAIL, what);
+}
+
+/* Appended to the note when Ms >= 1 comes from the roll-off requirement
+ * alone (see overall()). */
+#define ROLLOFF_NOTE "Ms >= 1 assumes the roll-off requirement: the loop is strictly proper, so S -> 1"
+#define LONGEST_PLANT_NOTE_WITHOUT_ROOM "repeated RHP roots, joint floor not computed" FALLBACK_TAIL
+_Static_assert(sizeof LONGEST_PLANT_NOTE_WITHOUT_ROOM - 1 + 2 + sizeof ROLLOFF_NOTE <= sizeof((ps_floors *)0)->note,
+               "the roll-off sentence fits after every plant note written without room");
+
 void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
 {
     ps_cplx p[NP], z[NP], w[NP];
@@ -204,7 +241,15 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
     out->cond = 1.0;
     ps_diag d = {0};
 
-    double ms_single = ps_ms_single(z, nz, p, np), mt_single = ps_mt_single(z, nz, p, np, theta);
+    /* The value 1 is a floor only where S or T is forced to 1 (S&P 2nd ed.
+     * 2005, ch. 5): T(p) = 1 at an RHP pole and T(jw0) = 1 at a pole on the
+     * imaginary axis; for S see s_forced_one. Without such a point the plant
+     * forces nothing (a stable plant: C = 0 gives T = 0), and the floor is 0.
+     * ps_ms_single and ps_mt_single return 1 when there is no point, so they
+     * are used only with one. */
+    bool s_one = s_forced_one(an, nz), t_one = np > 0 || an->n_axis_poles > 0;
+    double ms_single = nz ? ps_ms_single(z, nz, p, np) : s_one ? 1.0 : 0.0;
+    double mt_single = np ? ps_mt_single(z, nz, p, np, theta) : t_one ? 1.0 : 0.0;
     out->infinite = isinf(ms_single) || isinf(mt_single);
     bool ok_points = distinct(p, np) && distinct(z, nz);
     if (out->infinite) {
@@ -214,8 +259,8 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
                  an->hidden_unstable ? "hidden unstable mode: no controller can stabilize this plant"
                                      : "an RHP zero coincides with an RHP pole");
     } else if (np == 0) {
-        out->ms_interpolation = ms_single; /* = 1: nothing to interpolate against */
-        out->mt_interpolation = 1.0;
+        out->ms_interpolation = ms_single; /* 1 or 0: nothing to interpolate against */
+        out->mt_interpolation = mt_single;
     } else if (!ok_points) {
         out->mt_route = PS_ROUTE_CONFLUENT;
         out->ms_route = theta > 0 ? PS_ROUTE_EQUAL_MT : nz > 0 ? PS_ROUTE_CONFLUENT : PS_ROUTE_NONE;
@@ -226,7 +271,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
         ps_status st = confluent(ws, AT_POLES_T, an, z, nz, p, np, &g, &c1, &d);
         if (st == PS_OK) {
             out->mt_interpolation = fmax(g, mt_single);
-            out->ms_interpolation = theta > 0 ? out->mt_interpolation : fmax(ms_single, 1.0);
+            out->ms_interpolation = theta > 0 ? out->mt_interpolation : ms_single;
             if (theta == 0 && nz > 0 && (st = confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &g, &c2, &d)) == PS_OK)
                 out->ms_interpolation = fmax(g, ms_single);
         }
@@ -236,8 +281,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
             out->ms_route = out->mt_route = PS_ROUTE_SINGLE;
             out->ms_interpolation = ms_single;
             out->mt_interpolation = mt_single;
-            snprintf(out->note, sizeof out->note,
-                     "repeated RHP roots, joint floor not computed (%.70s): single-point products shown", d.text);
+            note_fallback(out, "repeated RHP roots, joint floor not computed", d.text, 70, s_one);
         }
         out->cond = fmax(c1, c2);
     } else {
@@ -257,7 +301,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
                                                                                           : PS_ROUTE_CHEN;
         if (ps_pick_gamma(ws, p, w, np, &g, &cond, &d) == PS_OK) {
             out->mt_interpolation = fmax(g, mt_single);
-            out->ms_interpolation = theta > 0 ? out->mt_interpolation : fmax(ms_single, 1.0);
+            out->ms_interpolation = theta > 0 ? out->mt_interpolation : ms_single;
             if (theta == 0 && nz > 0 && np == 1)
                 /* One RHP pole: Chen's joint floor equals the Pick value at
                  * the pole (his equality Ms_min = Mt_min without delay), so
@@ -275,8 +319,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
             out->ms_route = out->mt_route = PS_ROUTE_SINGLE;
             out->ms_interpolation = ms_single;
             out->mt_interpolation = mt_single;
-            snprintf(out->note, sizeof out->note, "joint floor not computed (%.100s): single-point products shown",
-                     d.text);
+            note_fallback(out, "joint floor not computed", d.text, 100, s_one);
         }
         out->cond = cond;
     }
@@ -306,6 +349,7 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
      * gains the term -pi kappa / 2, kappa = lim s L(s); S&P 2nd ed. ch. 5). */
     out->parity_interlacing = parity_interlacing(an);
     out->bode_controller_rd = an->rel_degree >= 2 ? 0 : 2 - an->rel_degree;
+    out->note_plant = strlen(out->note);
 }
 
 /* The floors on ||S|| that the band edge moves: band-forced and Poisson. */
@@ -321,8 +365,12 @@ static void band_floors(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_
         out->ms_poisson = out->infinite ? INFINITY : ps_poisson_s_floor(z, nz, p, np, req->eps, req->wb);
 }
 
-/* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >= ||S|| - 1 (S + T = 1). */
-static void overall(ps_floors *out)
+/* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >=
+ * ||S|| - 1 (S + T = 1). A roll-off requirement |L| <= delta (w_h/w)^(1+k)
+ * makes the loop strictly proper, so S -> 1 and ||S|| >= 1; when that is
+ * the only source of the 1, the note says so. limiting names what sets ms;
+ * a plant no controller stabilizes has none of the floors as its limit. */
+static void overall(const ps_analysis *an, bool rolloff, ps_floors *out)
 {
     double s_only = out->ms_interpolation, t_only = out->mt_interpolation;
     const char *s_src = "interpolation";
@@ -336,9 +384,24 @@ static void overall(ps_floors *out)
     }
     if (out->mt_poisson > t_only)
         t_only = out->mt_poisson;
+    bool one_from_rolloff = rolloff && !(fmax(s_only, t_only - 1.0) >= 1.0);
+    if (rolloff && s_only < 1.0)
+        s_only = 1.0;
     out->ms = fmax(s_only, t_only - 1.0);
     out->mt = fmax(t_only, s_only - 1.0);
-    out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
+    if (an->hidden_unstable)
+        out->limiting = "hidden-mode";
+    else if (out->infinite)
+        out->limiting = "cancellation";
+    else
+        out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
+
+    /* The plant half's note, then this half's sentence (the same whatever
+     * was applied to out before). */
+    out->note[out->note_plant] = '\0';
+    if (one_from_rolloff)
+        snprintf(out->note + out->note_plant, sizeof out->note - out->note_plant, "%s" ROLLOFF_NOTE,
+                 out->note_plant ? "; " : "");
 }
 
 void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
@@ -354,7 +417,7 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
     if (rolloff && req->delta > 0)
         out->mt_poisson = out->infinite ? INFINITY
                                         : ps_poisson_t_floor(z, nz, p, np, theta, req->delta / (1 - req->delta), req->wh);
-    overall(out);
+    overall(an, rolloff, out);
 
     /* Crossover window, rules of thumb (S&P 2nd ed. ch. 5): w_c > 2 p for a
      * real RHP pole (|p| for complex), w_c < z/2 for a real RHP zero (|z|
@@ -377,7 +440,7 @@ void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requ
     ps_cplx p[NP], z[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
     band_floors(ws, z, nz, p, np, req, out);
-    overall(out);
+    overall(an, req && req->wh > 0, out);
 }
 
 void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)

@@ -27,14 +27,22 @@ typedef enum ps_route {
 
 typedef struct ps_floors {
     double bode_area;        /* pi * sum Re p over RHP poles */
-    double ms_interpolation; /* tight joint floor on ||S|| (Chen; with delay the Pick value) */
-    double mt_interpolation; /* tight floor on ||T|| (Pick with delay) */
+    double ms_interpolation; /* tight joint floor on ||S|| (Chen; with delay the Pick value); 1 when S is
+                                forced to 1 only at an axis zero or at infinity (strictly proper or
+                                delayed); 0 when nothing forces it (biproper, no delay, no RHP or axis zero) */
+    double mt_interpolation; /* tight floor on ||T|| (Pick with delay); 1 for an axis pole alone; 0 with no
+                                RHP or axis pole (C = 0 gives T = 0) */
     double effort;           /* floor on ||C S|| needed to stabilize (Pick, points p, values e^{p theta}/G_s(p)) */
     double ms_band;          /* band-forced floor on [wb, wh]; NAN when no roll-off start is given */
-    double ms_poisson;       /* Poisson floor at the RHP zeros; NAN without a band requirement */
-    double mt_poisson;       /* Poisson floor at the RHP poles; NAN without roll-off or with delta = 0 */
-    double ms, mt;           /* overall, with ||S|| >= ||T|| - 1 and the converse */
-    const char *limiting;    /* which result sets ms: "interpolation", "band", "poisson", "complementary", "none" */
+    double ms_poisson;       /* Poisson floor at the RHP zeros (0 without one); NAN without a band requirement */
+    double mt_poisson;       /* Poisson floor at the RHP poles (0 without one); NAN without roll-off or with
+                                delta = 0 */
+    double ms, mt;           /* overall, with ||S|| >= ||T|| - 1 and the converse; a roll-off requirement
+                                adds ||S|| >= 1 (the loop is then strictly proper) */
+    const char *limiting;    /* which result sets ms: "interpolation", "band", "poisson", "complementary",
+                                "none" (ms <= 1); or why no controller stabilizes: "hidden-mode" (a hidden
+                                unstable mode), "cancellation" (an RHP zero on an RHP pole, not flagged as
+                                a hidden mode: e.g. a search moved one onto the other) */
     bool infinite;           /* an exact RHP cancellation: no controller stabilizes */
     double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
     bool window_open;
@@ -45,7 +53,8 @@ typedef struct ps_floors {
     int bode_controller_rd;  /* smallest controller relative degree for which the loop has relative degree
                                 >= 2, so the Bode area floor holds with no correction term */
     ps_route ms_route, mt_route; /* how ms_interpolation and mt_interpolation were computed */
-    char note[160];          /* a fallback taken, or why a value is missing */
+    char note[160];          /* a fallback taken, why a value is missing, or an assumption a value rests on */
+    size_t note_plant;       /* length of the plant half's note; the requirement half writes after it */
 } ps_floors;
 
 /* Compute the floors from an analysed plant and its requirements (req may
@@ -56,7 +65,8 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
 /* The two halves of ps_floors_compute. ps_floors_plant fills what depends
  * on the plant alone (Bode area, interpolation, effort, structure);
  * ps_floors_apply then sets, from out's plant half, what the requirements
- * add (band and Poisson floors, overall Ms and Mt, crossover window). A
+ * add (band and Poisson floors, overall Ms and Mt, crossover window, and the
+ * note's sentence when Ms >= 1 rests on the roll-off requirement alone). A
  * search that moves only a requirement computes the plant half once and
  * applies each candidate to a copy of it: the result is the same, bit for
  * bit, as a full ps_floors_compute. */
@@ -65,8 +75,9 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
 
 /* Only the band edge (wb, eps) moved since out was last applied with the
  * same plant and otherwise the same requirements: recomputes the band-forced
- * and Poisson Ms floors and the overall Ms and Mt, and keeps the rest (the
- * Poisson Mt floor and the crossover window do not depend on the band).
+ * and Poisson Ms floors, the overall Ms and Mt and the note's roll-off
+ * sentence, and keeps the rest (the Poisson Mt floor and the crossover
+ * window do not depend on the band).
  * Equal, bit for bit, to ps_floors_apply under those conditions. */
 void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
 

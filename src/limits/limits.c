@@ -321,7 +321,9 @@ static double band_angle(ps_cplx s, double wb)
 
 double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb)
 {
-    double best = 1.0;
+    /* Each zero's value is at least 1 (b >= 1, eps < 1); with no zero there
+     * is no Poisson constraint, and 0 says so. */
+    double best = 0.0;
     for (size_t j = 0; j < nz; j++) {
         if (z[j].im < 0)
             continue; /* one bound per complex pair */
@@ -337,7 +339,7 @@ double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t 
 {
     /* Reported as computed, below 1 too (eps_t > 1 when delta > 0.5), like
      * the band floor: a value below 1 is not binding. */
-    double best = np ? -INFINITY : 1.0;
+    double best = np ? -INFINITY : 0.0;
     for (size_t i = 0; i < np; i++) {
         if (p[i].im < 0)
             continue;

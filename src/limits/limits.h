@@ -71,11 +71,12 @@ ps_status ps_pick_confluent(ps_limits_ws *ws, const ps_cplx *s, const unsigned *
  * S at the RHP zeros z (one per real zero or complex pair) with |S| <= eps on
  * [0, wb]: Theta = atan((wb - y)/x) + atan((wb + y)/x), and
  *   sup_{w >= wb} |S| >= (1/eps)^{Theta/(pi-Theta)} * |B_p(z)^-1|^{pi/(pi-Theta)};
- * the largest over the zeros (1 when there is no RHP zero).
+ * the largest over the zeros (0 when there is no RHP zero: nothing to bound).
  * T at the RHP poles p with delay theta and |T| <= eps_t beyond wh:
  *   sup_{w <= wh} |T| >= (1/eps_t)^{(pi-Theta)/Theta} * (|B_z(p)^-1| e^{x theta})^{pi/Theta},
  * Theta = Theta(p, wh); the largest over the poles, as computed (below 1 when
- * eps_t > 1: not binding); 1 when there is no RHP pole. */
+ * eps_t > 1: not binding); 0 when there is no RHP pole (nothing to bound:
+ * C = 0 gives T = 0 for a stable plant). */
 double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb);
 double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
                           double eps_t, double wh);

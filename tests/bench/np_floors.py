@@ -500,13 +500,22 @@ def floors(bt, R):
     g, gok, cond = pick_gamma(p, pmk, w, npc)
     ch, chok = chen(z, nzc, p, npc)
 
+    # The value 1 only where S or T is forced to 1 (S&P 2nd ed. 2005, ch. 5; the
+    # tool's law, stated here again): T = 1 at an RHP or axis pole; S = 1 at an
+    # RHP or axis zero, S -> 1 at infinity for a strictly proper or delayed
+    # plant. Elsewhere 0: C = 0 gives T = 0 for a stable plant, and a biproper
+    # delay-free plant with LHP zeros has ||S|| -> 0 under a high gain.
     has_p = npc > 0
-    mt_i = np.where(has_p, np.maximum(g, mt_single), 1.0)
-    ms_i = np.where(theta > 0, mt_i, 1.0)
+    axis_p = (R.pm & (np.abs(R.P.real) <= tolp)).any(axis=1)
+    axis_z = (R.zm & (np.abs(R.Z.real) <= tolz)).any(axis=1)
+    rel_deg = R.pm.sum(axis=1) - R.zm.sum(axis=1)
+    s_base = np.where((nzc > 0) | (rel_deg >= 1) | (theta > 0) | axis_z, 1.0, 0.0)
+    mt_i = np.where(has_p, np.maximum(g, mt_single), np.where(axis_p, 1.0, 0.0))
+    ms_i = np.where(has_p & (theta > 0), mt_i, s_base)
     use_chen = has_p & (theta == 0) & (nzc > 0)
     ms_i = np.where(use_chen, np.where(chok, np.maximum(ch, ms_single), ms_single), ms_i)
     fail = has_p & ~gok
-    ms_i = np.where(fail, ms_single, ms_i)
+    ms_i = np.where(fail, np.where(nzc > 0, ms_single, s_base), ms_i)
     mt_i = np.where(fail, mt_single, mt_i)
     ms_i = np.where(infinite, np.inf, ms_i)
     mt_i = np.where(infinite, np.inf, mt_i)
@@ -539,18 +548,19 @@ def floors(bt, R):
         # Poisson S at each RHP zero (one per pair)
         thz = band_angle(z, np.where(band, wb, 0.0))
         ps = (1 / epsx[:, None]) ** (thz / (np.pi - thz)) * bz ** (np.pi / (np.pi - thz))
-        ps = np.where(zmk & (z.imag >= 0), ps, 1.0).max(axis=1, initial=1.0)
+        ps = np.where(zmk & (z.imag >= 0), ps, 0.0).max(axis=1, initial=0.0)  # no RHP zero: 0
         f["ms_poisson"] = np.where(band, np.where(infinite, np.inf, ps), np.nan)
         # Poisson T at each RHP pole (one per pair), |T| <= delta/(1-delta) beyond wh
         epst = delta / (1 - delta)
         thp = band_angle(p, np.where(roll, wh, 1.0))
         pt = (1 / epst[:, None]) ** ((np.pi - thp) / thp) * bp_t ** (np.pi / thp)
         pt = np.where(pmk & (p.imag >= 0), pt, -np.inf).max(axis=1, initial=-np.inf)
-        pt = np.where(has_p, pt, 1.0)
+        pt = np.where(has_p, pt, 0.0)  # no RHP pole: 0
         f["mt_poisson"] = np.where(roll & (delta > 0), np.where(infinite, np.inf, pt), np.nan)
 
     # overall (S + T = 1); NaN (not applicable) never wins a comparison
     s_only = np.fmax(np.fmax(ms_i, f["ms_band"]), f["ms_poisson"])
+    s_only = np.where(roll, np.maximum(s_only, 1.0), s_only)  # roll-off: a strictly proper loop, S -> 1
     t_only = np.fmax(mt_i, f["mt_poisson"])
     f["ms"] = np.maximum(s_only, t_only - 1.0)
     f["mt"] = np.maximum(t_only, s_only - 1.0)

@@ -154,6 +154,10 @@ def is_rhp(r):
     return r.real > 1e-9 * max(1.0, abs(r))
 
 
+def is_axis(r):
+    return abs(r.real) <= 1e-9 * max(1.0, abs(r))
+
+
 def is_complex(r):
     return abs(r.imag) > 1e-9 * max(1.0, abs(r))
 
@@ -224,12 +228,22 @@ def chen_floor(z, p):
     return math.sqrt(1.0 + scipy.linalg.svdvals(m)[0] ** 2)
 
 
-def interpolation_floor(z, p, theta):
-    """Joint tight floor on ||S|| and ||T||: Chen without delay, Pick with delay."""
-    if theta > 0:
-        g = pick_gamma(p, pick_values_t(z, p, theta))
-        return 1.0 if g is None else g
-    return chen_floor(z, p)
+def interpolation_floors(plant, z, p, theta):
+    """(floor on ||S||, floor on ||T||). With an RHP pole and an RHP zero or a
+    delay, the joint tight floor of both: Chen without delay, Pick with delay.
+    Otherwise each is 1 where S or T is forced to 1 and 0 where nothing forces
+    it (S&P 2nd ed. 2005, ch. 5): T(p) = 1 at an RHP pole and at a pole on the
+    imaginary axis; S = 1 at an RHP or axis zero, S -> 1 at infinity for a
+    strictly proper or delayed plant. A stable plant has C = 0 (T = 0); a
+    biproper delay-free plant with LHP zeros only has ||S|| -> 0 under a high
+    gain (same law as the tool's; this comment states it, the code is apart)."""
+    if len(p) and (theta > 0 or len(z)):
+        g = pick_gamma(p, pick_values_t(z, p, theta)) if theta > 0 else chen_floor(z, p)
+        return g, g
+    rel_degree = len(plant["poles"]) - len(plant["zeros"])
+    s_one = len(z) or rel_degree >= 1 or theta > 0 or any(is_axis(r) for r in plant["zeros"])
+    t_one = len(p) or any(is_axis(r) for r in plant["poles"])
+    return (1.0 if s_one else 0.0), (1.0 if t_one else 0.0)
 
 
 def rolloff_tail(wh, delta, k):
@@ -273,7 +287,7 @@ def ms_poisson(z, p, req):
     for zj in upper_half(z):
         th = weighted_length(zj, wb)
         vals.append((1 / eps) ** (th / (math.pi - th)) * blaschke_inv(zj, p) ** (math.pi / (math.pi - th)))
-    return max(vals, default=1.0)
+    return max(vals, default=0.0)  # no RHP zero: no Poisson constraint (0, no floor)
 
 
 def mt_poisson(z, p, theta, req):
@@ -288,7 +302,7 @@ def mt_poisson(z, p, theta, req):
         th = weighted_length(pi, wh)
         vals.append((1 / eps_t) ** ((math.pi - th) / th)
                     * (blaschke_inv(pi, z) * math.exp(pi.real * theta)) ** (math.pi / th))
-    return max(vals, default=1.0)
+    return max(vals, default=0.0)  # no RHP pole: no Poisson constraint (0, no floor)
 
 
 def stable_mirror_at(plant, s):
@@ -320,14 +334,16 @@ def window(z, p, theta, req):
     return {"crossover_min": lo, "crossover_max": hi, "open": hi is None or lo < hi}
 
 
-def overall(f):
-    """ms, mt with ||S|| >= ||T|| - 1 and the converse; the names that may set ms."""
+def overall(f, req):
+    """ms, mt with ||S|| >= ||T|| - 1 and the converse; the names that may set ms.
+    A roll-off requirement makes the loop strictly proper: S -> 1, so ||S|| >= 1."""
     s_direct = {"interpolation": f["ms_interpolation"], "band": f["ms_band"], "poisson": f["ms_poisson"]}
     t_direct = [f["mt_interpolation"], f["mt_poisson"]]
     s_vals = [v for v in s_direct.values() if v is not None]
     t_vals = [v for v in t_direct if v is not None]
     s_direct["complementary"] = max(t_vals) - 1
-    ms = max([v for v in s_direct.values() if v is not None] + [1.0])
+    rolloff = [1.0] if req["rolloff_start"] is not None else []
+    ms = max([v for v in s_direct.values() if v is not None] + rolloff)
     mt = max(t_vals + [v - 1 for v in s_vals])
     names = {k for k, v in s_direct.items() if v is not None and v > 1 + 1e-12 and close(v, ms)}
     return ms, mt, names or {"none"}
@@ -337,23 +353,26 @@ def oracle_floors(plant):
     p, z = split_rhp(plant)
     theta, req = plant["delay"], plant["req"]
     f = {"bode_area": bode_area(p)}
-    f["ms_interpolation"] = f["mt_interpolation"] = interpolation_floor(z, p, theta)
+    f["ms_interpolation"], f["mt_interpolation"] = interpolation_floors(plant, z, p, theta)
     f["ms_band"] = ms_band(f["bode_area"], req)
     f["ms_poisson"] = ms_poisson(z, p, req)
     f["mt_poisson"] = mt_poisson(z, p, theta, req)
     f["effort"] = effort_floor(plant, p)
-    f["ms"], f["mt"], f["limiting"] = overall(f)
+    f["ms"], f["mt"], f["limiting"] = overall(f, req)
     f["window"] = window(z, p, theta, req)
     self_check(plant["id"], z, p, theta, f)
     return f
 
 
 def self_check(pid, z, p, theta, f):
-    """Internal consistency of the oracle: joint >= single-point products, and
-    without delay Chen equals Pick at the poles with values 1/B_z(p)."""
-    j = f["ms_interpolation"]
-    if j < ms_single(z, p) * (1 - 1e-9) or j < mt_single(z, p, theta) * (1 - 1e-9):
-        raise AssertionError("%s: joint floor %r below a single-point product" % (pid, j))
+    """Internal consistency of the oracle: each floor >= its single-point
+    products (where there is a point), and without delay Chen equals Pick at
+    the poles with values 1/B_z(p)."""
+    if len(z) and f["ms_interpolation"] < ms_single(z, p) * (1 - 1e-9):
+        raise AssertionError("%s: Ms floor %r below a single-point product" % (pid, f["ms_interpolation"]))
+    if len(p) and f["mt_interpolation"] < mt_single(z, p, theta) * (1 - 1e-9):
+        raise AssertionError("%s: Mt floor %r below a single-point product" % (pid, f["mt_interpolation"]))
+    j = f["mt_interpolation"]
     if theta == 0 and len(p):
         g = pick_gamma(p, pick_values_t(z, p, 0.0))
         if not close(g, j):

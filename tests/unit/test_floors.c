@@ -103,22 +103,154 @@ Test(floors, effort_two_poles_not_below_single_values)
     cr_assert_float_eq(fl.bode_area, M_PI * 10.8, 1e-12);
 }
 
+/* A stable, minimum-phase, strictly proper plant: S -> 1 at high frequency,
+ * so ||S|| >= 1 for every proper controller; nothing forces T anywhere (C = 0
+ * gives T = 0), so the Mt floor is 0 (interpolation constraints, Skogestad &
+ * Postlethwaite, Multivariable Feedback Control, 2nd ed. 2005, ch. 5; the
+ * laws with controllers built are in test_laws). */
 Test(floors, benign_plant_is_not_binding)
 {
     run((ps_cplx[]){{-2.2, 0}}, 1, (ps_cplx[]){{-1.3, 0}, {-5.9, 0}}, 2, 3.3, 0.0);
+    cr_assert_float_eq(fl.ms_interpolation, 1.0, 0);
+    cr_assert_float_eq(fl.mt_interpolation, 0.0, 0);
     cr_assert_float_eq(fl.ms, 1.0, 0);
-    cr_assert_float_eq(fl.mt, 1.0, 0);
+    cr_assert_float_eq(fl.mt, 0.0, 0);
     cr_assert_float_eq(fl.effort, 0.0, 0);
     cr_assert_str_eq(fl.limiting, "none");
     cr_assert(fl.window_open);
+    cr_assert_str_eq(fl.note, "");
 }
 
+/* Where the value 1 is forced (S&P 2nd ed. 2005, ch. 5) and where it is not. */
+Test(floors, the_value_one_only_where_s_or_t_is_forced_to_one)
+{
+    /* integrator: T(j0) = 1 for every stabilizing controller */
+    run(NULL, 0, (ps_cplx[]){{0, 0}, {-2.9, 0}}, 2, 1.37, 0.0);
+    cr_assert_eq(an.n_axis_poles, 1);
+    cr_assert_float_eq(fl.mt_interpolation, 1.0, 0);
+    cr_assert_float_eq(fl.mt, 1.0, 0);
+    cr_assert_float_eq(fl.ms, 1.0, 0); /* strictly proper */
+    /* biproper, stable, zero at the origin: S(j0) = 1 */
+    run((ps_cplx[]){{0, 0}}, 1, (ps_cplx[]){{-0.83, 0}}, 1, 1.45, 0.0);
+    cr_assert_eq(an.rel_degree, 0);
+    cr_assert_float_eq(fl.ms_interpolation, 1.0, 0);
+    cr_assert_float_eq(fl.mt, 0.0, 0);
+    /* biproper, stable, RHP zero: S(z) = 1, maximum modulus */
+    run((ps_cplx[]){{2.7, 0}}, 1, (ps_cplx[]){{-1.3, 0}}, 1, -0.62, 0.0);
+    cr_assert_float_eq(fl.ms_interpolation, 1.0, 0);
+    cr_assert_float_eq(fl.mt, 0.0, 0);
+    /* biproper, stable, LHP zero, no delay: nothing forces either */
+    run((ps_cplx[]){{-2.1, 0}}, 1, (ps_cplx[]){{-0.6, 0}}, 1, 3.7, 0.0);
+    cr_assert_float_eq(fl.ms, 0.0, 0);
+    cr_assert_float_eq(fl.mt, 0.0, 0);
+    cr_assert_str_eq(fl.limiting, "none");
+    /* ... with a delay: sup |S| >= 1/(1 - |L(inf)|) >= 1 for a stable neutral loop */
+    run((ps_cplx[]){{-2.1, 0}}, 1, (ps_cplx[]){{-0.6, 0}}, 1, 3.7, 0.013);
+    cr_assert_float_eq(fl.ms_interpolation, 1.0, 0);
+    cr_assert_float_eq(fl.mt, 0.0, 0);
+    /* biproper, RHP pole, LHP zero: T(p) = 1 gives Mt 1; S is free (Ms 0 = Mt - 1) */
+    run((ps_cplx[]){{-1, 0}}, 1, (ps_cplx[]){{1, 0}}, 1, 1.0, 0.0);
+    cr_assert_float_eq(fl.ms_interpolation, 0.0, 0);
+    cr_assert_float_eq(fl.mt_interpolation, 1.0, 0);
+    cr_assert_float_eq(fl.ms, 0.0, 0);
+    cr_assert_float_eq(fl.mt, 1.0, 0);
+    /* ... with a delay e^{-0.03 s}: both floors e^{p theta} (Pick) */
+    run((ps_cplx[]){{-1, 0}}, 1, (ps_cplx[]){{1, 0}}, 1, 1.0, 0.03);
+    cr_assert_float_eq(fl.ms, exp(0.03), 1e-12);
+    cr_assert_float_eq(fl.mt, exp(0.03), 1e-12);
+}
+
+/* The roll-off requirement |L| <= delta (w_h/w)^(1+k) beyond w_h makes the
+ * loop strictly proper, so S -> 1 and ||S|| >= 1; for a biproper plant that
+ * is the only source of the 1, and the note says so. The plant alone: Ms 0. */
+Test(floors, rolloff_requirement_gives_ms_one_to_a_biproper_plant)
+{
+    run((ps_cplx[]){{-1, 0}}, 1, (ps_cplx[]){{1, 0}}, 1, 1.0, 0.0);
+    ps_requirements q = p.req;
+    q.wh = 47.3;
+    ps_floors_compute(lws, &an, &q, &fl);
+    cr_assert_float_eq(fl.ms_interpolation, 0.0, 0);
+    cr_assert_float_eq(fl.ms, 1.0, 0);
+    cr_assert_float_eq(fl.mt, 1.0, 0);
+    cr_assert_str_eq(fl.limiting, "none");
+    cr_assert(strstr(fl.note, "roll-off requirement") != NULL, "note: %s", fl.note);
+    /* a strictly proper plant has the 1 of its own: no such sentence */
+    run(NULL, 0, (ps_cplx[]){{1, 0}, {-4.4, 0}}, 2, 1.0, 0.0);
+    ps_floors_compute(lws, &an, &q, &fl);
+    cr_assert_float_eq(fl.ms, 1.0, 0);
+    cr_assert_str_eq(fl.note, "");
+}
+
+/* The plant alone fixes the Ms floor at 1 for a strictly proper plant
+ * whatever its other roots, and overall keeps Ms >= Mt - 1 and Mt >= Ms - 1
+ * (S + T = 1). A stable plant with an RHP zero and a band: the Poisson Ms
+ * floor > 1 sets Mt = Ms - 1 (its own Mt floors are 0). */
+Test(floors, overall_with_zero_floors_keeps_s_plus_t_equal_one)
+{
+    run((ps_cplx[]){{2.9, 0}}, 1, (ps_cplx[]){{-1.1, 0}, {-4.7, 0}}, 2, -1.0, 0.0);
+    ps_requirements q = p.req;
+    q.wb = 0.8;
+    q.eps = 0.3;
+    ps_floors_compute(lws, &an, &q, &fl);
+    cr_assert_float_eq(fl.mt_interpolation, 0.0, 0);
+    cr_assert_gt(fl.ms_poisson, 1.0);
+    cr_assert_float_eq(fl.ms, fl.ms_poisson, 0);
+    cr_assert_float_eq(fl.mt, fl.ms_poisson - 1.0, 0);
+    cr_assert_str_eq(fl.limiting, "poisson");
+}
+
+/* No controller stabilizes a plant with a hidden unstable mode: limiting
+ * names that, not a floor. Shared RHP root of a rational plant (the roots
+ * module calls it a hidden mode) and a state-space mode the input does not
+ * reach (PBH). */
 Test(floors, exact_cancellation_is_infinite)
 {
     run((ps_cplx[]){{3.3, 0}}, 1, (ps_cplx[]){{3.3, 0}, {-1, 0}}, 2, 1.0, 0.0);
     cr_assert(an.hidden_unstable);
     cr_assert(fl.infinite);
     cr_assert(isinf(fl.ms));
+    cr_assert_str_eq(fl.limiting, "hidden-mode");
+}
+
+Test(floors, hidden_state_space_mode_is_named)
+{
+    /* unstable state 2.3 not driven by the input (PBH), with a band and a roll-off requirement */
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "ss");
+    double a[4] = {2.3, 0.0, 0.0, -1.1};
+    memcpy(p.a, a, sizeof a);
+    p.b[0] = 0.0;
+    p.b[1] = 1.0;
+    p.c[0] = 1.0;
+    p.c[1] = 1.0;
+    p.a_rows = p.a_cols = p.n_b = p.n_c = 2;
+    p.present = (1u << PS_F_ID) | (1u << PS_F_A) | (1u << PS_F_B) | (1u << PS_F_C);
+    ps_diag d = {0};
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(rws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert(an.hidden_unstable);
+    ps_requirements q = p.req;
+    q.wb = 0.4;
+    q.eps = 0.2;
+    q.wh = 30.0;
+    ps_floors_compute(lws, &an, &q, &fl);
+    cr_assert_str_eq(fl.limiting, "hidden-mode");
+}
+
+/* An RHP pole moved exactly onto an RHP zero, as the redesign search does
+ * when it scales the poles: the analysis has no hidden-mode flag, the
+ * floors are infinite, and limiting names the cancellation. */
+Test(floors, exact_cancellation_without_hidden_flag_is_named)
+{
+    run((ps_cplx[]){{5.1, 0}}, 1, (ps_cplx[]){{3.4, 0}, {-2, 0}}, 2, 1.0, 0.0);
+    cr_assert_not(an.hidden_unstable);
+    cr_assert_str_eq(fl.limiting, "interpolation");
+    for (size_t i = 0; i < an.n_poles; i++)
+        if (an.poles[i].region == PS_RHP)
+            an.poles[i].v = an.zeros[0].v;
+    ps_floors_compute(lws, &an, &p.req, &fl);
+    cr_assert(fl.infinite);
+    cr_assert_str_eq(fl.limiting, "cancellation");
 }
 
 /* Available-bandwidth form (Stein 2003): one real RHP pole p against W_a with
@@ -305,10 +437,11 @@ static void same_floors(const ps_floors *a_fl, const ps_floors *f_fl, const ps_r
 /* ps_floors_plant once, then ps_floors_apply on one copy for a run of
  * different requirements, gives what a full ps_floors_compute gives for each
  * (the searches rely on it). Applying several requirements in turn to the
- * same copy catches a requirement field the apply step leaves stale. */
-Test(floors, plant_half_then_requirements_equals_full_compute)
+ * same copy catches a requirement field the apply step leaves stale. Two
+ * plants: one with delay, and a biproper one whose Ms floor of 1 comes from
+ * the roll-off requirement alone (the note then changes with it). */
+static void check_halves(void)
 {
-    run((ps_cplx[]){{19, 0}}, 1, (ps_cplx[]){{3.1, 0}, {1.2, 2.5}, {1.2, -2.5}, {-9, 0}}, 4, 2.0, 0.004);
     ps_floors half, applied, full;
     ps_floors_plant(lws, &an, &half);
     applied = half;
@@ -332,13 +465,20 @@ Test(floors, plant_half_then_requirements_equals_full_compute)
     cr_assert_geq(checked, 30);
 }
 
+Test(floors, plant_half_then_requirements_equals_full_compute)
+{
+    run((ps_cplx[]){{19, 0}}, 1, (ps_cplx[]){{3.1, 0}, {1.2, 2.5}, {1.2, -2.5}, {-9, 0}}, 4, 2.0, 0.004);
+    check_halves();
+    run((ps_cplx[]){{-1.9, 0}}, 1, (ps_cplx[]){{0.35, 0}}, 1, 2.6, 0.0);
+    check_halves();
+}
+
 /* After one ps_floors_apply, moving only the band edge (wb, eps) with
  * ps_floors_apply_band gives the full floors for each band edge (the band
  * target and the Ms-vs-band curve rely on it); the Poisson Mt floor is
  * active (delta > 0) so a stale one would show. */
-Test(floors, band_only_update_equals_full_compute)
+static void check_band_only(void)
 {
-    run((ps_cplx[]){{19, 0}, {4.5, 0}}, 2, (ps_cplx[]){{3.1, 0}, {1.2, 2.5}, {1.2, -2.5}, {-9, 0}}, 4, 2.0, 0.0);
     const double wh[] = {12.0, 40.0, 400.0}, delta[] = {0.3, 0.7}, wb[] = {0.05, 0.3, 2.0, 5.5, 11.0};
     int checked = 0;
     for (size_t j = 0; j < 3; j++)
@@ -365,4 +505,15 @@ Test(floors, band_only_update_equals_full_compute)
             }
         }
     cr_assert_geq(checked, 25);
+}
+
+/* Two plants: RHP zeros beside the poles, and a biproper one with a slow RHP
+ * pole whose band floor crosses 1 as the band edge moves (the roll-off
+ * sentence in the note comes and goes). */
+Test(floors, band_only_update_equals_full_compute)
+{
+    run((ps_cplx[]){{19, 0}, {4.5, 0}}, 2, (ps_cplx[]){{3.1, 0}, {1.2, 2.5}, {1.2, -2.5}, {-9, 0}}, 4, 2.0, 0.0);
+    check_band_only();
+    run((ps_cplx[]){{-1.9, 0}}, 1, (ps_cplx[]){{0.35, 0}}, 1, 2.6, 0.0);
+    check_band_only();
 }

@@ -179,4 +179,9 @@ Test(limits, poisson_floors_limits_and_hand_value)
     double pair = ps_poisson_s_floor(zz, 2, NULL, 0, 0.3, 2.0);
     double th = atan((2.0 - 4) / 3) + atan((2.0 + 4) / 3);
     cr_assert_float_eq(pair, pow(1 / 0.3, th / (M_PI - th)), 1e-12);
+    /* The Poisson integrals exist only at an RHP zero (for S) or pole (for T):
+     * without one there is nothing to bound, and 0 says so (a stable plant
+     * with C = 0 has T = 0; a biproper one can have ||S|| below 1). */
+    cr_assert_float_eq(ps_poisson_s_floor(NULL, 0, p, 1, 0.5, 1.0), 0.0, 0);
+    cr_assert_float_eq(ps_poisson_t_floor(z, 1, NULL, 0, 0.01, 0.5, 40.0), 0.0, 0);
 }

@@ -130,7 +130,7 @@ static void build_run(ps_run *r)
 
     s = add_screened(r, tricky_id, PS_VERDICT_UNSTABILIZABLE, INFINITY, INFINITY, INFINITY, 9);
     s->fl.infinite = true;
-    s->fl.limiting = "interpolation";
+    s->fl.limiting = "cancellation"; /* what ps_floors_compute names an exact cancellation */
     snprintf(s->cause, sizeof s->cause, "%s", tricky_cause);
     s->zeros[0] = (ps_cplx){62.64, 0}; /* the exact cancellation */
     ps_run_commit(r);
