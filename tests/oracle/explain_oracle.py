@@ -93,14 +93,14 @@ def forced_values(plant):
     interpolation between RHP poles and zeros (the floor's lower end):
       T = 1 at an RHP or imaginary-axis pole (L is infinite there), so ||T|| >= 1;
       S = 1 at an RHP or axis zero (L = 0 there), and S -> 1 at high frequency
-        for a strictly proper plant, a delay, or a roll-off requirement (each
-        makes the loop strictly proper), so ||S|| >= 1;
+        for a strictly proper plant or a delay, so ||S|| >= 1 (a roll-off
+        requirement forces the same, but it is a requirement: overall() adds
+        it to the overall Ms floor, not to the plant's interpolation floor);
       otherwise nothing is forced: 0 (C = 0 gives T = 0; a biproper,
         delay-free loop with a high gain drives ||S|| towards 0).
     Returns (s_forced, t_forced)."""
     t = 1.0 if any(not is_lhp(q) for q in plant["poles"]) else 0.0
-    s_at_infinity = (len(plant["poles"]) > len(plant["zeros"]) or plant["delay"] > 0
-                     or plant["req"]["rolloff_start"] is not NA)
+    s_at_infinity = len(plant["poles"]) > len(plant["zeros"]) or plant["delay"] > 0
     s = 1.0 if s_at_infinity or any(not is_lhp(z) for z in plant["zeros"]) else 0.0
     return s, t
 
@@ -127,11 +127,14 @@ def repeated(roots):
     return any(near(roots[i], roots[j]) for i in range(len(roots)) for j in range(i + 1, len(roots)))
 
 
-def overall(f):
+def overall(f, rolloff):
     """The printed formulas: Ms = max(Ms interpolation, band, Poisson,
     max(Mt interpolation, Mt Poisson) - 1), Mt the converse (S + T = 1).
-    No floor of 1 is added: where one holds it comes from forced_values."""
+    With a roll-off requirement the loop is strictly proper, S -> 1, so the
+    Ms floors count at least 1; any other 1 comes from forced_values."""
     s = [f[k] for k in ("ms_interpolation", "ms_band", "ms_poisson") if f[k] is not NA]
+    if rolloff:
+        s.append(1.0)
     t = [f[k] for k in ("mt_interpolation", "mt_poisson") if f[k] is not NA]
     return max(s + [v - 1 for v in t]), max(t + [v - 1 for v in s])
 
@@ -166,15 +169,24 @@ def compute_floors(plant):
         # zero the data are all 1 and so is the value); on ||S|| the same
         # value with a delay, Chen's value without, which needs an RHP zero:
         # S(p) = 0 alone bounds no norm.
-        joint_t = fo.interpolation_floor(z, p, theta) if len(p) else 0.0
+        joint_t = joint_floor(z, p, theta) if len(p) else 0.0
         joint_s = joint_t if theta > 0 else fo.chen_floor(z, p) if len(z) and len(p) else 0.0
         f["mt_interpolation"] = max(t_forced, joint_t)
         f["ms_interpolation"] = max(s_forced, joint_s)
         f["ms_poisson"] = fo.ms_poisson(z, p, req)
         f["mt_poisson"] = fo.mt_poisson(z, p, theta, req)
         f["effort"] = fo.effort_floor(plant, p)
-    f["ms"], f["mt"] = overall(f)
+    f["ms"], f["mt"] = overall(f, req["rolloff_start"] is not NA)
     return f
+
+
+def joint_floor(z, p, theta):
+    """Joint tight floor at the RHP poles: Chen without delay, Pick with delay
+    (floors_oracle's pieces; without an RHP zero and delay the data are all 1)."""
+    if theta > 0:
+        g = fo.pick_gamma(p, fo.pick_values_t(z, p, theta))
+        return 1.0 if g is None else g
+    return fo.chen_floor(z, p)
 
 
 def share_peak(floor, allowed):
