@@ -182,3 +182,61 @@ Test(family, yield_matches_the_normal_cdf)
     read_pendulum("0.14", "0.01", "4000", "7");
     cr_assert_neq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
 }
+
+/* ---- declared ranges ------------------------------------------------------------- */
+
+typedef struct range_case {
+    const char *param;    /* the parameter's mapping */
+    const char *after;    /* the error points just after this text */
+    const char *field, *words;
+} range_case;
+
+Test(family, range_errors_name_line_field_and_expectation)
+{
+    static const range_case cases[] = {
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.01, max: 0.002}", "max: ", "max",
+         "max 0.002 must be above min 0.01"},
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.006, max: 0.006}", "max: ", "max", "must be above min"},
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.0075}", "min: ", "min",
+         "nominal 0.006 is outside its range >= 0.0075"},
+        {"{nominal: 0.006, tolerance: {uniform: 0.003}, max: 0.005}", "max: ", "max",
+         "nominal 0.006 is outside its range <= 0.005"},
+        {"{nominal: 0.006, min: 0}", "min: ", "min", "has no tolerance"},
+        {"{nominal: 0.006, sweep: [0.004, 0.008], max: 0.01}", "max: ", "max", "has no tolerance"},
+        {"{nominal: 0.006, sweep: [-0.002, 0.008], tolerance: {normal: 0.001}, min: 0}", "sweep: ", "sweep",
+         "sweep value -0.002 is outside its range >= 0"},
+        /* [0.006, 0.00602] holds Phi(0.02/3) - 1/2 = 0.266 % of N(0.006, 0.003) (GSL's normal CDF) */
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.006, max: 0.00602}", "min: ", "min",
+         "the range [0.006, 0.00602] holds 0.266 % of its tolerance distribution"},
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: zero}", "min: ", "min", "min of 'gap': expected"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof *cases; i++) {
+        char text[512];
+        snprintf(text, sizeof text,
+                 "families:\n  - id: f\n    parameters:\n      gap: %s\n    poles: [\"-1/gap\"]\n    gain: 1\n",
+                 cases[i].param);
+        /* "      gap: " is 11 characters: the mapping opens at column 12 */
+        const char *at = strstr(cases[i].param, cases[i].after);
+        cr_assert_not_null(at);
+        size_t col = 12 + (size_t)(at - cases[i].param) + strlen(cases[i].after);
+        read_family(text, false);
+        cr_assert_eq(fam_status, PS_ERR_INPUT, "case %zu accepted: %s", i, cases[i].param);
+        cr_expect_eq(fam_diag.line, 4, "case %zu: line %zu", i, fam_diag.line);
+        cr_expect_eq(fam_diag.col, col, "case %zu: column %zu, expected %zu (%s)", i, fam_diag.col, col,
+                     fam_diag.text);
+        cr_expect_str_eq(fam_diag.field, cases[i].field, "case %zu: field", i);
+        cr_expect(strstr(fam_diag.text, cases[i].words) && strstr(fam_diag.text, "'gap'"), "case %zu: %s", i,
+                  fam_diag.text);
+    }
+    /* a range holding Phi(0.04) - 1/2 = 1.6 % passes the mass rule; a nominal on the range's end is accepted */
+    read_family("families:\n  - id: f\n    parameters:\n      gap: {nominal: 0.006, tolerance: {normal: 0.003}, "
+                "min: 0.006, max: 0.00612}\n    poles: [\"-1/gap\"]\n    gain: 1\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_float_eq(fam.param[0].range_mass, gsl_cdf_ugaussian_P(0.04) - 0.5, 1e-12);
+    read_family("families:\n  - id: f\n    parameters:\n      gap: {nominal: 0.006, tolerance: {uniform: 0.003}, "
+                "min: 0.006}\n    poles: [\"-1/gap\"]\n    gain: 1\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_float_eq(fam.param[0].range_mass, 0.5, 1e-15);
+}
