@@ -747,7 +747,7 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
         if (sev)
             snprintf(buf, sizeof buf, "severity 1");
         else
-            snprintf(buf, sizeof buf, "allowed %s %.3g", brief, allowed);
+            snprintf(buf, sizeof buf, "allowed %s %.4g", brief, allowed);
         svg_text(f, L + PW - 3, y - 4, "end", "small value", 0, buf);
     }
     /* The curve through the sweep points, broken where the value is missing;
@@ -864,7 +864,7 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
             fprintf(f, " It is drawn because no single floor lies above its allowed value at every failing point "
                        "that can be stabilized.");
     } else {
-        fprintf(f, " Dashed: the allowed %s (%.3g). The verdict weighs every floor (Ms, Mt, effort); ", brief, allowed);
+        fprintf(f, " Dashed: the allowed %s (%.4g). The verdict weighs every floor (Ms, Mt, effort); ", brief, allowed);
         if (found && b->binding == q)
             fprintf(f, "at the boundary the %s sets it, ", ps_quantity_words(q));
         else

@@ -213,7 +213,8 @@ contains "family: the plain plant still screened" "$tmp/out" "ok "
 contains "family: max below min, with its position" "$tmp/err" "bad-families.yaml:43:75: plant 'bad-range': parameter 'a': max 1 must be above min 2"
 contains "family: a range needs a tolerance" "$tmp/err" "bad-families.yaml:46:41: plant 'range-no-tol': parameter 'a': min and max bound the values drawn for a yield study, but it has no tolerance"
 # Family studies in every format: which floor binds at a boundary and what the figure draws
-# (delay-pole: the Mt floor e^{p theta}, S&P 2nd ed. ch. 5; two-ends: the severity), ranged
+# (delay-pole: the Mt floor e^{p theta}, S&P 2nd ed. ch. 5; weak-drive: the effort floor
+# 2p(p+60)/k, same chapter; two-ends: the severity), ranged
 # draws counted as redrawn, invalid units counted apart with a warning line.
 fam="$src/tests/data/e2e/families.yaml"
 "$ps" screen -o "$tmp/fam" --gate never "$fam" >"$tmp/fam.out" 2>"$tmp/fam.err"; check "screen: families catalog" 0 $?
@@ -245,6 +246,10 @@ for q in ("ms", "mt", "effort"):
     for side in ("passing", "failing"):
         k = "%s_floor_%s" % (q, side)
         assert abs(float(r[k]) - b[k]) <= 1e-8 * b[k], (k, r[k], b[k])
+b = F["weak-drive"]["boundaries"][0]
+want = 2 * 3.7 * 63.7 / 2.385
+assert abs(b["value"] - want) <= 1e-6 * want and b["binding"] == "effort" and b["curve"]["plotted"] == "effort", b
+assert rows[("weak-drive", "boundary")]["binding"] == "effort" and float(rows[("weak-drive", "boundary")]["binding_allowed"]) == 2.385
 assert F["two-ends"]["boundaries"][0]["curve"]["plotted"] == "severity"
 assert rows[("two-ends", "boundary")]["binding"] == "", "no single boundary, no binding floor"
 
@@ -276,7 +281,7 @@ p = Fig()
 p.feed(html)
 key = {"Ms": "ms_floor", "Mt": "mt_floor", "effort": "effort_floor", "severity": "severity"}
 allowed = {"Ms": "ms", "Mt": "mt", "effort": "effort"}
-assert [f["family"] for f in p.figs] == ["delay-pole", "two-ends"], p.figs
+assert [f["family"] for f in p.figs] == ["delay-pole", "weak-drive", "two-ends"], p.figs
 for fig in p.figs:
     c = F[fig["family"]]["boundaries"][0]
     cur = c["curve"]
