@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "catalog/numtext.h"
+#include "family/yield.h"
 
 static ps_status fail(ps_diag *d, const ps_ynode *at, const char *field, const char *fmt, ...)
     __attribute__((format(printf, 4, 5)));
@@ -109,6 +110,70 @@ static ps_status parse_tolerance(ps_fam_param *par, const ps_ynode *n, ps_diag *
     return PS_OK;
 }
 
+void ps_family_range_text(const ps_fam_param *par, char *out, size_t n)
+{
+    if (par->has_min && par->has_max)
+        snprintf(out, n, "[%.6g, %.6g]", par->min, par->max);
+    else if (par->has_min)
+        snprintf(out, n, ">= %.6g", par->min);
+    else if (par->has_max)
+        snprintf(out, n, "<= %.6g", par->max);
+    else if (n)
+        out[0] = '\0';
+}
+
+/* A declared range {min, max} of a toleranced parameter (v: its mapping).
+ * Drawn values outside it are drawn again (src/screen/study.c), so the range
+ * must hold the nominal value, every sweep value and at least
+ * PS_FAM_RANGE_MASS_MIN of the tolerance distribution. */
+static ps_status parse_range(ps_fam_param *par, const ps_ynode *v, ps_diag *d)
+{
+    const ps_ynode *mn = ps_ynode_get(v, "min"), *mx = ps_ynode_get(v, "max"), *sw = ps_ynode_get(v, "sweep");
+    par->min = -INFINITY;
+    par->max = INFINITY;
+    if (!mn && !mx)
+        return PS_OK;
+    char what_min[PS_FAM_NAME + 16], what_max[PS_FAM_NAME + 16];
+    snprintf(what_min, sizeof what_min, "min of '%s'", par->name);
+    snprintf(what_max, sizeof what_max, "max of '%s'", par->name);
+    if ((mn && number(mn, "min", what_min, &par->min, d) != PS_OK) ||
+        (mx && number(mx, "max", what_max, &par->max, d) != PS_OK))
+        return PS_ERR_INPUT;
+    par->has_min = mn != NULL;
+    par->has_max = mx != NULL;
+    const ps_ynode *at = mn ? mn : mx;
+    const char *field = mn ? "min" : "max";
+    if (par->tol == PS_TOL_NONE)
+        return fail(d, at, field, "parameter '%s': min and max bound the values drawn for a yield study, but it has "
+                    "no tolerance (add tolerance: {normal: sigma} or {uniform: half-width}, or drop %s)",
+                    par->name, mn && mx ? "min and max" : field);
+    if (mn && mx && !(par->min < par->max))
+        return fail(d, mx, "max", "parameter '%s': max %.6g must be above min %.6g", par->name, par->max, par->min);
+    char range[80];
+    ps_family_range_text(par, range, sizeof range);
+    if (!(par->nominal >= par->min && par->nominal <= par->max))
+        return fail(d, par->nominal < par->min ? mn : mx, par->nominal < par->min ? "min" : "max",
+                    "parameter '%s': nominal %.6g is outside its range %s", par->name, par->nominal, range);
+    for (size_t i = 0; i < par->n_sweep; i++)
+        if (!(par->sweep[i] >= par->min && par->sweep[i] <= par->max))
+            return fail(d, sw, "sweep", "parameter '%s': sweep value %.6g is outside its range %s", par->name,
+                        par->sweep[i], range);
+    ps_truncated t;
+    if (par->tol == PS_TOL_NORMAL)
+        ps_yield_normal_truncated(par->nominal, par->tol_value, par->min, par->max, &t);
+    else
+        ps_yield_uniform_truncated(par->nominal, par->tol_value, par->min, par->max, &t);
+    if (!(t.mass >= PS_FAM_RANGE_MASS_MIN))
+        return fail(d, at, field, "parameter '%s': the range %s holds %.3g %% of its tolerance distribution (%s, %s "
+                    "%.6g around %.6g); at least %g %% is needed to draw inside it",
+                    par->name, range, 100 * t.mass, par->tol == PS_TOL_NORMAL ? "normal" : "uniform",
+                    par->tol == PS_TOL_NORMAL ? "sigma" : "half-width", par->tol_value, par->nominal,
+                    100 * PS_FAM_RANGE_MASS_MIN);
+    par->range_mass = t.mass;
+    par->draw_sd = t.sd;
+    return PS_OK;
+}
+
 static ps_status parse_params(ps_family *fam, const ps_ynode *n, ps_diag *d)
 {
     if (!n || n->kind != PS_YN_MAP || n->n == 0)
@@ -127,15 +192,19 @@ static ps_status parse_params(ps_family *fam, const ps_ynode *n, ps_diag *d)
         snprintf(par->name, sizeof par->name, "%s", key->text);
         par->line = key->line;
         par->col = key->col;
+        par->min = -INFINITY;
+        par->max = INFINITY;
+        par->range_mass = 1.0;
         if (is_scalar(v)) {
             if (number(v, "parameters", "nominal value", &par->nominal, d) != PS_OK)
                 return PS_ERR_INPUT;
         } else if (v->kind == PS_YN_MAP) {
             for (size_t k = 0; k < v->n; k++) {
                 const char *kk = v->keys[k]->text;
-                if (strcmp(kk, "nominal") && strcmp(kk, "sweep") && strcmp(kk, "tolerance"))
+                if (strcmp(kk, "nominal") && strcmp(kk, "sweep") && strcmp(kk, "tolerance") && strcmp(kk, "min") &&
+                    strcmp(kk, "max"))
                     return fail(d, v->keys[k], "parameters", "parameter '%s': unknown key '%s' (expected "
-                                "nominal, sweep, tolerance)", par->name, kk);
+                                "nominal, sweep, tolerance, min, max)", par->name, kk);
             }
             const ps_ynode *nom = ps_ynode_get(v, "nominal"), *sw = ps_ynode_get(v, "sweep"),
                            *tol = ps_ynode_get(v, "tolerance");
@@ -144,8 +213,12 @@ static ps_status parse_params(ps_family *fam, const ps_ynode *n, ps_diag *d)
             if (number(nom, "parameters", "nominal value", &par->nominal, d) != PS_OK ||
                 (sw && parse_sweep(par, sw, d) != PS_OK) || (tol && parse_tolerance(par, tol, d) != PS_OK))
                 return PS_ERR_INPUT;
+            par->draw_sd = par->tol == PS_TOL_NORMAL ? par->tol_value
+                         : par->tol == PS_TOL_UNIFORM ? par->tol_value / sqrt(3.0) : 0.0;
+            if (parse_range(par, v, d) != PS_OK)
+                return PS_ERR_INPUT;
         } else
-            return fail(d, v, "parameters", "parameter '%s': expected a number or {nominal, sweep, tolerance}",
+            return fail(d, v, "parameters", "parameter '%s': expected a number or {nominal, sweep, tolerance, min, max}",
                         par->name);
         fam->value[i] = par->nominal;
     }

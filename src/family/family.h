@@ -20,8 +20,13 @@ enum {
     PS_FAM_SWEEP = 64,       /* values of one swept parameter */
     PS_FAM_GRID = 4096,      /* plants of one family's grid */
     PS_FAM_EXPRS = 512,      /* expressions of one model */
-    PS_FAM_SAMPLES = 1000000 /* yield samples */
+    PS_FAM_SAMPLES = 1000000, /* yield samples */
+    PS_FAM_TRIES = 10000      /* draws per value of a ranged parameter before the unit is given up */
 };
+
+/* Least share of a tolerance distribution a declared range must hold: with
+ * it, 10000 draws all miss the range with probability 0.99^10000 < 1e-43. */
+#define PS_FAM_RANGE_MASS_MIN 0.01
 
 typedef enum ps_tol_kind { PS_TOL_NONE = 0, PS_TOL_NORMAL, PS_TOL_UNIFORM } ps_tol_kind;
 
@@ -32,6 +37,10 @@ typedef struct ps_fam_param {
     double sweep[PS_FAM_SWEEP];
     ps_tol_kind tol;
     double tol_value;          /* sigma (normal) or half-width (uniform) */
+    bool has_min, has_max;     /* a declared physical range (only with a tolerance) */
+    double min, max;           /* -INFINITY / INFINITY where not declared */
+    double range_mass;         /* share of the tolerance distribution inside [min, max]; 1 without a range */
+    double draw_sd;            /* standard deviation of the values drawn (the truncated one with a range) */
     size_t line, col;
 } ps_fam_param;
 
@@ -65,6 +74,10 @@ typedef struct ps_family {
  * the family is then empty (ps_family_free is still safe). */
 ps_status ps_family_parse(ps_family *fam, const ps_ynode *node, const ps_plant *defaults, ps_diag *d);
 void ps_family_free(ps_family *fam);
+
+/* The declared range in words: "[0.001, 0.02]", ">= 0" or "<= 5"; "" with
+ * none. */
+void ps_family_range_text(const ps_fam_param *par, char *out, size_t n);
 
 /* Number of grid plants (product of the sweep counts; 1 with no sweep). */
 size_t ps_family_grid_size(const ps_family *fam);

@@ -1,6 +1,6 @@
 /* yield.c - Wilson and Clopper-Pearson intervals (GSL beta quantiles, with a
- * bracketed fallback where GSL's inversion fails) and per-sample mt19937
- * streams derived from (seed, sample index). */
+ * bracketed fallback where GSL's inversion fails), per-sample mt19937
+ * streams derived from (seed, sample index), and draws truncated to a range. */
 #include "family/yield.h"
 
 #include <assert.h>
@@ -213,4 +213,62 @@ double ps_yield_uniform(ps_yield_sampler *s, double mean, double half_width)
 {
     assert(isfinite(mean) && isfinite(half_width) && half_width >= 0.0);
     return gsl_ran_flat(s->rng, mean - half_width, mean + half_width);
+}
+
+/* ---- truncation to a declared range ------------------------------------------ */
+
+void ps_yield_normal_truncated(double mean, double sigma, double lo, double hi, ps_truncated *out)
+{
+    /* Standardised cuts a < b; with Z = Phi(b) - Phi(a) (JKB vol. 1, 2nd ed., ch. 13):
+     *   mean = mu + sigma (phi(a) - phi(b)) / Z,
+     *   var  = sigma^2 [1 + (a phi(a) - b phi(b)) / Z - ((phi(a) - phi(b)) / Z)^2],
+     * where an infinite cut contributes phi = 0 and a phi(a) = 0. Z is taken
+     * from the upper tails when both cuts lie above the mean, so that it
+     * keeps its digits there. */
+    double a = (lo - mean) / sigma, b = (hi - mean) / sigma;
+    double pa = isinf(a) ? 0.0 : gsl_ran_ugaussian_pdf(a), pb = isinf(b) ? 0.0 : gsl_ran_ugaussian_pdf(b);
+    double apa = isinf(a) ? 0.0 : a * pa, bpb = isinf(b) ? 0.0 : b * pb;
+    double z = a > 0 ? gsl_cdf_ugaussian_Q(a) - gsl_cdf_ugaussian_Q(b) : gsl_cdf_ugaussian_P(b) - gsl_cdf_ugaussian_P(a);
+    out->mass = z;
+    if (!(z > 0)) {
+        out->mean = out->sd = NAN;
+        return;
+    }
+    double r = (pa - pb) / z;
+    out->mean = mean + sigma * r;
+    out->sd = sigma * sqrt(fmax(0.0, 1.0 + (apa - bpb) / z - r * r));
+}
+
+void ps_yield_uniform_truncated(double mean, double half_width, double lo, double hi, ps_truncated *out)
+{
+    double l = fmax(mean - half_width, lo), u = fmin(mean + half_width, hi);
+    if (!(u > l) || !(half_width > 0)) {
+        *out = (ps_truncated){0.0, NAN, NAN};
+        return;
+    }
+    *out = (ps_truncated){(u - l) / (2.0 * half_width), 0.5 * (l + u), (u - l) / sqrt(12.0)};
+}
+
+double ps_yield_normal_in(ps_yield_sampler *s, double mean, double sigma, double lo, double hi, size_t max_tries,
+                          size_t *rejected)
+{
+    for (size_t i = 0; i < max_tries; i++) {
+        double x = ps_yield_normal(s, mean, sigma);
+        if (x >= lo && x <= hi)
+            return x;
+        ++*rejected;
+    }
+    return NAN;
+}
+
+double ps_yield_uniform_in(ps_yield_sampler *s, double mean, double half_width, double lo, double hi,
+                           size_t max_tries, size_t *rejected)
+{
+    for (size_t i = 0; i < max_tries; i++) {
+        double x = ps_yield_uniform(s, mean, half_width);
+        if (x >= lo && x <= hi)
+            return x;
+        ++*rejected;
+    }
+    return NAN;
 }

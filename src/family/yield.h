@@ -57,4 +57,24 @@ ps_status ps_yield_sampler_start(ps_yield_sampler *s, uint64_t seed, uint64_t in
 double ps_yield_normal(ps_yield_sampler *s, double mean, double sigma);
 double ps_yield_uniform(ps_yield_sampler *s, double mean, double half_width);
 
+/* A tolerance distribution cut to a declared range [lo, hi] (lo may be
+ * -INFINITY, hi INFINITY): the share of the distribution inside it, and the
+ * mean and standard deviation of the truncated distribution (NAN when the
+ * share is 0). Normal: Johnson, Kotz & Balakrishnan, Continuous Univariate
+ * Distributions vol. 1, 2nd ed. (1994), ch. 13 (truncated normal). */
+typedef struct ps_truncated {
+    double mass, mean, sd;
+} ps_truncated;
+void ps_yield_normal_truncated(double mean, double sigma, double lo, double hi, ps_truncated *out);
+void ps_yield_uniform_truncated(double mean, double half_width, double lo, double hi, ps_truncated *out);
+
+/* Truncation by redrawing: the next draw of the current sample that lies in
+ * [lo, hi], drawing again from the same stream while it does not, at most
+ * max_tries draws in all. *rejected grows by the number of draws that fell
+ * outside. Returns the draw, or NAN when none of max_tries was inside. */
+double ps_yield_normal_in(ps_yield_sampler *s, double mean, double sigma, double lo, double hi, size_t max_tries,
+                          size_t *rejected);
+double ps_yield_uniform_in(ps_yield_sampler *s, double mean, double half_width, double lo, double hi,
+                           size_t max_tries, size_t *rejected);
+
 #endif

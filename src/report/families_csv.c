@@ -17,11 +17,15 @@
  * or LF is quoted with its quotes doubled (report/csv_cells.c). */
 
 static const char *const cols[] = {
-    "family",           "study",   "parameter", "state",         "value",        "passes",
-    "ms_floor_passing", "ms_floor_failing",     "samples",       "seed",         "pass_fraction",
-    "pass_ci_low",      "pass_ci_high",         "most_responsible", "shift_in_spreads",
+    "family",          "study",          "parameter",           "state",
+    "value",           "passes",         "binding",             "binding_allowed",
+    "ms_floor_passing", "ms_floor_failing", "mt_floor_passing", "mt_floor_failing",
+    "effort_floor_passing", "effort_floor_failing", "samples",   "seed",
+    "valid_units",     "invalid_units",  "pass_fraction",       "pass_ci_low",
+    "pass_ci_high",    "most_responsible", "shift_in_std_devs", "redrawn_draws",
+    "warning",
 };
-enum { N_COLS = sizeof cols / sizeof cols[0] };
+enum { N_COLS = sizeof cols / sizeof cols[0], N_BOUND_COLS = 14 /* family .. effort_floor_failing */ };
 
 typedef ps_csv_out fam_csv;
 
@@ -35,6 +39,16 @@ static void row_end(fam_csv *o)
     ps_csv_row_end(o, N_COLS);
 }
 
+static double binding_allowed(const ps_boundary *b)
+{
+    switch (b->binding) {
+    case PS_QTY_MS: return b->ms_allowed;
+    case PS_QTY_MT: return b->mt_allowed;
+    case PS_QTY_EFFORT: return b->effort_allowed;
+    default: return NAN;
+    }
+}
+
 static void boundary_row(fam_csv *o, const ps_family_result *fr, const ps_boundary *b)
 {
     bool found = b->state == PS_BOUND_FOUND;
@@ -44,8 +58,14 @@ static void boundary_row(fam_csv *o, const ps_family_result *fr, const ps_bounda
     cell_text(o, ps_bound_state_name(b->state));
     cell_num(o, found ? b->value : NAN);
     cell_text(o, found ? (b->pass_below ? "below" : "above") : NULL);
+    cell_text(o, found ? ps_quantity_key(b->binding) : NULL);
+    cell_num(o, found ? binding_allowed(b) : NAN);
     cell_num(o, found ? b->ms_pass : NAN);
     cell_num(o, found ? b->ms_fail : NAN);
+    cell_num(o, found ? b->mt_pass : NAN);
+    cell_num(o, found ? b->mt_fail : NAN);
+    cell_num(o, found ? b->effort_pass : NAN);
+    cell_num(o, found ? b->effort_fail : NAN);
     row_end(o);
 }
 
@@ -53,17 +73,23 @@ static void yield_row(fam_csv *o, const ps_family_result *fr)
 {
     const ps_yield *y = &fr->yield;
     bool culprit = y->culprit >= 0 && (size_t)y->culprit < fr->n_params;
+    char warning[PS_DIAG_TEXT + 200];
+    ps_yield_warning_text(fr, warning, sizeof warning);
     cell_text(o, fr->id);
     cell_text(o, "yield");
-    for (int i = 0; i < 6; i++) /* parameter .. ms_floor_failing: boundary columns */
+    for (int i = 2; i < N_BOUND_COLS; i++) /* parameter .. effort_floor_failing: boundary columns */
         cell_text(o, NULL);
     cell_unsigned(o, y->samples);
     cell_unsigned(o, y->seed);
+    cell_unsigned(o, y->valid);
+    cell_unsigned(o, y->invalid);
     cell_num(o, y->pass_frac);
     cell_num(o, y->pass_lo);
     cell_num(o, y->pass_hi);
     cell_text(o, culprit ? fr->param[y->culprit].name : NULL);
     cell_num(o, culprit ? y->culprit_shift : NAN);
+    cell_unsigned(o, y->redrawn_total);
+    cell_text(o, warning[0] ? warning : NULL);
     row_end(o);
 }
 

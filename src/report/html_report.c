@@ -564,23 +564,6 @@ static double nice_step(double span, double target)
     return (m < 1.5 ? 1 : m < 3 ? 2 : m < 7 ? 5 : 10) * p;
 }
 
-/* The allowed Ms the family's plants were screened against: that of its
- * first screened grid plant (id "<family>[..."), else the built-in 2. */
-static double family_ms_allowed(const ps_run *r, const ps_family_result *fr, bool *from_plant)
-{
-    size_t n = strlen(fr->id);
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (s->verdict != PS_VERDICT_UNREAD && strncmp(s->id, fr->id, n) == 0 && s->id[n] == '[' &&
-            isfinite(s->req.ms_allowed) && s->req.ms_allowed > 0) {
-            *from_plant = true;
-            return s->req.ms_allowed;
-        }
-    }
-    *from_plant = false;
-    return 2.0;
-}
-
 static void pass_mark(FILE *f, double x, double y, bool pass)
 {
     if (pass)
@@ -589,18 +572,78 @@ static void pass_mark(FILE *f, double x, double y, bool pass)
         fprintf(f, "<rect class=\"pt-fail\" x=\"%.1f\" y=\"%.1f\" width=\"8\" height=\"8\"/>\n", x - 4, y - 4);
 }
 
-static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr, const ps_boundary *b)
+/* The y axis of a boundary figure (see ps_boundary.plotted): log from 1 for
+ * the Ms and Mt floors (a floor below 1 counts as 1), log over whole
+ * decades for the effort floor, linear from 0 for the severity. Values
+ * below the foot sit on it; above the top, on the top edge, marked. */
+typedef struct value_axis {
+    axis a;
+    double bot, top;
+} value_axis;
+
+static value_axis boundary_value_axis(const ps_boundary *b, double allowed, double T, double PH)
+{
+    double vtop = 0, vmin = INFINITY;
+    for (size_t i = 0; i < b->n_curve; i++) {
+        double v = ps_boundary_plotted_value(b, i);
+        if (b->curve_unstab[i] || !isfinite(v))
+            continue;
+        vtop = fmax(vtop, v);
+        if (v > 0)
+            vmin = fmin(vmin, v);
+    }
+    value_axis y = {.a = {.from = T + PH, .to = T}};
+    switch (b->plotted) {
+    case PS_QTY_SEVERITY:
+        y.bot = 0;
+        y.top = fmin(fmax(1.05 * vtop, 2.0), 10.0);
+        y.a.log = false;
+        y.a.lo = 0;
+        y.a.hi = y.top;
+        return y;
+    case PS_QTY_EFFORT:
+        /* at most four decades below the allowed effort */
+        y.bot = pow(10.0, floor(log10(fmax(fmin(vmin, allowed / 2), allowed * 1e-4))));
+        y.top = fmin(fmax(vtop, 2 * allowed), 100 * allowed);
+        break;
+    default: /* the band-edge figures' Ms axis: up to the largest finite floor, 2 to 100 times the allowed */
+        y.bot = 1;
+        y.top = fmax(fmin(fmax(vtop, 2 * allowed), 100 * allowed), 2);
+        break;
+    }
+    y.a.log = true;
+    y.a.lo = log10(y.bot);
+    y.a.hi = y.a.lo + 1.05 * (log10(y.top) - y.a.lo);
+    return y;
+}
+
+static double value_px(const value_axis *y, double v)
+{
+    return ax_px(&y->a, fmin(fmax(v, y->bot), y->top));
+}
+
+static const char *plotted_short(ps_quantity q)
+{
+    switch (q) {
+    case PS_QTY_MS: return "Ms";
+    case PS_QTY_MT: return "Mt";
+    case PS_QTY_EFFORT: return "effort";
+    default: return "severity";
+    }
+}
+
+static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_boundary *b)
 {
     const char *name = fr->param[b->param].name;
     bool found = b->state == PS_BOUND_FOUND && isfinite(b->value);
-    bool allowed_from_plant;
-    double allowed = family_ms_allowed(r, fr, &allowed_from_plant);
-    double xmin = INFINITY, xmax = -INFINITY, mtop = 1;
+    ps_quantity q = b->plotted;
+    bool sev = q == PS_QTY_SEVERITY;
+    const char *what = sev ? "severity" : ps_quantity_words(q), *brief = plotted_short(q);
+    double allowed = ps_boundary_plotted_allowed(b);
+    double xmin = INFINITY, xmax = -INFINITY;
     for (size_t i = 0; i < b->n_curve; i++) {
         xmin = fmin(xmin, b->curve_x[i]);
         xmax = fmax(xmax, b->curve_x[i]);
-        if (isfinite(b->curve_ms[i]))
-            mtop = fmax(mtop, b->curve_ms[i]);
     }
     if (found) {
         xmin = fmin(xmin, b->value);
@@ -625,20 +668,18 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
         ax.hi = xmax + 0.04 * span;
         step = nice_step(ax.hi - ax.lo, 6);
     }
-    /* y: the Ms axis of the band-edge figures (log from 1, up to the largest
-     * finite floor but at least twice and at most a hundred times the
-     * allowed Ms); larger and infinite floors sit on the top edge, marked. */
-    double ytop = fmax(fmin(fmax(mtop, 2 * allowed), 100 * allowed), 2);
-    axis ay = {.log = true, .lo = 0, .hi = log10(ytop) * 1.05, .from = T + PH, .to = T};
+    value_axis ay = boundary_value_axis(b, allowed, T, PH);
 
     char buf[240], label[80];
     fit_label(label, sizeof label, fr->id, 30);
-    snprintf(buf, sizeof buf, "%s: Ms floor along %s", label, name);
+    snprintf(buf, sizeof buf, "%s: %s along %s", label, sev ? "severity" : brief, name);
+    if (!sev)
+        snprintf(buf, sizeof buf, "%s: %s floor along %s", label, brief, name);
     fprintf(f, "<figure class=\"family-boundary\" data-family=\"");
     h_text(f, fr->id);
     fprintf(f, "\" data-parameter=\"");
     h_text(f, name);
-    fprintf(f, "\" data-state=\"%s\">\n", ps_bound_state_name(b->state));
+    fprintf(f, "\" data-state=\"%s\" data-plotted=\"%s\">\n", ps_bound_state_name(b->state), ps_quantity_key(q));
     svg_open_class(f, W, H, "family-boundary", buf);
     svg_text(f, 10, 16, "start", "title", 0, buf);
 
@@ -667,17 +708,28 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
             svg_text(f, ax_px(&ax, x), T + PH + 16, "middle", "small", 0, buf);
         }
     }
-    /* Ms ticks 1, 1.5, 2, 3, 5 below 10; 1, 2, 5 per decade to 100; powers of ten beyond. */
-    for (double d = 1; d <= ytop * 1.0001; d *= 10) {
-        static const double mult[] = {1, 1.5, 2, 3, 5};
-        for (size_t j = 0; j < 5; j++) {
-            double m = d * mult[j];
-            bool keep = ytop <= 10 || (ytop <= 100 ? (j == 0 || j == 2 || j == 4) : j == 0);
-            if (m > ytop * 1.0001 || !keep)
-                continue;
-            svg_line(f, L - 4, ax_px(&ay, m), L + PW, ax_px(&ay, m), "grid");
-            tick_label(buf, sizeof buf, m);
-            svg_text(f, L - 6, ax_px(&ay, m) + 3.5, "end", "small", 0, buf);
+    if (ay.a.log) {
+        /* ticks 1, 1.5, 2, 3, 5 per decade over one decade; 1, 2, 5 up to two; powers of ten beyond */
+        double decades = log10(ay.top) - ay.a.lo;
+        for (int e = 0; e <= (int)ceil(decades); e++) {
+            static const double mult[] = {1, 1.5, 2, 3, 5};
+            double d = pow(10.0, ay.a.lo + e);
+            for (size_t j = 0; j < 5; j++) {
+                double m = d * mult[j];
+                bool keep = decades <= 1 ? true : decades <= 2 ? (j == 0 || j == 2 || j == 4) : j == 0;
+                if (m > ay.top * 1.0001 || !keep)
+                    continue;
+                svg_line(f, L - 4, ax_px(&ay.a, m), L + PW, ax_px(&ay.a, m), "grid");
+                tick_label(buf, sizeof buf, m);
+                svg_text(f, L - 6, ax_px(&ay.a, m) + 3.5, "end", "small", 0, buf);
+            }
+        }
+    } else {
+        double ystep = nice_step(ay.top, 5);
+        for (double k = 0; k * ystep <= ay.top * 1.0001; k += 1) {
+            svg_line(f, L - 4, ax_px(&ay.a, k * ystep), L + PW, ax_px(&ay.a, k * ystep), "grid");
+            snprintf(buf, sizeof buf, "%.4g", k * ystep);
+            svg_text(f, L - 6, ax_px(&ay.a, k * ystep) + 3.5, "end", "small", 0, buf);
         }
     }
     /* Where a non-monotone verdict changes: between which sweep points. */
@@ -688,28 +740,35 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
                     T, fabs(x2 - x1), PH);
         }
     fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, PH);
-    if (allowed > 1 && allowed <= ytop) {
-        svg_line(f, L, ax_px(&ay, allowed), L + PW, ax_px(&ay, allowed), "marginal");
-        snprintf(buf, sizeof buf, "allowed Ms %.3g", allowed);
-        svg_text(f, L + PW - 3, ax_px(&ay, allowed) - 4, "end", "small value", 0, buf);
+    /* The line every point is compared with: the allowed value of the drawn
+     * floor, or severity 1. */
+    bool line = isfinite(allowed) && allowed > ay.bot && allowed <= ay.top;
+    if (line) {
+        double y = ax_px(&ay.a, allowed);
+        fprintf(f, "<line class=\"marginal\" data-allowed=\"%.17g\" x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\"/>\n",
+                allowed, L, y, L + PW, y);
+        if (sev)
+            snprintf(buf, sizeof buf, "severity 1");
+        else
+            snprintf(buf, sizeof buf, "allowed %s %.4g", brief, allowed);
+        svg_text(f, L + PW - 3, y - 4, "end", "small value", 0, buf);
     }
-    /* The curve through the sweep points, broken where a floor has no value. */
-    bool open = false, clipped = false;
+    /* The curve through the sweep points, broken where the value is missing;
+     * a point that cannot be stabilized sits on the top edge. */
+    bool open = false, clipped = false, any_unstab = false;
     double py[PS_FAM_SWEEP];
     for (size_t i = 0; i < b->n_curve; i++) {
-        double m = b->curve_ms[i];
+        double v = b->curve_unstab[i] ? INFINITY : ps_boundary_plotted_value(b, i);
         py[i] = NAN;
-        if (isnan(m)) {
+        if (isnan(v)) {
             if (open)
                 fprintf(f, "\"/>\n");
             open = false;
             continue;
         }
-        if (m > ytop) {
-            m = ytop;
-            clipped = true;
-        }
-        py[i] = ax_px(&ay, fmax(m, 1.0));
+        any_unstab |= b->curve_unstab[i];
+        clipped |= !b->curve_unstab[i] && v > ay.top;
+        py[i] = value_px(&ay, v);
         fprintf(f, "%s%.1f,%.1f", open ? " " : "<polyline class=\"curve\" points=\"", ax_px(&ax, b->curve_x[i]),
                 py[i]);
         open = true;
@@ -723,14 +782,14 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
         fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", x, T + PH);
         /* The label goes on the side where the curve is lower next to the
          * line (the top corner is free there), unless that side is too narrow. */
-        double ms_left = NAN, ms_right = NAN;
+        double y_left = NAN, y_right = NAN;
         for (size_t i = 0; i < b->n_curve; i++) {
             if (b->curve_x[i] <= b->value)
-                ms_left = b->curve_ms[i];
-            else if (isnan(ms_right))
-                ms_right = b->curve_ms[i];
+                y_left = py[i];
+            else if (isnan(y_right))
+                y_right = py[i];
         }
-        bool left = isnan(ms_right) || (!isnan(ms_left) && ms_left < ms_right);
+        bool left = isnan(y_right) || (!isnan(y_left) && y_left > y_right);
         if (left && x - L < 110)
             left = false;
         else if (!left && L + PW - x < 110)
@@ -743,22 +802,34 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
     for (size_t i = 0; i < b->n_curve; i++) {
         if (isnan(py[i]))
             continue;
-        double x = ax_px(&ax, b->curve_x[i]);
-        fprintf(f, "<g><title>");
+        double x = ax_px(&ax, b->curve_x[i]), v = ps_boundary_plotted_value(b, i);
+        fprintf(f, "<g class=\"sweep-point\" data-x=\"%.17g\" data-value=\"%.17g\" data-passes=\"%s\" "
+                   "data-stabilizable=\"%s\"><title>",
+                b->curve_x[i], v, b->curve_pass[i] ? "yes" : "no", b->curve_unstab[i] ? "no" : "yes");
         h_text(f, name);
         fprintf(f, " = %.6g: Ms floor ", b->curve_x[i]);
         h_num(f, b->curve_ms[i]);
+        fprintf(f, ", Mt floor ");
+        h_num(f, b->curve_mt[i]);
+        if (isfinite(b->effort_allowed)) {
+            fprintf(f, ", effort floor ");
+            h_num(f, b->curve_effort[i]);
+        }
         fprintf(f, ", severity ");
         h_num(f, b->curve_sev[i]);
-        fprintf(f, ", %s</title>\n", b->curve_pass[i] ? "passes" : "fails");
-        if (!(b->curve_ms[i] <= ytop))
+        fprintf(f, ", %s</title>\n", b->curve_unstab[i] ? "not stabilizable" : b->curve_pass[i] ? "passes" : "fails");
+        if (b->curve_unstab[i] || !(v <= ay.top))
             fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 8h10z\"/>\n", x, T - 10);
         pass_mark(f, x, py[i], b->curve_pass[i]);
         fprintf(f, "</g>\n");
     }
     snprintf(buf, sizeof buf, "%s (parameter value, %s)", name, ax.log ? "log" : "linear");
     svg_text(f, L + PW / 2, T + PH + 34, "middle", "", 0, buf);
-    svg_text(f, 16, T + PH / 2, "middle", "", -90, "Ms floor (ratio, log)");
+    if (sev)
+        snprintf(buf, sizeof buf, "severity (largest share, linear)");
+    else
+        snprintf(buf, sizeof buf, "%s floor (log)", q == PS_QTY_EFFORT ? "effort |C S|" : brief);
+    svg_text(f, 16, T + PH / 2, "middle", "", -90, buf);
     double ly = H - 12;
     pass_mark(f, L + 4, ly - 4, true);
     svg_text(f, L + 13, ly, "start", "small", 0, "passes");
@@ -779,21 +850,39 @@ static void boundary_figure(FILE *f, const ps_run *r, const ps_family_result *fr
 
     char text[700];
     ps_boundary_text(fr, b, text, sizeof text);
-    fprintf(f, "<figcaption>Ms floor of ");
+    size_t fail_stab = 0;
+    for (size_t i = 0; i < b->n_curve; i++)
+        fail_stab += !b->curve_pass[i] && !b->curve_unstab[i];
+    fprintf(f, "<figcaption>%s of ", sev ? "Severity" : q == PS_QTY_EFFORT ? "Effort floor (peak |C S|)" : what);
     h_text(f, fr->id);
     fprintf(f, " at the sorted sweep points of ");
     h_text(f, name);
-    fprintf(f, ", the other parameters at nominal; %s parameter axis, log Ms axis. Open circles pass (clear or "
-               "marginal), black squares fail: the verdict weighs every floor (Ms, Mt, effort), so a point can fail "
-               "below the allowed Ms. Dashed: the allowed Ms (%.3g, %s).",
-            ax.log ? "log" : "linear", allowed,
-            allowed_from_plant ? "as for the family's grid plants" : "the built-in default: no screened grid plant");
+    fprintf(f, ", the other parameters at nominal; %s parameter axis, %s %s axis. Open circles pass (clear or "
+               "marginal), black squares fail.",
+            ax.log ? "log" : "linear", sev ? "linear" : "log", brief);
+    if (sev) {
+        fprintf(f, " The severity is the largest of the Ms, Mt and effort shares of what is allowed; dashed: "
+                   "severity 1, the most that passes.");
+        if (fail_stab)
+            fprintf(f, " It is drawn because no single floor lies above its allowed value at every failing point "
+                       "that can be stabilized.");
+    } else {
+        fprintf(f, " Dashed: the allowed %s (%.4g). The verdict weighs every floor (Ms, Mt, effort); ", brief, allowed);
+        if (found && b->binding == q)
+            fprintf(f, "at the boundary the %s sets it, ", ps_quantity_words(q));
+        else
+            fprintf(f, "drawn: the floor with the largest share at the worst point that can be stabilized, ");
+        fprintf(f, "and at every failing point that can be stabilized it lies above the allowed %s.", brief);
+    }
     if (found)
         fprintf(f, " Solid with a triangle: the boundary, located by bisection.");
     if (b->state == PS_BOUND_NON_MONOTONE)
         fprintf(f, " Shaded: between these sweep points the verdict changes; no single boundary is reported.");
     if (clipped)
-        fprintf(f, " Floors above %.3g (or infinite) are drawn at %.3g with a triangle above the frame.", ytop, ytop);
+        fprintf(f, " Values above %.3g are drawn at %.3g with a triangle above the frame.", ay.top, ay.top);
+    if (any_unstab)
+        fprintf(f, " Points that cannot be stabilized (infinite floor or hidden unstable mode) are drawn on the top "
+                   "edge with a triangle above the frame.");
     fprintf(f, " Result: ");
     h_text(f, text);
     fprintf(f, ".</figcaption>\n</figure>\n");
@@ -817,7 +906,11 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
     const double W = 700, H = 100, L = 12, PW = 400, T = 34, BH = 22;
     char buf[240], label[80];
     fit_label(label, sizeof label, fr->id, 40);
-    snprintf(buf, sizeof buf, "%s: verdicts of %zu sampled units (seed %lu)", label, y->samples, y->seed);
+    if (y->invalid)
+        snprintf(buf, sizeof buf, "%s: verdicts of the %zu units that could be evaluated, of %zu (seed %lu)", label,
+                 y->valid, y->samples, y->seed);
+    else
+        snprintf(buf, sizeof buf, "%s: verdicts of %zu sampled units (seed %lu)", label, y->samples, y->seed);
     fprintf(f, "<figure class=\"family-yield\" data-family=\"");
     h_text(f, fr->id);
     fprintf(f, "\">\n");
@@ -829,7 +922,7 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
             k);
     svg_text(f, 10, 16, "start", "title", 0, buf);
     double x = L;
-    for (int v = 0; v < PS_VERDICT_COUNT; v++) {
+    for (int v = 0; v < PS_VERDICT_UNREAD; v++) {
         double w = PW * (isfinite(y->frac[v]) ? y->frac[v] : 0);
         if (y->count[v] == 0)
             continue;
@@ -842,23 +935,32 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
     fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, BH);
     /* The passing share (clear and marginal: the first two segments) and its interval above the bar. */
     double xp = L + PW * y->pass_frac, xl = L + PW * y->pass_lo, xh = L + PW * y->pass_hi;
-    svg_line(f, xp, T - 8, xp, T + BH, "halo");
-    svg_line(f, xp, T - 8, xp, T + BH, "limit");
-    svg_line(f, xl, T - 5, xh, T - 5, "limit");
-    svg_line(f, xl, T - 9, xl, T - 1, "");
-    svg_line(f, xh, T - 9, xh, T - 1, "");
+    if (y->valid) {
+        svg_line(f, xp, T - 8, xp, T + BH, "halo");
+        svg_line(f, xp, T - 8, xp, T + BH, "limit");
+        svg_line(f, xl, T - 5, xh, T - 5, "limit");
+        svg_line(f, xl, T - 9, xl, T - 1, "");
+        svg_line(f, xh, T - 9, xh, T - 1, "");
+    }
     for (int p = 0; p <= 100; p += 25) {
         double xt = L + PW * p / 100.0;
         svg_line(f, xt, T + BH, xt, T + BH + 4, "");
         snprintf(buf, sizeof buf, "%d %%", p);
         svg_text(f, xt, T + BH + 15, p == 0 ? "start" : p == 100 ? "end" : "middle", "small", 0, buf);
     }
-    snprintf(buf, sizeof buf, "passing %.1f %%", 100 * y->pass_frac);
-    svg_text(f, L + PW + 12, T + 9, "start", "title", 0, buf);
-    snprintf(buf, sizeof buf, "95 %% interval %.1f .. %.1f %% (Wilson)", 100 * y->pass_lo, 100 * y->pass_hi);
-    svg_text(f, L + PW + 12, T + 22, "start", "small", 0, buf);
+    if (y->valid) {
+        snprintf(buf, sizeof buf, "passing %.1f %%", 100 * y->pass_frac);
+        svg_text(f, L + PW + 12, T + 9, "start", "title", 0, buf);
+        snprintf(buf, sizeof buf, "95 %% interval %.1f .. %.1f %% (Wilson)", 100 * y->pass_lo, 100 * y->pass_hi);
+        svg_text(f, L + PW + 12, T + 22, "start", "small", 0, buf);
+    } else
+        svg_text(f, L + PW + 12, T + 9, "start", "title", 0, "no unit could be evaluated");
+    if (y->invalid) {
+        snprintf(buf, sizeof buf, "not in the bar: %zu invalid units", y->invalid);
+        svg_text(f, L + PW + 12, T + 35, "start", "small", 0, buf);
+    }
     double lx = L;
-    for (int v = 0; v < PS_VERDICT_COUNT; v++) {
+    for (int v = 0; v < PS_VERDICT_UNREAD; v++) {
         if (y->count[v] == 0)
             continue;
         yield_rect(f, v, k, lx, H - 19, 14, 10);
@@ -867,21 +969,14 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
         svg_text(f, lx + 18, H - 10, "start", "small", 0, buf);
         lx += 30 + 5.6 * (double)strlen(buf);
     }
-    fprintf(f, "</svg>\n<figcaption>Share of %zu units per verdict, the toleranced parameters drawn from one seeded "
-               "generator (seed %lu). Passing (clear or marginal): %.1f %% of units, 95 %% Wilson score interval "
-               "%.1f .. %.1f %% (the bracket above the bar).",
-            y->samples, y->seed, 100 * y->pass_frac, 100 * y->pass_lo, 100 * y->pass_hi);
-    if (y->culprit >= 0 && (size_t)y->culprit < fr->n_params) {
-        fprintf(f, " Failures are driven most by ");
-        h_text(f, fr->param[y->culprit].name);
-        fprintf(f, " (failing units %+.2f spreads from passing ones).", y->culprit_shift);
-    }
-    if (y->count[PS_VERDICT_UNREAD]) {
-        fprintf(f, " %zu units could not be evaluated; the first: ", y->count[PS_VERDICT_UNREAD]);
-        h_text(f, y->first_error);
-        fprintf(f, ".");
-    }
-    fprintf(f, "</figcaption>\n</figure>\n");
+    char text[1400];
+    ps_yield_text(fr, text, sizeof text);
+    fprintf(f, "</svg>\n<figcaption>Share per verdict of the %zu units that could be evaluated, of %zu drawn, the "
+               "toleranced parameters drawn from one seeded generator (seed %lu); passing (clear or marginal) with its "
+               "95 %% Wilson score interval (the bracket above the bar). Result: ",
+            y->valid, y->samples, y->seed);
+    h_text(f, text);
+    fprintf(f, ".</figcaption>\n</figure>\n");
 }
 
 static void family_params(FILE *f, const ps_family_result *fr)
@@ -911,6 +1006,13 @@ static void family_params(FILE *f, const ps_family_result *fr)
             fprintf(f, "uniform, &plusmn;%.4g", p->tol_value);
         else
             fprintf(f, "none");
+        if (p->has_min || p->has_max) {
+            char range[80];
+            ps_family_range_text(p, range, sizeof range);
+            fprintf(f, ", truncated to ");
+            h_text(f, range);
+            fprintf(f, " (%.1f %% of it)", 100 * p->range_mass);
+        }
         fprintf(f, "</td></tr>\n");
     }
     fprintf(f, "</tbody>\n</table>\n");
@@ -954,12 +1056,20 @@ static void families(FILE *f, const ps_run *r)
                 fprintf(f, ".</p>\n");
                 continue;
             }
-            boundary_figure(f, r, fr, b);
+            boundary_figure(f, fr, b);
         }
         if (fr->n_bound)
             fprintf(f, "</div>\n");
-        if (fr->has_yield)
+        if (fr->has_yield) {
+            char warning[PS_DIAG_TEXT + 200];
+            ps_yield_warning_text(fr, warning, sizeof warning);
+            if (warning[0]) {
+                fprintf(f, "<p class=\"study-warning\"><strong>Warning:</strong> ");
+                h_text(f, warning);
+                fprintf(f, ".</p>\n");
+            }
             yield_figure(f, fr, i);
+        }
         fprintf(f, "</article>\n");
     }
     fprintf(f, "</section>\n");

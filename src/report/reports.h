@@ -53,6 +53,11 @@ struct ps_boundary;
 void ps_text_families(FILE *f, const ps_run *r);
 void ps_md_families(FILE *f, const ps_run *r, void (*cell)(FILE *, const char *));
 void ps_boundary_text(const struct ps_family_result *fr, const struct ps_boundary *b, char *out, size_t n);
+/* A yield study in words (share passing among the units that could be
+ * evaluated, culprit, redrawn draws per ranged parameter), and its warning
+ * line on invalid units ("" when every unit could be evaluated). */
+void ps_yield_text(const struct ps_family_result *fr, char *out, size_t n);
+void ps_yield_warning_text(const struct ps_family_result *fr, char *out, size_t n);
 
 /* Write dir/name through a temporary file in dir and rename(2): readers see
  * the old file or the complete new one, never half a report. The temporary

@@ -1,6 +1,7 @@
 /* study.c - feasibility boundaries along swept parameters (bisection on the
- * verdict, with a monotonicity check on the sweep points) and tolerance
- * yield (seeded GSL generator, Wilson intervals). README "Families". */
+ * verdict, a monotonicity check on the sweep points, the floor that binds)
+ * and tolerance yield (seeded GSL generator, draws truncated to declared
+ * ranges, invalid units apart, Wilson intervals). README "Families". */
 #include "screen/study.h"
 
 #include <math.h>
@@ -50,12 +51,58 @@ void ps_study_ws_free(ps_study_ws *ws)
     free(ws);
 }
 
-/* One point of parameter space: verdict, Ms floor and severity. Returns
- * false with why set when the plant cannot be made or analysed. */
+const char *ps_quantity_words(ps_quantity q)
+{
+    switch (q) {
+    case PS_QTY_MS: return "Ms floor";
+    case PS_QTY_MT: return "Mt floor";
+    case PS_QTY_EFFORT: return "effort floor (peak |C S|)";
+    case PS_QTY_SEVERITY: return "severity";
+    default: return "none";
+    }
+}
+
+const char *ps_quantity_key(ps_quantity q)
+{
+    switch (q) {
+    case PS_QTY_MS: return "Ms";
+    case PS_QTY_MT: return "Mt";
+    case PS_QTY_EFFORT: return "effort";
+    case PS_QTY_SEVERITY: return "severity";
+    default: return "not-stabilizable";
+    }
+}
+
+double ps_boundary_plotted_value(const ps_boundary *b, size_t k)
+{
+    switch (b->plotted) {
+    case PS_QTY_MS: return b->curve_ms[k];
+    case PS_QTY_MT: return b->curve_mt[k];
+    case PS_QTY_EFFORT: return b->curve_effort[k];
+    default: return b->curve_sev[k];
+    }
+}
+
+double ps_boundary_plotted_allowed(const ps_boundary *b)
+{
+    switch (b->plotted) {
+    case PS_QTY_MS: return b->ms_allowed;
+    case PS_QTY_MT: return b->mt_allowed;
+    case PS_QTY_EFFORT: return b->effort_allowed;
+    default: return 1.0;
+    }
+}
+
+/* One point of parameter space: verdict, the three floors, their shares of
+ * what is allowed (screen.h: ps_share_peak, ps_share_effort) and the
+ * severity. Returns false with why set when the plant cannot be made or
+ * analysed. */
 typedef struct point {
     ps_verdict verdict;
-    bool pass;
-    double ms, severity;
+    bool pass, hidden;
+    double ms, mt, effort, severity;
+    double share_ms, share_mt, share_effort; /* NAN when not applicable */
+    double ms_allowed, mt_allowed, effort_allowed;
 } point;
 
 static bool evaluate(ps_study_ws *ws, ps_family *fam, const double *values, const ps_screen_opts *opt, point *pt,
@@ -68,13 +115,79 @@ static bool evaluate(ps_study_ws *ws, ps_family *fam, const double *values, cons
         return false;
     }
     double sev;
-    ps_screen_passes(ws->sws, &ws->an, &ws->plant.req, &sev);
+    const ps_requirements *q = &ws->plant.req;
+    ps_screen_passes(ws->sws, &ws->an, q, &sev);
     const ps_floors *fl = ps_screen_last_floors(ws->sws);
     pt->severity = sev;
     pt->ms = fl->ms;
+    pt->mt = fl->mt;
+    pt->effort = fl->effort;
+    pt->ms_allowed = q->ms_allowed;
+    pt->mt_allowed = q->mt_allowed;
+    pt->effort_allowed = q->effort_allowed > 0 ? q->effort_allowed : NAN;
+    /* The shares as the severity weighs them (screen.c). */
+    pt->share_ms = ps_share_peak(fl->ms, q->ms_allowed);
+    pt->share_mt = ps_share_peak(fl->mt, q->mt_allowed);
+    pt->share_effort = q->effort_allowed > 0 ? ps_share_effort(fl->effort, q->effort_allowed) : NAN;
+    pt->hidden = ws->an.hidden_unstable;
     pt->verdict = ps_verdict_of(sev, fl->infinite, ws->an.hidden_unstable, opt->marginal_at);
     pt->pass = pt->verdict == PS_VERDICT_CLEAR || pt->verdict == PS_VERDICT_MARGINAL;
     return true;
+}
+
+/* The floor with the largest share (Ms before Mt before effort on a tie, as
+ * the screening's "worst"); NONE when no share has a value. */
+static ps_quantity largest_share(double sm, double st, double se)
+{
+    ps_quantity q = PS_QTY_NONE;
+    double best = -INFINITY;
+    if (!isnan(sm) && sm > best) {
+        best = sm;
+        q = PS_QTY_MS;
+    }
+    if (!isnan(st) && st > best) {
+        best = st;
+        q = PS_QTY_MT;
+    }
+    if (!isnan(se) && se > best)
+        q = PS_QTY_EFFORT;
+    return q;
+}
+
+static double share_of(const ps_boundary *b, ps_quantity q, size_t k)
+{
+    switch (q) {
+    case PS_QTY_MS: return ps_share_peak(b->curve_ms[k], b->ms_allowed);
+    case PS_QTY_MT: return ps_share_peak(b->curve_mt[k], b->mt_allowed);
+    case PS_QTY_EFFORT: return b->effort_allowed > 0 ? ps_share_effort(b->curve_effort[k], b->effort_allowed) : NAN;
+    default: return b->curve_sev[k];
+    }
+}
+
+/* What the figure draws (see ps_boundary.plotted). A passing point has every
+ * share <= 1, so it is on or below any floor's allowed line; a failing
+ * stabilizable point has its largest share > 1, but maybe not that of the
+ * chosen floor: then the severity is drawn instead. */
+static ps_quantity plotted_quantity(const ps_boundary *b)
+{
+    ps_quantity q = PS_QTY_NONE;
+    if (b->state == PS_BOUND_FOUND && b->binding != PS_QTY_NONE)
+        q = b->binding;
+    else { /* no boundary, or its failing side is not stabilizable: the worst stabilizable point's floor */
+        double worst = -INFINITY;
+        for (size_t k = 0; k < b->n_curve; k++) {
+            if (b->curve_unstab[k] || !(b->curve_sev[k] > worst))
+                continue;
+            worst = b->curve_sev[k];
+            q = largest_share(share_of(b, PS_QTY_MS, k), share_of(b, PS_QTY_MT, k), share_of(b, PS_QTY_EFFORT, k));
+        }
+    }
+    if (q == PS_QTY_NONE)
+        return PS_QTY_SEVERITY;
+    for (size_t k = 0; k < b->n_curve; k++)
+        if (!b->curve_pass[k] && !b->curve_unstab[k] && !(share_of(b, q, k) > 1.0))
+            return PS_QTY_SEVERITY;
+    return q;
 }
 
 static int cmp_double(const void *a, const void *b)
@@ -88,6 +201,7 @@ static void boundary(ps_study_ws *ws, ps_family *fam, size_t j, const ps_screen_
     memset(b, 0, sizeof *b);
     b->param = j;
     b->value = NAN;
+    b->ms_allowed = b->mt_allowed = b->effort_allowed = NAN;
     const ps_fam_param *par = &fam->param[j];
     double values[PS_FAM_PARAMS];
     for (size_t i = 0; i < fam->n_params; i++)
@@ -102,9 +216,16 @@ static void boundary(ps_study_ws *ws, ps_family *fam, size_t j, const ps_screen_
             b->state = PS_BOUND_ERROR;
             return;
         }
+        /* Requirements are not expressions: the same at every point. */
+        b->ms_allowed = pt.ms_allowed;
+        b->mt_allowed = pt.mt_allowed;
+        b->effort_allowed = pt.effort_allowed;
         b->curve_ms[k] = pt.ms;
+        b->curve_mt[k] = pt.mt;
+        b->curve_effort[k] = pt.effort;
         b->curve_sev[k] = pt.severity;
         b->curve_pass[k] = pt.pass;
+        b->curve_unstab[k] = pt.verdict == PS_VERDICT_UNSTABILIZABLE;
     }
     size_t changes = 0, at = 0;
     for (size_t k = 0; k + 1 < b->n_curve; k++)
@@ -118,18 +239,28 @@ static void boundary(ps_study_ws *ws, ps_family *fam, size_t j, const ps_screen_
         }
     if (changes == 0) {
         b->state = b->curve_pass[0] ? PS_BOUND_ALL_PASS : PS_BOUND_ALL_FAIL;
+        b->plotted = plotted_quantity(b);
         return;
     }
     if (changes > 1) {
         b->state = PS_BOUND_NON_MONOTONE;
+        b->plotted = plotted_quantity(b);
         return;
     }
     /* One change between sweep points at and at + 1: bisect on the verdict. */
     double lo = b->curve_x[at], hi = b->curve_x[at + 1];
     bool lo_pass = b->curve_pass[at];
     point plo = {0}, phi = {0};
-    plo.ms = b->curve_ms[at], plo.severity = b->curve_sev[at];
-    phi.ms = b->curve_ms[at + 1], phi.severity = b->curve_sev[at + 1];
+    values[j] = lo;
+    if (!evaluate(ws, fam, values, opt, &plo, b->why, sizeof b->why)) {
+        b->state = PS_BOUND_ERROR;
+        return;
+    }
+    values[j] = hi;
+    if (!evaluate(ws, fam, values, opt, &phi, b->why, sizeof b->why)) {
+        b->state = PS_BOUND_ERROR;
+        return;
+    }
     for (int it = 0; it < 200 && hi - lo > 1e-10 * fmax(fabs(lo), fabs(hi)); it++) {
         double mid = 0.5 * (lo + hi);
         point pm;
@@ -146,45 +277,83 @@ static void boundary(ps_study_ws *ws, ps_family *fam, size_t j, const ps_screen_
             phi = pm;
         }
     }
+    const point *pp = lo_pass ? &plo : &phi, *pf = lo_pass ? &phi : &plo;
     b->state = PS_BOUND_FOUND;
     b->value = 0.5 * (lo + hi);
     b->pass_below = lo_pass;
-    b->ms_pass = lo_pass ? plo.ms : phi.ms;
-    b->ms_fail = lo_pass ? phi.ms : plo.ms;
-    b->sev_pass = lo_pass ? plo.severity : phi.severity;
-    b->sev_fail = lo_pass ? phi.severity : plo.severity;
+    b->ms_pass = pp->ms;
+    b->ms_fail = pf->ms;
+    b->mt_pass = pp->mt;
+    b->mt_fail = pf->mt;
+    b->effort_pass = pp->effort;
+    b->effort_fail = pf->effort;
+    b->sev_pass = pp->severity;
+    b->sev_fail = pf->severity;
+    if (pf->verdict == PS_VERDICT_UNSTABILIZABLE) {
+        b->binding = PS_QTY_NONE;
+        b->fail_hidden = pf->hidden;
+    } else
+        b->binding = largest_share(pf->share_ms, pf->share_mt, pf->share_effort);
+    b->plotted = plotted_quantity(b);
 }
 
-static double draw(ps_yield_sampler *rng, const ps_fam_param *par)
+/* One toleranced value of a unit: the declared distribution, and with a
+ * declared range the truncated one (drawn again from the same stream while
+ * outside, at most PS_FAM_TRIES draws; NAN when none was inside). */
+static double draw(ps_yield_sampler *rng, const ps_fam_param *par, size_t *rejected)
 {
+    bool ranged = par->has_min || par->has_max;
     switch (par->tol) {
-    case PS_TOL_NORMAL: return ps_yield_normal(rng, par->nominal, par->tol_value);
-    case PS_TOL_UNIFORM: return ps_yield_uniform(rng, par->nominal, par->tol_value);
+    case PS_TOL_NORMAL:
+        return ranged ? ps_yield_normal_in(rng, par->nominal, par->tol_value, par->min, par->max, PS_FAM_TRIES,
+                                           rejected)
+                      : ps_yield_normal(rng, par->nominal, par->tol_value);
+    case PS_TOL_UNIFORM:
+        return ranged ? ps_yield_uniform_in(rng, par->nominal, par->tol_value, par->min, par->max, PS_FAM_TRIES,
+                                            rejected)
+                      : ps_yield_uniform(rng, par->nominal, par->tol_value);
     default: return par->nominal;
     }
 }
 
 /* Sample s draws its values from a stream of its own that depends on (seed,
  * s) only (src/family/yield.c), in parameter order: the same seed gives the
- * same units in any order or on any number of threads. */
+ * same units in any order or on any number of threads. A unit whose model
+ * cannot be evaluated is invalid: counted apart, in no share. */
 static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_yield *y)
 {
     memset(y, 0, sizeof *y);
     y->samples = fam->samples;
     y->seed = fam->seed;
     y->culprit = -1;
+    y->culprit_shift = NAN;
+    for (size_t i = 0; i < PS_FAM_PARAMS; i++) {
+        y->drawn_min[i] = INFINITY;
+        y->drawn_max[i] = -INFINITY;
+    }
     double sum_fail[PS_FAM_PARAMS] = {0}, sum_pass[PS_FAM_PARAMS] = {0};
     size_t n_fail = 0, n_pass = 0;
     for (size_t s = 0; s < fam->samples; s++) {
         double values[PS_FAM_PARAMS];
         ps_diag sd = {0};
         ps_yield_sampler_start(ws->rng, fam->seed, s, &sd); /* s < 1e6: always in range */
-        for (size_t i = 0; i < fam->n_params; i++)
-            values[i] = draw(ws->rng, &fam->param[i]);
+        int lost = -1; /* a ranged parameter with no draw inside its range */
+        for (size_t i = 0; i < fam->n_params; i++) {
+            values[i] = draw(ws->rng, &fam->param[i], &y->redrawn[i]);
+            if (isnan(values[i]) && lost < 0)
+                lost = (int)i;
+            if (fam->param[i].tol != PS_TOL_NONE && !isnan(values[i])) {
+                y->drawn_min[i] = fmin(y->drawn_min[i], values[i]);
+                y->drawn_max[i] = fmax(y->drawn_max[i], values[i]);
+            }
+        }
         point pt;
         char why[PS_DIAG_TEXT];
-        if (!evaluate(ws, fam, values, opt, &pt, why, sizeof why)) {
-            if (!y->count[PS_VERDICT_UNREAD]++)
+        if (lost >= 0)
+            snprintf(why, sizeof why, "%s[unit %zu]: '%s': no draw inside its range in %d tries", fam->id, s,
+                     fam->param[lost].name, PS_FAM_TRIES);
+        if (lost >= 0 || !evaluate(ws, fam, values, opt, &pt, why, sizeof why)) {
+            if (!y->invalid++)
                 snprintf(y->first_error, sizeof y->first_error, "%s", why);
             continue;
         }
@@ -197,34 +366,42 @@ static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps
         else
             n_fail++;
     }
+    for (size_t i = 0; i < fam->n_params; i++)
+        y->redrawn_total += y->redrawn[i];
+    y->valid = y->samples - y->invalid;
     ps_interval ci;
     ps_diag wd = {0};
     for (int v = 0; v < PS_VERDICT_COUNT; v++) {
-        y->frac[v] = (double)y->count[v] / (double)y->samples;
-        ps_yield_wilson(y->count[v], y->samples, 0.95, &ci, &wd);
-        y->lo[v] = ci.lo;
-        y->hi[v] = ci.hi;
+        y->frac[v] = y->lo[v] = y->hi[v] = NAN;
+        if (y->valid && ps_yield_wilson(y->count[v], y->valid, 0.95, &ci, &wd) == PS_OK) {
+            y->frac[v] = (double)y->count[v] / (double)y->valid;
+            y->lo[v] = ci.lo;
+            y->hi[v] = ci.hi;
+        }
     }
-    y->pass_frac = (double)n_pass / (double)y->samples;
-    ps_yield_wilson(n_pass, y->samples, 0.95, &ci, &wd);
-    y->pass_lo = ci.lo;
-    y->pass_hi = ci.hi;
+    y->pass_frac = y->pass_lo = y->pass_hi = NAN;
+    if (y->valid && ps_yield_wilson(n_pass, y->valid, 0.95, &ci, &wd) == PS_OK) {
+        y->pass_frac = (double)n_pass / (double)y->valid;
+        y->pass_lo = ci.lo;
+        y->pass_hi = ci.hi;
+    }
     /* The parameter whose failing units sit farthest from the passing ones,
-     * in units of its own spread (sigma; half-width / sqrt 3 for uniform). */
+     * in standard deviations of its drawn values (sigma, half-width / sqrt 3
+     * for uniform; that of the truncated distribution with a range). */
     if (n_fail && n_pass) {
         double best = 0;
         for (size_t i = 0; i < fam->n_params; i++) {
             const ps_fam_param *par = &fam->param[i];
-            if (par->tol == PS_TOL_NONE)
+            if (par->tol == PS_TOL_NONE || !(par->draw_sd > 0))
                 continue;
-            double spread = par->tol == PS_TOL_NORMAL ? par->tol_value : par->tol_value / sqrt(3.0);
-            double shift = (sum_fail[i] / (double)n_fail - sum_pass[i] / (double)n_pass) / spread;
+            double shift = (sum_fail[i] / (double)n_fail - sum_pass[i] / (double)n_pass) / par->draw_sd;
             if (fabs(shift) > fabs(best)) {
                 best = shift;
                 y->culprit = (int)i;
             }
         }
-        y->culprit_shift = best;
+        if (y->culprit >= 0)
+            y->culprit_shift = best;
     }
 }
 

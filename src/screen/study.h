@@ -22,31 +22,71 @@ const char *ps_bound_state_name(ps_bound_state s);
 
 enum { PS_BOUND_CHANGES = 8 };
 
+/* What a boundary figure draws and which floor sets a verdict: the three
+ * floors the severity weighs (README "Verdicts"), or the severity itself. */
+typedef enum ps_quantity {
+    PS_QTY_NONE = 0,  /* no floor: the failing side is not stabilizable */
+    PS_QTY_MS,        /* Ms floor, against the allowed Ms */
+    PS_QTY_MT,        /* Mt floor, against the allowed Mt */
+    PS_QTY_EFFORT,    /* effort floor (peak |C S|), against the allowed effort */
+    PS_QTY_SEVERITY   /* the largest share, against 1 */
+} ps_quantity;
+
+/* "Ms floor", "Mt floor", "effort floor (peak |C S|)", "severity", "none". */
+const char *ps_quantity_words(ps_quantity q);
+/* Stable keys: "Ms", "Mt", "effort", "severity", "not-stabilizable". */
+const char *ps_quantity_key(ps_quantity q);
+
 typedef struct ps_boundary {
     size_t param;               /* index into the family's parameters */
     ps_bound_state state;
     double value;               /* FOUND: where the verdict changes (bisection to 1e-10 relative) */
     bool pass_below;            /* FOUND: the plant passes for values below value */
-    double ms_pass, ms_fail;    /* FOUND: Ms floor just on the passing and the failing side */
+    ps_quantity binding;        /* FOUND: the floor whose share exceeds 1 just on the failing side (the
+                                   largest share there; Ms before Mt before effort on a tie), or NONE
+                                   when that side is not stabilizable */
+    bool fail_hidden;           /* FOUND, binding NONE: a hidden unstable mode (else an infinite floor) */
+    double ms_allowed, mt_allowed, effort_allowed; /* the family's requirements; effort NAN when not set */
+    double ms_pass, ms_fail;    /* FOUND: the floors just on the passing and the failing side */
+    double mt_pass, mt_fail;
+    double effort_pass, effort_fail;
     double sev_pass, sev_fail;  /* ... and the severity */
     size_t n_changes;           /* NON_MONOTONE: between which sweep points the verdict flips */
     double change_lo[PS_BOUND_CHANGES], change_hi[PS_BOUND_CHANGES];
-    size_t n_curve;             /* Ms floor and severity at the sweep points (sorted), others nominal */
-    double curve_x[PS_FAM_SWEEP], curve_ms[PS_FAM_SWEEP], curve_sev[PS_FAM_SWEEP];
+    size_t n_curve;             /* floors and severity at the sweep points (sorted), others nominal */
+    double curve_x[PS_FAM_SWEEP], curve_ms[PS_FAM_SWEEP], curve_mt[PS_FAM_SWEEP], curve_effort[PS_FAM_SWEEP],
+        curve_sev[PS_FAM_SWEEP];
     bool curve_pass[PS_FAM_SWEEP];
+    bool curve_unstab[PS_FAM_SWEEP]; /* not stabilizable (infinite floor or hidden unstable mode) */
+    ps_quantity plotted;        /* what the figure draws against its allowed value: the binding floor (or,
+                                   with no boundary, the largest share at the worst point) when every
+                                   failing stabilizable sweep point has that floor above its allowed value,
+                                   else the severity against 1. So no failing point is drawn below the line. */
     char why[PS_DIAG_TEXT];     /* ERROR: the evaluation message */
 } ps_boundary;
+
+/* The value a boundary figure draws at sweep point k (b->plotted), and the
+ * line it is compared with. */
+double ps_boundary_plotted_value(const ps_boundary *b, size_t k);
+double ps_boundary_plotted_allowed(const ps_boundary *b);
 
 typedef struct ps_yield {
     size_t samples;
     unsigned long seed;
-    size_t count[PS_VERDICT_COUNT];        /* PS_VERDICT_UNREAD: samples that could not be evaluated */
-    double frac[PS_VERDICT_COUNT];
+    size_t invalid;                        /* units whose model could not be evaluated (an expression
+                                              error, an improper plant, a non-finite value): left out
+                                              of every share and reported as a warning */
+    size_t valid;                          /* samples - invalid: the denominator of every share */
+    size_t count[PS_VERDICT_COUNT];        /* valid units per verdict (PS_VERDICT_UNREAD stays 0) */
+    double frac[PS_VERDICT_COUNT];         /* count / valid (NAN when valid = 0) */
     double lo[PS_VERDICT_COUNT], hi[PS_VERDICT_COUNT]; /* Wilson score interval, 95 % */
-    double pass_frac, pass_lo, pass_hi;    /* clear or marginal */
+    double pass_frac, pass_lo, pass_hi;    /* clear or marginal, among valid units */
     int culprit;                           /* parameter most responsible for failures; -1 none */
-    double culprit_shift;                  /* (mean over failing - mean over passing) / spread */
-    char first_error[PS_DIAG_TEXT];
+    double culprit_shift;                  /* (mean over failing - mean over passing) / draw_sd */
+    size_t redrawn[PS_FAM_PARAMS];         /* draws outside the parameter's declared range, drawn again */
+    size_t redrawn_total;
+    double drawn_min[PS_FAM_PARAMS], drawn_max[PS_FAM_PARAMS]; /* toleranced parameters, over every unit */
+    char first_error[PS_DIAG_TEXT];        /* the first invalid unit's message */
 } ps_yield;
 
 typedef struct ps_family_result {

@@ -260,6 +260,129 @@ contains "family: assignment refused with its position" "$tmp/err" "in \"a=5\" a
 contains "family: invalid operation names the values" "$tmp/err" "plant 'sqrtneg[a=-1]': poles: \"-sqrt(a)\": invalid operation"
 contains "family: the good grid point still screened" "$tmp/out" "sqrtneg[a=1]"
 contains "family: the plain plant still screened" "$tmp/out" "ok "
+contains "family: max below min, with its position" "$tmp/err" "bad-families.yaml:43:75: plant 'bad-range': parameter 'a': max 1 must be above min 2"
+contains "family: a range needs a tolerance" "$tmp/err" "bad-families.yaml:46:41: plant 'range-no-tol': parameter 'a': min and max bound the values drawn for a yield study, but it has no tolerance"
+# Family studies in every format: which floor binds at a boundary and what the figure draws
+# (delay-pole: the Mt floor e^{p theta}, S&P 2nd ed. ch. 5; weak-drive: the effort floor
+# 2p(p+60)/k, same chapter; two-ends: the severity), ranged
+# draws counted as redrawn, invalid units counted apart with a warning line.
+fam="$src/tests/data/e2e/families.yaml"
+"$ps" screen -o "$tmp/fam" --gate never "$fam" >"$tmp/fam.out" 2>"$tmp/fam.err"; check "screen: families catalog" 0 $?
+contains "family text: the Mt floor binds, with its allowed value" "$tmp/fam/families.screen.txt" \
+    "theta must stay below 0.0603091 (nominal 0.03, swept 0.005 .. 0.12); there the severity crosses 1, set by the Mt floor: 1.25 passing, 1.25 failing, allowed 1.25"
+contains "family text: redrawn draws" "$tmp/fam/families.screen.txt" "gap drawn from its normal distribution truncated to >= 0 (97.7 % of it): "
+contains "family text: warning line on invalid units" "$tmp/fam/families.screen.txt" "    warning   "
+"$py" - "$tmp/fam/families.screen" <<'PY'
+import csv, json, math, re, sys
+from html.parser import HTMLParser
+stem = sys.argv[1]
+doc = json.load(open(stem + ".json"))
+F = {f["id"]: f for f in doc["families"]}
+rows = {(r["family"], r["study"]): r for r in csv.DictReader(open(stem + ".families.csv", newline=""))}
+txt = open(stem + ".txt").read()
+md = open(stem + ".md").read()
+html = open(stem + ".html").read()
+
+# delay-pole: the boundary at ln(1.25)/p, set by the Mt floor; the Ms floor there is far below 2.
+b = F["delay-pole"]["boundaries"][0]
+want = math.log(1.25) / 3.7
+assert abs(b["value"] - want) <= 1e-6 * want, (b["value"], want)
+assert b["binding"] == "Mt" and b["allowed"] == {"ms": 2, "mt": 1.25, "effort": None}, b
+assert b["mt_floor_passing"] <= 1.25 < b["mt_floor_failing"] and b["ms_floor_failing"] < 2, b
+assert b["curve"]["plotted"] == "Mt", b["curve"]["plotted"]
+r = rows[("delay-pole", "boundary")]
+assert r["binding"] == "Mt" and float(r["binding_allowed"]) == 1.25, r
+for q in ("ms", "mt", "effort"):
+    for side in ("passing", "failing"):
+        k = "%s_floor_%s" % (q, side)
+        assert abs(float(r[k]) - b[k]) <= 1e-8 * b[k], (k, r[k], b[k])
+b = F["weak-drive"]["boundaries"][0]
+want = 2 * 3.7 * 63.7 / 2.385
+assert abs(b["value"] - want) <= 1e-6 * want and b["binding"] == "effort" and b["curve"]["plotted"] == "effort", b
+assert rows[("weak-drive", "boundary")]["binding"] == "effort" and float(rows[("weak-drive", "boundary")]["binding_allowed"]) == 2.385
+assert F["two-ends"]["boundaries"][0]["curve"]["plotted"] == "severity"
+assert rows[("two-ends", "boundary")]["binding"] == "", "no single boundary, no binding floor"
+
+# The HTML figures draw what the JSON says, and no failing point below the line it is compared with.
+class Fig(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.figs, self.cur, self.pt = [], None, None
+    def handle_starttag(self, tag, attrs):
+        a = dict(attrs)
+        if tag == "figure" and "family-boundary" in (a.get("class") or ""):
+            self.cur = {"family": a["data-family"], "plotted": a["data-plotted"], "line": None, "points": []}
+            self.figs.append(self.cur)
+        elif self.cur is not None and tag == "line" and "data-allowed" in a:
+            self.cur["line"] = (float(a["data-allowed"]), float(a["y1"]))
+        elif self.cur is not None and tag == "g" and a.get("class") == "sweep-point":
+            self.pt = {"x": float(a["data-x"]), "value": float(a["data-value"]), "passes": a["data-passes"] == "yes"}
+            self.cur["points"].append(self.pt)
+        elif self.pt is not None and tag == "circle":
+            self.pt["y"] = float(a["cy"])
+        elif self.pt is not None and tag == "rect":
+            self.pt["y"] = float(a["y"]) + 4
+    def handle_endtag(self, tag):
+        if tag == "g":
+            self.pt = None
+        if tag == "figure":
+            self.cur = None
+p = Fig()
+p.feed(html)
+key = {"Ms": "ms_floor", "Mt": "mt_floor", "effort": "effort_floor", "severity": "severity"}
+allowed = {"Ms": "ms", "Mt": "mt", "effort": "effort"}
+assert [f["family"] for f in p.figs] == ["delay-pole", "weak-drive", "two-ends"], p.figs
+for fig in p.figs:
+    c = F[fig["family"]]["boundaries"][0]
+    cur = c["curve"]
+    assert fig["plotted"] == cur["plotted"], fig["plotted"]
+    want_line = 1.0 if cur["plotted"] == "severity" else c["allowed"][allowed[cur["plotted"]]]
+    assert fig["line"] and fig["line"][0] == want_line, (fig["line"], want_line)
+    ly = fig["line"][1]
+    assert len(fig["points"]) == len(cur["x"])
+    assert all(abs(q["x"] - x) <= 1e-12 * abs(x) for q, x in zip(fig["points"], cur["x"])), fig["points"]
+    fails = 0
+    for q, v, ok in zip(fig["points"], cur[key[cur["plotted"]]], cur["passes"]):
+        assert abs(q["value"] - v) <= 1e-12 * abs(v) and q["passes"] == ok, (q, v, ok)
+        if ok:
+            assert q["y"] >= ly, ("a passing point above the line", fig["family"], q, ly)
+        else:
+            fails += 1
+            assert q["y"] <= ly, ("a failing point below the line", fig["family"], q, ly)
+    assert fails >= 3, fig
+
+# Ranged draws: none outside, the redrawn draws counted in every format; no invalid unit.
+y = F["gap-ranged"]["yield"]
+d = y["drawn"][0]
+assert F["gap-ranged"]["parameters"][0]["range"] == {"min": 0, "max": None, "mass": F["gap-ranged"]["parameters"][0]["range"]["mass"]}
+assert abs(F["gap-ranged"]["parameters"][0]["range"]["mass"] - 0.9772498680518208) < 1e-12
+assert d["parameter"] == "gap" and d["min"] >= 0 and d["redrawn"] > 0 and y["redrawn_draws"] == d["redrawn"], y
+assert y["invalid_units"] == 0 and y["valid_units"] == 1000 and y["warning"] is None, y
+assert rows[("gap-ranged", "yield")]["redrawn_draws"] == str(d["redrawn"])
+assert "%d draws outside redrawn" % d["redrawn"] in txt
+assert rows[("gap-ranged", "yield")]["invalid_units"] == "0" and rows[("gap-ranged", "yield")]["warning"] == ""
+
+# Invalid units: counted apart, out of the shares, a warning in every format.
+y = F["gap-unranged"]["yield"]
+n = y["invalid_units"]
+assert n > 0 and y["valid_units"] + n == 1000 and y["drawn"][0]["min"] < 0, y
+passing = y["per_verdict"]["clear"]["count"] + y["per_verdict"]["marginal"]["count"]
+assert sum(v["count"] for v in y["per_verdict"].values()) == y["valid_units"], y["per_verdict"]
+assert "input-error" not in y["per_verdict"]
+assert abs(y["passing"]["fraction"] - passing / y["valid_units"]) < 1e-15, y["passing"]
+w = "%d of 1000 units could not be evaluated (invalid units, left out of every share)" % n
+assert y["warning"].startswith(w), y["warning"]
+r = rows[("gap-unranged", "yield")]
+assert r["invalid_units"] == str(n) and r["valid_units"] == str(1000 - n) and r["warning"].startswith(w), r
+assert re.search(r"^    warning   " + re.escape(w), txt, re.M), "text warning line"
+md_rows = [l for l in md.split("\n") if l.startswith("| gap-unranged | warning | ")]
+assert len(md_rows) == 1 and md_rows[0][len("| gap-unranged | warning | "):].startswith(w), "Markdown warning row"
+assert '<p class="study-warning"><strong>Warning:</strong> ' + w in html, "HTML warning"
+for t in (txt, md, html, open(stem + ".families.csv").read()):
+    assert "spreads" not in t
+print("families: ok")
+PY
+check "family studies: binding floor, plotted series, ranged draws and invalid units in every format" 0 $?
 ls -A "$tmp/scr" | grep -q '^\.' ; check "screen: no temporary file left" 1 $?
 "$py" -c '
 import csv, json, math, sys
@@ -293,7 +416,7 @@ done
 # survey schema's $defs/floors, referenced by file name: the resolver gets
 # that file from a local store and may not fetch anything.
 for doc in "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" \
-           "$tmp/scr/broken-entries.screen.json"; do
+           "$tmp/scr/broken-entries.screen.json" "$tmp/fam/families.screen.json"; do
     "$py" -c '
 import json, sys, jsonschema
 from jsonschema.validators import validator_for

@@ -14,9 +14,13 @@
 TestSuite(families_csv, .init = ps_test_init);
 
 static const char *const want_cols[] = {
-    "family",           "study",   "parameter", "state",         "value",        "passes",
-    "ms_floor_passing", "ms_floor_failing",     "samples",       "seed",         "pass_fraction",
-    "pass_ci_low",      "pass_ci_high",         "most_responsible", "shift_in_spreads",
+    "family",           "study",           "parameter",         "state",
+    "value",            "passes",          "binding",           "binding_allowed",
+    "ms_floor_passing", "ms_floor_failing", "mt_floor_passing", "mt_floor_failing",
+    "effort_floor_passing", "effort_floor_failing", "samples",   "seed",
+    "valid_units",      "invalid_units",   "pass_fraction",     "pass_ci_low",
+    "pass_ci_high",     "most_responsible", "shift_in_std_devs", "redrawn_draws",
+    "warning",
 };
 enum { N_COLS = sizeof want_cols / sizeof want_cols[0] };
 
@@ -45,8 +49,9 @@ static ps_family_result *add_family(ps_run *r, const char *id)
     return fr;
 }
 
-/* Three families: two boundaries (found, non-monotone) and a yield with a
- * culprit; an evaluation error and no yield; a yield with no culprit. */
+/* Three families: two boundaries (found with the Mt floor binding,
+ * non-monotone) and a yield with a culprit, redrawn draws and invalid
+ * units; an evaluation error and no yield; a yield with no culprit. */
 static void build_run(ps_run *r)
 {
     ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT};
@@ -60,12 +65,17 @@ static void build_run(ps_run *r)
     a->param[2] = param("g", 9.81, 0);
     a->n_bound = 2;
     a->bound[0] = (ps_boundary){.param = 0, .state = PS_BOUND_FOUND, .value = 0.00505136715, .pass_below = false,
-                                .ms_pass = 1.99999999998599, .ms_fail = 2.00000000010089, .n_curve = 6};
+                                .binding = PS_QTY_MT, .ms_allowed = 2, .mt_allowed = 1.25, .effort_allowed = NAN,
+                                .ms_pass = 1.3372264, .ms_fail = 1.3372265, .mt_pass = 1.24999999998599,
+                                .mt_fail = 1.25000000010089, .effort_pass = 9.8204166, .effort_fail = 9.8204167,
+                                .n_curve = 6};
     a->bound[1] = (ps_boundary){.param = 1, .state = PS_BOUND_NON_MONOTONE, .value = 0.0123, .ms_pass = 3.75,
                                 .n_changes = 2, .change_lo = {20, 50}, .change_hi = {30, 60}, .n_curve = 3};
     a->has_yield = true;
-    a->yield = (ps_yield){.samples = 2000, .seed = 4294967295UL, .pass_frac = 0.9515, .pass_lo = 0.94138,
-                          .pass_hi = 0.96049, .culprit = 0, .culprit_shift = -2.1837};
+    a->yield = (ps_yield){.samples = 2000, .seed = 4294967295UL, .valid = 1928, .invalid = 72, .pass_frac = 0.9515,
+                          .pass_lo = 0.94138, .pass_hi = 0.96049, .culprit = 0, .culprit_shift = -2.1837,
+                          .redrawn_total = 45};
+    snprintf(a->yield.first_error, sizeof a->yield.first_error, "poles: \"sqrt(2*g/gap)\": invalid operation");
 
     ps_family_result *b = add_family(r, "broken");
     b->n_params = 1;
@@ -78,8 +88,8 @@ static void build_run(ps_run *r)
     c->n_params = 1;
     c->param[0] = param("c", 3.0, 0);
     c->has_yield = true;
-    c->yield = (ps_yield){.samples = 500, .seed = 1, .pass_frac = 1.0, .pass_lo = 0.992385, .pass_hi = 1.0,
-                          .culprit = -1, .culprit_shift = NAN};
+    c->yield = (ps_yield){.samples = 500, .seed = 1, .valid = 500, .pass_frac = 1.0, .pass_lo = 0.992385,
+                          .pass_hi = 1.0, .culprit = -1, .culprit_shift = NAN};
 }
 
 static char *render(const ps_run *r, size_t *len)
@@ -142,17 +152,25 @@ Test(families_csv, one_row_per_study_read_back_by_python)
     for (size_t c = 0; c < N_COLS; c++)
         cr_assert_str_eq(t.cell[0][c], want_cols[c]);
 
-    /* A found boundary: value, side and the floors either side; no yield cells. */
+    /* A found boundary: value, side, the binding floor with its allowed value
+     * and the three floors either side; no yield cells. */
     cr_assert_str_eq(cell(&t, 1, "family"), tricky_id);
     cr_assert_str_eq(cell(&t, 1, "study"), "boundary");
     cr_assert_str_eq(cell(&t, 1, "parameter"), "gap");
     cr_assert_str_eq(cell(&t, 1, "state"), "found");
     assert_near(cell(&t, 1, "value"), 0.00505136715, 1e-9);
     cr_assert_str_eq(cell(&t, 1, "passes"), "above");
-    assert_near(cell(&t, 1, "ms_floor_passing"), 1.99999999998599, 1e-9);
-    assert_near(cell(&t, 1, "ms_floor_failing"), 2.00000000010089, 1e-9);
-    static const char *const yield_cols[] = {"samples",      "seed",           "pass_fraction",   "pass_ci_low",
-                                             "pass_ci_high", "most_responsible", "shift_in_spreads"};
+    cr_assert_str_eq(cell(&t, 1, "binding"), "Mt");
+    assert_near(cell(&t, 1, "binding_allowed"), 1.25, 0);
+    assert_near(cell(&t, 1, "ms_floor_passing"), 1.3372264, 1e-9);
+    assert_near(cell(&t, 1, "ms_floor_failing"), 1.3372265, 1e-9);
+    assert_near(cell(&t, 1, "mt_floor_passing"), 1.24999999998599, 1e-9);
+    assert_near(cell(&t, 1, "mt_floor_failing"), 1.25000000010089, 1e-9);
+    assert_near(cell(&t, 1, "effort_floor_passing"), 9.8204166, 1e-9);
+    assert_near(cell(&t, 1, "effort_floor_failing"), 9.8204167, 1e-9);
+    static const char *const yield_cols[] = {"samples",       "seed",         "valid_units",      "invalid_units",
+                                             "pass_fraction", "pass_ci_low",  "pass_ci_high",     "most_responsible",
+                                             "shift_in_std_devs", "redrawn_draws", "warning"};
     for (size_t i = 0; i < sizeof yield_cols / sizeof yield_cols[0]; i++) {
         cr_assert_str_empty(cell(&t, 1, yield_cols[i]), "%s", yield_cols[i]);
         cr_assert_str_empty(cell(&t, 2, yield_cols[i]), "%s", yield_cols[i]);
@@ -162,8 +180,11 @@ Test(families_csv, one_row_per_study_read_back_by_python)
     /* Not monotone: state only, even where the record holds stray numbers. */
     cr_assert_str_eq(cell(&t, 2, "parameter"), "coil");
     cr_assert_str_eq(cell(&t, 2, "state"), "non-monotone");
-    static const char *const found_cols[] = {"value", "passes", "ms_floor_passing", "ms_floor_failing"};
-    for (size_t i = 0; i < 4; i++) {
+    static const char *const found_cols[] = {"value",            "passes",           "binding",
+                                             "binding_allowed",  "ms_floor_passing", "ms_floor_failing",
+                                             "mt_floor_passing", "mt_floor_failing", "effort_floor_passing",
+                                             "effort_floor_failing"};
+    for (size_t i = 0; i < sizeof found_cols / sizeof *found_cols; i++) {
         cr_assert_str_empty(cell(&t, 2, found_cols[i]), "%s", found_cols[i]);
         cr_assert_str_empty(cell(&t, 4, found_cols[i]), "%s", found_cols[i]);
     }
@@ -171,9 +192,11 @@ Test(families_csv, one_row_per_study_read_back_by_python)
     /* The yield of the first family: sample count, seed, share, interval, culprit. */
     cr_assert_str_eq(cell(&t, 3, "family"), tricky_id);
     cr_assert_str_eq(cell(&t, 3, "study"), "yield");
-    static const char *const bound_cols[] = {"parameter", "state", "value", "passes", "ms_floor_passing",
-                                             "ms_floor_failing"};
-    for (size_t i = 0; i < 6; i++) {
+    static const char *const bound_cols[] = {"parameter",        "state",            "value",
+                                             "passes",           "binding",          "binding_allowed",
+                                             "ms_floor_passing", "ms_floor_failing", "mt_floor_passing",
+                                             "mt_floor_failing", "effort_floor_passing", "effort_floor_failing"};
+    for (size_t i = 0; i < sizeof bound_cols / sizeof *bound_cols; i++) {
         cr_assert_str_empty(cell(&t, 3, bound_cols[i]), "%s", bound_cols[i]);
         cr_assert_str_empty(cell(&t, 5, bound_cols[i]), "%s", bound_cols[i]);
     }
@@ -182,8 +205,13 @@ Test(families_csv, one_row_per_study_read_back_by_python)
     assert_near(cell(&t, 3, "pass_fraction"), 0.9515, 1e-9);
     assert_near(cell(&t, 3, "pass_ci_low"), 0.94138, 1e-9);
     assert_near(cell(&t, 3, "pass_ci_high"), 0.96049, 1e-9);
+    cr_assert_str_eq(cell(&t, 3, "valid_units"), "1928");
+    cr_assert_str_eq(cell(&t, 3, "invalid_units"), "72");
+    cr_assert_str_eq(cell(&t, 3, "redrawn_draws"), "45");
     cr_assert_str_eq(cell(&t, 3, "most_responsible"), "gap");
-    assert_near(cell(&t, 3, "shift_in_spreads"), -2.1837, 1e-9);
+    assert_near(cell(&t, 3, "shift_in_std_devs"), -2.1837, 1e-9);
+    cr_assert_str_eq(cell(&t, 3, "warning"), "72 of 2000 units could not be evaluated (invalid units, left out of "
+                                             "every share); the first: poles: \"sqrt(2*g/gap)\": invalid operation");
 
     /* The evaluation error: its state, nothing else. */
     cr_assert_str_eq(cell(&t, 4, "family"), "broken");
@@ -198,7 +226,10 @@ Test(families_csv, one_row_per_study_read_back_by_python)
     assert_near(cell(&t, 5, "pass_fraction"), 1.0, 0);
     assert_near(cell(&t, 5, "pass_ci_low"), 0.992385, 1e-9);
     cr_assert_str_empty(cell(&t, 5, "most_responsible"));
-    cr_assert_str_empty(cell(&t, 5, "shift_in_spreads"));
+    cr_assert_str_empty(cell(&t, 5, "shift_in_std_devs"));
+    cr_assert_str_eq(cell(&t, 5, "invalid_units"), "0");
+    cr_assert_str_eq(cell(&t, 5, "redrawn_draws"), "0");
+    cr_assert_str_empty(cell(&t, 5, "warning"), "no warning when every unit could be evaluated");
 
     free(text);
     ps_run_free(&r);

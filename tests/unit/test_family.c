@@ -1,6 +1,8 @@
 /* test_family.c - plant families: expressions against hand values, errors
- * with positions, a feasibility boundary known in closed form, a
- * non-monotone sweep, and a tolerance yield against the normal CDF. */
+ * with positions, feasibility boundaries known in closed form (which floor
+ * binds there: Ms, Mt, effort; what the figure draws), a non-monotone sweep,
+ * a tolerance yield against the normal CDF, declared ranges (redrawn draws,
+ * their errors) and invalid units counted apart. */
 #include <criterion/criterion.h>
 #include <gsl/gsl_cdf.h>
 #include <math.h>
@@ -8,6 +10,7 @@
 #include <string.h>
 
 #include "catalog/catalog.h"
+#include "report/reports.h"
 #include "screen/study.h"
 #include "support.h"
 
@@ -181,4 +184,263 @@ Test(family, yield_matches_the_normal_cdf)
     cr_assert_eq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
     read_pendulum("0.14", "0.01", "4000", "7");
     cr_assert_neq(res.yield.count[PS_VERDICT_CLEAR] + res.yield.count[PS_VERDICT_MARGINAL], first);
+}
+
+/* ---- which floor binds at a boundary ----------------------------------- */
+
+/* One real unstable pole p behind a delay theta: every stabilizing loop has
+ * ||T|| >= e^{p theta} (Skogestad & Postlethwaite, Multivariable Feedback
+ * Control, 2nd ed. 2005, ch. 5), so against the allowed Mt 1.25 the delay
+ * must stay below ln(1.25)/p. The band floor exp(pi p / W_a) (Stein 2003)
+ * = exp(pi 3.7 / 40) = 1.337 keeps the Ms share (allowed 2) near 0.42: the
+ * Mt floor, not the Ms floor, sets the verdict there. */
+static void read_delay_pole(void)
+{
+    read_family("defaults:\n  rolloff_start: 40\n  rolloff_gain: 0\n"
+                "families:\n  - id: delay-pole\n"
+                "    parameters: {p: 3.7, theta: {nominal: 0.03, sweep: {from: 0.005, to: 0.12, count: 9}}}\n"
+                "    poles: [p, -60]\n    gain: 60\n    delay: theta\n",
+                true);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+}
+
+Test(family, mt_floor_binds_at_a_delay_boundary)
+{
+    read_delay_pole();
+    const ps_boundary *b = &res.bound[0];
+    double want = log(1.25) / 3.7, band = exp(M_PI * 3.7 / 40);
+    cr_assert_eq(b->state, PS_BOUND_FOUND, "%s", ps_bound_state_name(b->state));
+    cr_assert(b->pass_below);
+    cr_assert_float_eq(b->value, want, 1e-6 * want, "boundary %.12g, ln(1.25)/p = %.12g", b->value, want);
+    cr_assert_eq(b->binding, PS_QTY_MT, "binding %s", ps_quantity_key(b->binding));
+    cr_assert_float_eq(b->mt_allowed, 1.25, 0);
+    cr_assert_float_eq(b->ms_allowed, 2.0, 0);
+    cr_assert(isnan(b->effort_allowed), "no effort requirement");
+    cr_assert_leq(b->mt_pass, 1.25);
+    cr_assert_gt(b->mt_fail, 1.25);
+    cr_assert_float_eq(b->mt_pass, 1.25, 1e-8);
+    /* the Ms floor there is the band floor, far below the allowed 2 */
+    cr_assert_float_eq(b->ms_pass, band, 1e-6 * band, "Ms floor %.9g, band floor %.9g", b->ms_pass, band);
+    cr_assert_lt(b->ms_fail, 2.0);
+    /* the figure draws the Mt floor, and every failing sweep point is above 1.25 */
+    cr_assert_eq(b->plotted, PS_QTY_MT, "plotted %s", ps_quantity_key(b->plotted));
+    cr_assert_float_eq(ps_boundary_plotted_allowed(b), 1.25, 0);
+    size_t fails = 0;
+    for (size_t k = 0; k < b->n_curve; k++) {
+        double mt = exp(3.7 * b->curve_x[k]);
+        cr_assert_float_eq(b->curve_mt[k], fmax(mt, 1.0), 1e-6 * mt, "Mt floor at theta %g", b->curve_x[k]);
+        cr_assert_eq(ps_boundary_plotted_value(b, k), b->curve_mt[k]);
+        if (!b->curve_pass[k]) {
+            fails++;
+            cr_assert_gt(b->curve_mt[k], 1.25);
+            cr_assert_lt(b->curve_ms[k], 2.0, "a failing point below the allowed Ms at theta %g", b->curve_x[k]);
+        }
+    }
+    cr_assert_geq(fails, 3);
+    char text[700];
+    ps_boundary_text(&res, b, text, sizeof text);
+    cr_assert(strstr(text, "theta must stay below 0.0603091") && strstr(text, "set by the Mt floor: 1.25 passing, "
+                                                                              "1.25 failing, allowed 1.25"),
+              "%s", text);
+    cr_assert_null(strstr(text, "Ms floor"), "%s", text);
+}
+
+/* P = k / ((s - p)(s + 60)): its stable mirror G_s = k / ((s + p)(s + 60))
+ * gives ||C S|| >= 1/|G_s(p)| = 2 p (p + 60) / k (S&P 2nd ed. ch. 5, input
+ * usage). Against an allowed effort E the gain must stay above
+ * 2 p (p + 60) / E; the Ms and Mt shares stay below 0.5 there. */
+Test(family, effort_floor_binds_at_a_gain_boundary)
+{
+    read_family("defaults:\n  rolloff_start: 40\n  rolloff_gain: 0\n"
+                "families:\n  - id: weak-drive\n"
+                "    parameters: {p: 3.7, k: {nominal: 300, sweep: {from: 50, to: 800, count: 7, scale: log}}}\n"
+                "    poles: [p, -60]\n    gain: k\n    effort_allowed: 2.385\n",
+                true);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    const ps_boundary *b = &res.bound[0];
+    double want = 2 * 3.7 * 63.7 / 2.385;
+    cr_assert_eq(b->state, PS_BOUND_FOUND, "%s", ps_bound_state_name(b->state));
+    cr_assert_not(b->pass_below);
+    cr_assert_float_eq(b->value, want, 1e-6 * want, "boundary %.12g, 2p(p+60)/E = %.12g", b->value, want);
+    cr_assert_eq(b->binding, PS_QTY_EFFORT, "binding %s", ps_quantity_key(b->binding));
+    cr_assert_float_eq(b->effort_allowed, 2.385, 0);
+    cr_assert_leq(b->effort_pass, 2.385);
+    cr_assert_gt(b->effort_fail, 2.385);
+    cr_assert_eq(b->plotted, PS_QTY_EFFORT, "plotted %s", ps_quantity_key(b->plotted));
+    char text[700];
+    ps_boundary_text(&res, b, text, sizeof text);
+    cr_assert(strstr(text, "set by the effort floor (peak |C S|): 2.385 passing, 2.385 failing, allowed 2.385"), "%s",
+              text);
+}
+
+/* Failing at both ends for different floors: small x, the delay's Mt floor
+ * e^{0.4 (1 - x)} above 1.25; large x, the band floor exp(pi a / 40),
+ * a = 2 + 10 x, above the allowed Ms 2 while the Mt share near x = 0.7 stays
+ * below 1. No floor lies above its line at every failing point: the figure
+ * draws the severity against 1. */
+Test(family, severity_is_plotted_when_the_failing_floor_changes)
+{
+    read_family("defaults:\n  rolloff_start: 40\n  rolloff_gain: 0\n"
+                "families:\n  - id: two-ends\n"
+                "    parameters: {x: {nominal: 0.5, sweep: {from: 0, to: 1, count: 11}}}\n"
+                "    poles: [\"2 + 10*x\", -60]\n    gain: 60\n    delay: \"0.4*(1 - x)/(2 + 10*x)\"\n",
+                true);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    const ps_boundary *b = &res.bound[0];
+    cr_assert_eq(b->state, PS_BOUND_NON_MONOTONE, "%s", ps_bound_state_name(b->state));
+    cr_assert_eq(b->plotted, PS_QTY_SEVERITY, "plotted %s", ps_quantity_key(b->plotted));
+    cr_assert_float_eq(ps_boundary_plotted_allowed(b), 1.0, 0);
+    bool ms_only = false, mt_only = false;
+    for (size_t k = 0; k < b->n_curve; k++) {
+        if (b->curve_pass[k])
+            continue;
+        cr_assert_gt(ps_boundary_plotted_value(b, k), 1.0);
+        ms_only |= b->curve_ms[k] > 2.0 && b->curve_mt[k] <= 1.25;
+        mt_only |= b->curve_mt[k] > 1.25 && b->curve_ms[k] <= 2.0;
+    }
+    cr_assert(ms_only && mt_only, "failing points of both kinds");
+}
+
+/* ---- declared ranges and invalid units -------------------------------------- */
+
+/* A levitated carrier, p = sqrt(2 g / gap): the gap drawn normal with sigma
+ * half its nominal, so a draw falls below 0 with probability Phi(-2) =
+ * 0.02275 (GSL's normal CDF), where sqrt(2 g / gap) is not a number. */
+static void read_gap(const char *range, const char *samples)
+{
+    char text[1024];
+    snprintf(text, sizeof text,
+             "families:\n  - id: gap\n"
+             "    parameters:\n"
+             "      gap: {nominal: 0.006, tolerance: {normal: 0.003}%s}\n"
+             "      g: 9.81\n"
+             "    poles: [\"sqrt(2*g/gap)\", \"-sqrt(2*g/gap)\", -300]\n"
+             "    gain: \"-2*g/gap*300\"\n"
+             "    rolloff_start: 600\n"
+             "    yield: {samples: %s, seed: 2385}\n",
+             range, samples);
+    read_family(text, true);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+}
+
+/* With min: 0 no unit is drawn below 0: not one invalid unit (a negative
+ * gap would make sqrt(2 g / gap) invalid), the least drawn gap >= 0, and
+ * the draws redrawn about as many as a truncated normal needs: for n kept
+ * draws the rejected ones are negative binomial, mean n q / (1 - q) and
+ * standard deviation sqrt(n q) / (1 - q), q = Phi(-2); within 5 of those. */
+Test(family, ranged_draws_stay_inside_and_are_counted)
+{
+    read_gap(", min: 0", "4000");
+    const ps_yield *y = &res.yield;
+    cr_assert_eq(res.param[0].has_min, true);
+    cr_assert_eq(y->invalid, 0, "%zu invalid units: %s", y->invalid, y->first_error);
+    cr_assert_eq(y->valid, 4000);
+    cr_assert_geq(y->drawn_min[0], 0.0, "least gap drawn %.9g", y->drawn_min[0]);
+    double q = gsl_cdf_ugaussian_P(-2.0), n = 4000;
+    double mean = n * q / (1 - q), sd = sqrt(n * q) / (1 - q);
+    cr_assert(fabs((double)y->redrawn[0] - mean) <= 5 * sd, "%zu redrawn, expected %.1f +- %.1f", y->redrawn[0],
+              mean, sd);
+    cr_assert_gt(y->redrawn[0], 0, "draws below 0 happened and were redrawn");
+    cr_assert_eq(y->redrawn_total, y->redrawn[0]);
+    cr_assert_eq(y->redrawn[1], 0, "g has no tolerance");
+    cr_assert_float_eq(res.param[0].range_mass, 1 - q, 1e-12);
+    char text[1400];
+    ps_yield_text(&res, text, sizeof text);
+    char want[120];
+    snprintf(want, sizeof want, "gap drawn from its normal distribution truncated to >= 0 (97.7 %% of it): %zu draws "
+             "outside redrawn", y->redrawn[0]);
+    cr_assert(strstr(text, want), "%s\nwanted: %s", text, want);
+    ps_yield_warning_text(&res, text, sizeof text);
+    cr_assert_str_empty(text);
+}
+
+/* Without a range the same draws below 0 are invalid units: counted apart
+ * (binomial, n Phi(-2) within 5 standard deviations), in no share, and
+ * named in a warning line. */
+Test(family, invalid_units_are_counted_apart)
+{
+    read_gap("", "4000");
+    const ps_yield *y = &res.yield;
+    double q = gsl_cdf_ugaussian_P(-2.0), n = 4000;
+    cr_assert(fabs((double)y->invalid - n * q) <= 5 * sqrt(n * q * (1 - q)), "%zu invalid, expected %.1f",
+              y->invalid, n * q);
+    cr_assert_eq(y->valid + y->invalid, 4000);
+    cr_assert_eq(y->count[PS_VERDICT_UNREAD], 0);
+    size_t sum = 0;
+    for (int v = 0; v < PS_VERDICT_COUNT; v++)
+        sum += y->count[v];
+    cr_assert_eq(sum, y->valid, "the verdict counts cover the valid units only");
+    double pass = (double)(y->count[PS_VERDICT_CLEAR] + y->count[PS_VERDICT_MARGINAL]);
+    cr_assert_float_eq(y->pass_frac, pass / (double)y->valid, 1e-15);
+    cr_assert_float_eq(y->frac[PS_VERDICT_REDESIGN], (double)y->count[PS_VERDICT_REDESIGN] / (double)y->valid, 1e-15);
+    cr_assert_lt(y->drawn_min[0], 0.0);
+    cr_assert_eq(y->redrawn_total, 0);
+    cr_assert(strstr(y->first_error, "sqrt(2*g/gap)") && strstr(y->first_error, "gap=-"), "%s", y->first_error);
+    char text[1400], want[80];
+    ps_yield_warning_text(&res, text, sizeof text);
+    snprintf(want, sizeof want, "%zu of 4000 units could not be evaluated (invalid units", y->invalid);
+    cr_assert(strstr(text, want) && strstr(text, "sqrt(2*g/gap)"), "%s", text);
+    ps_yield_text(&res, text, sizeof text);
+    snprintf(want, sizeof want, "of the %zu units that could be evaluated pass", y->valid);
+    cr_assert(strstr(text, want), "%s", text);
+    /* the culprit's shift is in standard deviations of its drawn values */
+    cr_assert_eq(y->culprit, 0);
+    snprintf(want, sizeof want, "driven most by gap (mean of failing units %+.2f standard deviations from", y->culprit_shift);
+    cr_assert(strstr(text, want) && !strstr(text, "spread"), "%s", text);
+}
+
+typedef struct range_case {
+    const char *param;    /* the parameter's mapping */
+    const char *after;    /* the error points just after this text */
+    const char *field, *words;
+} range_case;
+
+Test(family, range_errors_name_line_field_and_expectation)
+{
+    static const range_case cases[] = {
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.01, max: 0.002}", "max: ", "max",
+         "max 0.002 must be above min 0.01"},
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.006, max: 0.006}", "max: ", "max", "must be above min"},
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.0075}", "min: ", "min",
+         "nominal 0.006 is outside its range >= 0.0075"},
+        {"{nominal: 0.006, tolerance: {uniform: 0.003}, max: 0.005}", "max: ", "max",
+         "nominal 0.006 is outside its range <= 0.005"},
+        {"{nominal: 0.006, min: 0}", "min: ", "min", "has no tolerance"},
+        {"{nominal: 0.006, sweep: [0.004, 0.008], max: 0.01}", "max: ", "max", "has no tolerance"},
+        {"{nominal: 0.006, sweep: [-0.002, 0.008], tolerance: {normal: 0.001}, min: 0}", "sweep: ", "sweep",
+         "sweep value -0.002 is outside its range >= 0"},
+        /* [0.006, 0.00602] holds Phi(0.02/3) - 1/2 = 0.266 % of N(0.006, 0.003) (GSL's normal CDF) */
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: 0.006, max: 0.00602}", "min: ", "min",
+         "the range [0.006, 0.00602] holds 0.266 % of its tolerance distribution"},
+        {"{nominal: 0.006, tolerance: {normal: 0.003}, min: zero}", "min: ", "min", "min of 'gap': expected"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof *cases; i++) {
+        char text[512];
+        snprintf(text, sizeof text,
+                 "families:\n  - id: f\n    parameters:\n      gap: %s\n    poles: [\"-1/gap\"]\n    gain: 1\n",
+                 cases[i].param);
+        /* "      gap: " is 11 characters: the mapping opens at column 12 */
+        const char *at = strstr(cases[i].param, cases[i].after);
+        cr_assert_not_null(at);
+        size_t col = 12 + (size_t)(at - cases[i].param) + strlen(cases[i].after);
+        read_family(text, false);
+        cr_assert_eq(fam_status, PS_ERR_INPUT, "case %zu accepted: %s", i, cases[i].param);
+        cr_expect_eq(fam_diag.line, 4, "case %zu: line %zu", i, fam_diag.line);
+        cr_expect_eq(fam_diag.col, col, "case %zu: column %zu, expected %zu (%s)", i, fam_diag.col, col,
+                     fam_diag.text);
+        cr_expect_str_eq(fam_diag.field, cases[i].field, "case %zu: field", i);
+        cr_expect(strstr(fam_diag.text, cases[i].words) && strstr(fam_diag.text, "'gap'"), "case %zu: %s", i,
+                  fam_diag.text);
+    }
+    /* a range holding Phi(0.04) - 1/2 = 1.6 % passes the mass rule; a nominal on the range's end is accepted */
+    read_family("families:\n  - id: f\n    parameters:\n      gap: {nominal: 0.006, tolerance: {normal: 0.003}, "
+                "min: 0.006, max: 0.00612}\n    poles: [\"-1/gap\"]\n    gain: 1\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_float_eq(fam.param[0].range_mass, gsl_cdf_ugaussian_P(0.04) - 0.5, 1e-12);
+    read_family("families:\n  - id: f\n    parameters:\n      gap: {nominal: 0.006, tolerance: {uniform: 0.003}, "
+                "min: 0.006}\n    poles: [\"-1/gap\"]\n    gain: 1\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_float_eq(fam.param[0].range_mass, 0.5, 1e-15);
 }
