@@ -155,6 +155,19 @@ for line in re.findall(r"^    - (.*)$", text, re.M):
 assert "e+03 ms" not in text and "an unstable poles" not in text
 PY
 check "claims: needs-bandwidth, time to double, rules of thumb, effort lever, movable cancellation" 0 $?
+# A plant that fails with no band requirement at all gets no band edge: no band
+# makes it pass (strider-d fails on its Mt floor, whatever the band).
+"$py" - "$tmp/claims/claims.screen.json" "$src/reports/demo-variants.screen.json" <<'PY'
+import json, sys
+seen = 0
+for f in sys.argv[1:]:
+    for p in json.load(open(f))["plants"]:
+        if p["verdict"] == "redesign" and p["requirements"]["band_edge"] is None:
+            assert p["targets"]["band_edge"]["state"] == "no-value-passes", (p["id"], p["targets"]["band_edge"])
+            seen += 1
+assert seen >= 4, seen
+PY
+check "band edge target: none for a plant that fails without any band" 0 $?
 "$ps" screen -o "$tmp/scr2" --gate never "$cf" >/dev/null 2>&1
 for ext in txt csv json md html; do
     cmp -s "$tmp/scr/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
