@@ -3,9 +3,10 @@
 #include "screen/attribution.h"
 
 #include <math.h>
-#include <stdarg.h>
 #include <stdio.h>
 #include <string.h>
+
+#include "core/text.h"
 
 const char *ps_peak_name(ps_peak p)
 {
@@ -145,32 +146,13 @@ void ps_attribution_compute(ps_limits_ws *lws, ps_analysis *scratch, const ps_an
 
 /* ---- the sentence ---- */
 
-typedef struct text {
-    char *buf;
-    size_t n, len;
-} text;
-
-static void put(text *t, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
-
-static void put(text *t, const char *fmt, ...)
-{
-    if (t->len >= t->n)
-        return;
-    va_list ap;
-    va_start(ap, fmt);
-    int w = vsnprintf(t->buf + t->len, t->n - t->len, fmt, ap);
-    va_end(ap);
-    if (w > 0)
-        t->len = t->len + (size_t)w < t->n ? t->len + (size_t)w : t->n - 1;
-}
-
 /* A time in ms below one second, in s from there on. */
-static void put_time(text *t, double s)
+static void put_time(ps_text *t, double s)
 {
     if (s < 1.0)
-        put(t, "%.3g ms", s * 1e3);
+        ps_text_put(t, "%.3g ms", s * 1e3);
     else
-        put(t, "%.3g s", s);
+        ps_text_put(t, "%.3g s", s);
 }
 
 /* The RHP pole of largest magnitude (first of a pair: im >= 0). */
@@ -189,18 +171,18 @@ static const ps_root *dominant(const ps_analysis *an)
 
 /* "the unstable pole 7 rad/s", "the unstable pole pair 0.5+-6j rad/s",
  * "the unstable poles, dominant 7 rad/s". */
-static void put_poles(text *t, const ps_analysis *an)
+static void put_poles(ps_text *t, const ps_analysis *an)
 {
     const ps_root *d = dominant(an);
     if (!d)
         return;
     bool pair = d->v.im > 0;
     bool more = an->n_rhp_poles > (pair ? 2u : 1u);
-    put(t, "%s", more ? "the unstable poles, dominant " : pair ? "the unstable pole pair " : "the unstable pole ");
+    ps_text_put(t, "%s", more ? "the unstable poles, dominant " : pair ? "the unstable pole pair " : "the unstable pole ");
     if (pair)
-        put(t, "%.3g+-%.3gj rad/s", d->v.re, d->v.im);
+        ps_text_put(t, "%.3g+-%.3gj rad/s", d->v.re, d->v.im);
     else
-        put(t, "%.3g rad/s", d->v.re);
+        ps_text_put(t, "%.3g rad/s", d->v.re);
 }
 
 /* The RHP zero nearest an RHP pole (relative to the pole), for the zero's words. */
@@ -238,38 +220,38 @@ static double nearest_zero(const ps_analysis *an, const ps_root **zero, const ps
 /* A zero near a pole is named with its distance when within half the pole's size. */
 #define NEAR_ZERO_SHARE 0.5
 
-static void put_cplx(text *t, ps_cplx v)
+static void put_cplx(ps_text *t, ps_cplx v)
 {
     if (v.im != 0)
-        put(t, "%.3g+-%.3gj rad/s", v.re, fabs(v.im));
+        ps_text_put(t, "%.3g+-%.3gj rad/s", v.re, fabs(v.im));
     else
-        put(t, "%.3g rad/s", v.re);
+        ps_text_put(t, "%.3g rad/s", v.re);
 }
 
 /* One factor with its value; returns whether the words named an unstable pole. */
-static bool put_factor(text *t, ps_factor f, const ps_analysis *an, const ps_requirements *q)
+static bool put_factor(ps_text *t, ps_factor f, const ps_analysis *an, const ps_requirements *q)
 {
     switch (f) {
     case PS_FACTOR_DELAY:
-        put(t, "delay ");
+        ps_text_put(t, "delay ");
         put_time(t, an->delay);
         return false;
     case PS_FACTOR_ZEROS: {
         const ps_root *z, *p;
         double rel = nearest_zero(an, &z, &p);
         bool one = an->n_rhp_zeros == (z->v.im != 0 ? 2u : 1u);
-        put(t, "%s", one ? (z->v.im != 0 ? "RHP zero pair " : "RHP zero ") : "RHP zeros, among them ");
+        ps_text_put(t, "%s", one ? (z->v.im != 0 ? "RHP zero pair " : "RHP zero ") : "RHP zeros, among them ");
         put_cplx(t, z->v);
         if (p && rel < NEAR_ZERO_SHARE) {
-            put(t, " (%.2g %% from the unstable pole%s ", 100 * rel, p->v.im != 0 ? " pair" : "");
+            ps_text_put(t, " (%.2g %% from the unstable pole%s ", 100 * rel, p->v.im != 0 ? " pair" : "");
             put_cplx(t, p->v);
-            put(t, ")");
+            ps_text_put(t, ")");
             return true;
         }
         return false;
     }
-    case PS_FACTOR_ROLLOFF: put(t, "available bandwidth %.3g rad/s", q->wh); return false;
-    case PS_FACTOR_BAND: put(t, "required band |S| <= %.3g up to %.3g rad/s", q->eps, q->wb); return false;
+    case PS_FACTOR_ROLLOFF: ps_text_put(t, "available bandwidth %.3g rad/s", q->wh); return false;
+    case PS_FACTOR_BAND: ps_text_put(t, "required band |S| <= %.3g up to %.3g rad/s", q->eps, q->wb); return false;
     case PS_FACTOR_COUNT: break;
     }
     return false;
@@ -306,30 +288,29 @@ bool ps_cancellation_movable(const ps_analysis *an, const ps_floors *fl, bool re
 void ps_attribution_cause(const ps_attribution *a, const ps_analysis *an, const ps_requirements *q,
                           const ps_floors *fl, bool realised, char *buf, size_t n)
 {
-    text t = {buf, n, 0};
-    buf[0] = '\0';
+    ps_text t = ps_text_on(buf, n);
     if (ps_cancellation_movable(an, fl, realised)) {
         const ps_root *z, *p;
         nearest_zero(an, &z, &p);
-        put(&t, "RHP zero ");
+        ps_text_put(&t, "RHP zero ");
         put_cplx(&t, z->v);
-        put(&t, " on the unstable pole ");
+        ps_text_put(&t, " on the unstable pole ");
         put_cplx(&t, p->v);
-        put(&t, ": the mode is hidden from every controller, so none stabilizes the plant; a zero or pole moved "
+        ps_text_put(&t, ": the mode is hidden from every controller, so none stabilizes the plant; a zero or pole moved "
                 "off the other makes it stabilizable");
         return;
     }
     if (an->hidden_unstable) {
-        put(&t, "hidden unstable mode: no controller can reach or see it; the actuator or sensor must change so "
+        ps_text_put(&t, "hidden unstable mode: no controller can reach or see it; the actuator or sensor must change so "
                 "that it can");
         return;
     }
     if (fl->infinite) {
-        put(&t, "%s", fl->note[0] ? fl->note : "an infinite floor");
+        ps_text_put(&t, "%s", fl->note[0] ? fl->note : "an infinite floor");
         return;
     }
     if (a->binding == PS_PEAK_NONE) {
-        put(&t, "no floor above 1: none of the allowed peaks is used");
+        ps_text_put(&t, "no floor above 1: none of the allowed peaks is used");
         return;
     }
     /* The lead: the factors that lower the floor, largest first; when none
@@ -337,38 +318,38 @@ void ps_attribution_cause(const ps_attribution *a, const ps_analysis *an, const 
     size_t n_lead = a->n_lowering ? a->n_lowering : a->n_present;
     bool pole_named = false;
     if (a->binding == PS_PEAK_EFFORT && a->n_lowering == 0) {
-        put(&t, "stabilizing ");
+        ps_text_put(&t, "stabilizing ");
         put_poles(&t, an);
-        put(&t, " at plant gain %.3g", an->gain);
+        ps_text_put(&t, " at plant gain %.3g", an->gain);
         pole_named = true;
         n_lead = 0;
     }
     for (size_t i = 0; i < n_lead; i++) {
-        put(&t, "%s", i == 0 ? "" : i + 1 == n_lead ? " and " : ", ");
+        ps_text_put(&t, "%s", i == 0 ? "" : i + 1 == n_lead ? " and " : ", ");
         pole_named |= put_factor(&t, (ps_factor)a->order[i], an, q);
     }
     if (!pole_named && an->n_rhp_poles > 0) {
-        put(&t, n_lead ? " with " : "");
+        ps_text_put(&t, n_lead ? " with " : "");
         put_poles(&t, an);
     }
-    put(&t, ": %s %.3g against %.3g allowed", peak_words(a->binding), a->floor, a->allowed);
+    ps_text_put(&t, ": %s %.3g against %.3g allowed", peak_words(a->binding), a->floor, a->allowed);
     /* The figures: each present factor's relaxation. */
     const char *sep = " (";
     for (size_t i = 0; i < a->n_lowering; i++) {
         ps_factor f = (ps_factor)a->order[i];
-        put(&t, "%s%.3g %s", sep, a->without[f], relaxed_words(f, an));
+        ps_text_put(&t, "%s%.3g %s", sep, a->without[f], relaxed_words(f, an));
         sep = "; ";
     }
     if (a->n_lowering == 0 && a->n_present > 1)
-        put(&t, "%sno single relaxation lowers it; %.3g with all of them relaxed", sep, a->all_relaxed),
+        ps_text_put(&t, "%sno single relaxation lowers it; %.3g with all of them relaxed", sep, a->all_relaxed),
             sep = "; ";
     for (size_t i = a->n_lowering; i < a->n_present; i++) {
         ps_factor f = (ps_factor)a->order[i];
         if (a->n_lowering == 0 && a->n_present > 1)
             break;
-        put(&t, "%sunchanged %s", sep, relaxed_words(f, an));
+        ps_text_put(&t, "%sunchanged %s", sep, relaxed_words(f, an));
         sep = "; ";
     }
     if (sep[0] == ';')
-        put(&t, ")");
+        ps_text_put(&t, ")");
 }

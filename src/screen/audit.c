@@ -7,41 +7,22 @@
 #include <stdio.h>
 #include <string.h>
 
-#include <complex.h>
-
-typedef struct text {
-    char *buf;
-    size_t n, len;
-} text;
-
-static void put(text *t, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
-
-static void put(text *t, const char *fmt, ...)
-{
-    if (t->len + 1 >= t->n)
-        return;
-    va_list ap;
-    va_start(ap, fmt);
-    int w = vsnprintf(t->buf + t->len, t->n - t->len, fmt, ap);
-    va_end(ap);
-    if (w > 0)
-        t->len = t->len + (size_t)w < t->n ? t->len + (size_t)w : t->n - 1;
-}
+#include "core/text.h"
 
 /* "p = 7, 0.5+6j" : the RHP roots of one kind, full precision (both members of a pair). */
-static void put_rhp(text *t, const char *label, const ps_root *r, size_t n)
+static void put_rhp(ps_text *t, const char *label, const ps_root *r, size_t n)
 {
-    put(t, "%s =", label);
+    ps_text_put(t, "%s =", label);
     size_t k = 0;
     for (size_t i = 0; i < n; i++) {
         if (r[i].region != PS_RHP)
             continue;
-        put(t, "%s %.10g", k++ ? "," : "", r[i].v.re);
+        ps_text_put(t, "%s %.10g", k++ ? "," : "", r[i].v.re);
         if (r[i].v.im != 0)
-            put(t, "%+.10gj", r[i].v.im);
+            ps_text_put(t, "%+.10gj", r[i].v.im);
     }
     if (k == 0)
-        put(t, " none");
+        ps_text_put(t, " none");
 }
 
 static ps_audit_item *add(ps_audit *a, const char *key, const char *name, double value, const char *source,
@@ -69,10 +50,10 @@ static void set_formula(ps_audit_item *it, const char *fmt, ...)
 /* The inputs of the interpolation routes: RHP poles, RHP zeros, delay. */
 static void roots_inputs(ps_audit_item *it, const ps_analysis *an)
 {
-    text t = {it->inputs, sizeof it->inputs, 0};
+    ps_text t = ps_text_on(it->inputs, sizeof it->inputs);
     put_rhp(&t, "p", an->poles, an->n_poles);
     put_rhp(&t, "; z", an->zeros, an->n_zeros);
-    put(&t, "; theta = %.10g s", an->delay);
+    ps_text_put(&t, "; theta = %.10g s", an->delay);
 }
 
 static const char SRC_SP5[] = "Skogestad & Postlethwaite, Multivariable Feedback Control, 2nd ed. 2005, ch. 5";
@@ -171,21 +152,21 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
 {
     memset(out, 0, sizeof *out);
     ps_audit_item *it;
-    text t;
+    ps_text t;
 
     it = add(out, "bode_area", "Bode area F", fl->bode_area, "Bode 1945; " "Freudenberg & Looze, IEEE TAC 30(6), 1985",
              "closed loop stable; loop of relative degree >= 2 (degree 1 adds -pi/2 lim s L(s))");
     set_formula(it, "F = pi * sum Re p over the RHP poles (with multiplicity)");
-    t = (text){it->inputs, sizeof it->inputs, 0};
+    t = ps_text_on(it->inputs, sizeof it->inputs);
     put_rhp(&t, "p", an->poles, an->n_poles);
 
     ms_item(out, an, fl);
     mt_item(out, an, fl);
 
     it = add(out, "effort", "effort floor (peak |C S|)", fl->effort, SRC_SP5, ASSUME_IS);
-    t = (text){it->inputs, sizeof it->inputs, 0};
+    t = ps_text_on(it->inputs, sizeof it->inputs);
     put_rhp(&t, "p", an->poles, an->n_poles);
-    put(&t, "; theta = %.10g s; G_s the stable mirror k prod(s - z)/[prod_{LHP, axis}(s - q) prod_{RHP}(s + conj p)]",
+    ps_text_put(&t, "; theta = %.10g s; G_s the stable mirror k prod(s - z)/[prod_{LHP, axis}(s - q) prod_{RHP}(s + conj p)]",
         an->delay);
     if (an->n_rhp_poles == 0)
         set_formula(it, "0: no unstable pole to stabilize");
@@ -200,37 +181,37 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
              "delta = 0: G. Stein, IEEE CSM 23(4), 2003",
              "the future loop meets |L| <= delta (w_h/w)^(1+k) beyond w_h (an assumption about the controller); "
              "loop relative degree >= 2");
-    t = (text){it->inputs, sizeof it->inputs, 0};
+    t = ps_text_on(it->inputs, sizeof it->inputs);
     if (q->wh > 0) {
         set_formula(it, "exp([F + w_b ln(1/eps) - I] / (w_h - w_b)), I = w_h sum_n delta^n/(n (n(1+k) - 1)) the exact "
                         "roll-off tail (a value below 1 binds nothing)");
-        put(&t, "F = %.10g; w_b = %.10g rad/s; eps = %.10g; w_h = %.10g rad/s; delta = %.10g; k = %.10g",
+        ps_text_put(&t, "F = %.10g; w_b = %.10g rad/s; eps = %.10g; w_h = %.10g rad/s; delta = %.10g; k = %.10g",
             fl->bode_area, q->wb > 0 ? q->wb : 0.0, q->wb > 0 ? q->eps : 1.0, q->wh, q->delta, q->k);
     } else
         set_formula(it, "not applicable: no rolloff_start given");
 
     it = add(out, "ms_poisson", "Ms Poisson floor", fl->ms_poisson, SRC_FL, "|S| <= eps on [0, w_b]");
-    t = (text){it->inputs, sizeof it->inputs, 0};
+    t = ps_text_on(it->inputs, sizeof it->inputs);
     if (q->wb > 0) {
         set_formula(it, "max over the RHP zeros z = x + jy (one per pair) of (1/eps)^{Theta/(pi - Theta)} "
                         "|B_p(z)^-1|^{pi/(pi - Theta)}, Theta = atan((w_b - y)/x) + atan((w_b + y)/x); 1 without an "
                         "RHP zero");
         put_rhp(&t, "z", an->zeros, an->n_zeros);
         put_rhp(&t, "; p", an->poles, an->n_poles);
-        put(&t, "; eps = %.10g; w_b = %.10g rad/s", q->eps, q->wb);
+        ps_text_put(&t, "; eps = %.10g; w_b = %.10g rad/s", q->eps, q->wb);
     } else
         set_formula(it, "not applicable: no band requirement");
 
     it = add(out, "mt_poisson", "Mt Poisson floor", fl->mt_poisson, SRC_FL,
              "|T| <= eps_T = delta/(1 - delta) beyond w_h (from the roll-off requirement)");
-    t = (text){it->inputs, sizeof it->inputs, 0};
+    t = ps_text_on(it->inputs, sizeof it->inputs);
     if (q->wh > 0 && q->delta > 0) {
         set_formula(it, "max over the RHP poles p = x + jy of (1/eps_T)^{(pi - Theta)/Theta} "
                         "(|B_z(p)^-1| e^{x theta})^{pi/Theta}, Theta = atan((w_h - y)/x) + atan((w_h + y)/x); 1 "
                         "without an RHP pole");
         put_rhp(&t, "p", an->poles, an->n_poles);
         put_rhp(&t, "; z", an->zeros, an->n_zeros);
-        put(&t, "; theta = %.10g s; eps_T = %.10g; w_h = %.10g rad/s", an->delay, q->delta / (1 - q->delta), q->wh);
+        ps_text_put(&t, "; theta = %.10g s; eps_T = %.10g; w_h = %.10g rad/s", an->delay, q->delta / (1 - q->delta), q->wh);
     } else
         set_formula(it, q->wh > 0 ? "not applicable: rolloff_gain delta = 0 bounds |T| by 0 beyond w_h only in "
                                     "the limit, which gives no finite floor"
