@@ -129,6 +129,9 @@ assert ranks[-2:] == ["needs-bandwidth"] * 2, ranks
 ttd = P["wobble-pair"]["floors"]["time_to_double"]
 assert len(ttd) == 1 and ttd[0]["pole"] == 0.5 and ttd[0]["imag"] == 6.0, ttd
 assert abs(ttd[0]["seconds"] - math.log(2) / 0.5) < 1e-12, ttd
+ttd = P["effort-short"]["floors"]["time_to_double"]      # a real pole: ln 2 / p
+assert len(ttd) == 1 and ttd[0]["pole"] == 2.0 and ttd[0]["imag"] == 0.0, ttd
+assert abs(ttd[0]["seconds"] - math.log(2) / 2) < 1e-12, ttd
 t = P["wobble-pair"]["targets"]["unstable_pole"]
 scale = t["limit"] / t["now"]                  # every RHP pole scaled together
 m = re.search(r"time to double ([0-9.]+) (ms|s)\)", t["text"])
