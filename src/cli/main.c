@@ -12,6 +12,7 @@
 
 #include "batch/batch.h"
 #include "catalog/catalog.h"
+#include "core/text.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
 #include "report/reports.h"
@@ -542,6 +543,16 @@ static void print_value(double v)
         printf("%.10g", v);
 }
 
+/* A floor with its logarithm: past a double's range, as a power of ten. */
+static void print_big(double v, double ln)
+{
+    char b[48];
+    if (isinf(v) && v > 0 && isfinite(ln))
+        printf("%s (past a double's range; ln = %.10g)", ps_text_big(b, sizeof b, v, ln, 10), ln);
+    else
+        print_value(v);
+}
+
 static void explain_one(const ps_outcome *o, const ps_summary *s)
 {
     const ps_plant *p = o->p;
@@ -574,7 +585,7 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     for (size_t i = 0; i < audit.n; i++) {
         const ps_audit_item *it = &audit.item[i];
         printf("\n  [%s] %s = ", it->key, it->name);
-        print_value(it->value);
+        print_big(it->value, it->value_ln);
         printf("\n    formula:    %s\n", it->formula);
         if (it->inputs[0])
             printf("    inputs:     %s\n", it->inputs);
@@ -589,12 +600,16 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     if (fl->note[0])
         printf("  note: %s\n", fl->note);
     puts("\n4. Severity (share of the allowed log-peak; a floor below 1 counts as 1)");
-    printf("  [share_ms] ln(%.10g)/ln(%.10g) = ", fmax(fl->ms, 1), q->ms_allowed);
+    char big[48];
+    printf("  [share_ms] ln(%s)/ln(%.10g) = ", ps_text_big(big, sizeof big, fmax(fl->ms, 1), fl->ms_ln, 10),
+           q->ms_allowed);
     print_value(s->share_ms);
-    printf("\n  [share_mt] ln(%.10g)/ln(%.10g) = ", fmax(fl->mt, 1), q->mt_allowed);
+    printf("\n  [share_mt] ln(%s)/ln(%.10g) = ", ps_text_big(big, sizeof big, fmax(fl->mt, 1), fl->mt_ln, 10),
+           q->mt_allowed);
     print_value(s->share_mt);
     if (q->effort_allowed > 0) {
-        printf("\n  [share_effort] ln(1 + %.10g)/ln(1 + %.10g) = ", fl->effort, q->effort_allowed);
+        printf("\n  [share_effort] ln(1 + %s)/ln(1 + %.10g) = ",
+               ps_text_big(big, sizeof big, fl->effort, fl->effort_ln, 10), q->effort_allowed);
         print_value(s->share_effort);
     } else
         fputs("\n  effort: no effort_allowed given, not counted", stdout);
@@ -603,19 +618,22 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     printf(" (worst: %s)\n", s->worst);
     const ps_attribution *a = &s->attr;
     puts("\n5. What raises the binding floor (each factor relaxed alone, the floor recomputed in full)");
-    if (a->binding == PS_PEAK_NONE || !isfinite(a->floor))
+    if (a->binding == PS_PEAK_NONE || !isfinite(a->floor_ln))
         puts("  no finite binding floor above 1: nothing to take apart");
     else {
-        printf("  binding: %s floor %.10g against %.10g allowed\n", ps_peak_name(a->binding), a->floor, a->allowed);
+        printf("  binding: %s floor %s against %.10g allowed\n", ps_peak_name(a->binding),
+               ps_text_big(big, sizeof big, a->floor, a->floor_ln, 10), a->allowed);
         if (a->n_present == 0)
             puts("  the plant and its requirements have none of the factors (delay, RHP zeros, roll-off start, band)");
         for (size_t i = 0; i < a->n_present; i++) {
             ps_factor f = (ps_factor)a->order[i];
-            printf("  [without_%s] %s: %.10g (%s)\n", ps_factor_key(f), ps_factor_relaxed_words(f), a->without[f],
+            printf("  [without_%s] %s: %s (%s)\n", ps_factor_key(f), ps_factor_relaxed_words(f),
+                   ps_text_big(big, sizeof big, a->without[f], a->without_ln[f], 10),
                    i < a->n_lowering ? "lowers it: named in the cause" : "does not lower it");
         }
         if (a->n_present > 1)
-            printf("  [all_relaxed] every factor relaxed at once: %.10g\n", a->all_relaxed);
+            printf("  [all_relaxed] every factor relaxed at once: %s\n",
+                   ps_text_big(big, sizeof big, a->all_relaxed, a->all_relaxed_ln, 10));
     }
     printf("\n6. Verdict: %s: %s\n   cause: %s\n", ps_verdict_name(s->verdict), ps_verdict_meaning(s->verdict),
            s->cause);

@@ -11,6 +11,36 @@ enum { NP = PS_MAX_ORDER };
 
 static inline double complex cx(ps_cplx a) { return CMPLX(a.re, a.im); }
 
+/* A floor with its natural logarithm (ps_floors): the value may overflow a
+ * double (+INFINITY) while the logarithm stays finite. */
+typedef struct big {
+    double v, ln;
+} big;
+
+static big big_val(double v) { return (big){v, log(v)}; }
+static big big_exp(double ln) { return (big){exp(ln), ln}; }
+/* A value computed directly, with its logarithm computed apart for when it overflowed. */
+static big big_pair(double v, double ln) { return isfinite(v) || isnan(v) ? big_val(v) : (big){v, ln}; }
+
+/* fmax of two floors: by value while both are finite (exactly fmax), else
+ * by logarithm; a NAN loses, as with fmax. */
+static big big_max(big a, big b)
+{
+    if (isnan(a.v))
+        return b;
+    if (isnan(b.v))
+        return a;
+    if (isfinite(a.v) && isfinite(b.v))
+        return a.v >= b.v ? a : b;
+    return a.ln >= b.ln ? a : b;
+}
+
+/* Interpolation data whose modulus exceeds e^SCALE_LN are scaled by their
+ * largest modulus before the Pick matrices are formed (whose entries hold
+ * products of two data values): the Pick value scales with a common factor
+ * of the data, gamma(c w) = |c| gamma(w), so ln gamma = ln|c| + ln gamma(w/c). */
+#define SCALE_LN 230.0
+
 /* RHP roots as plain values (multiplicity kept: each member once). */
 static size_t rhp(const ps_root *r, size_t n, ps_cplx *out)
 {
@@ -79,11 +109,11 @@ static void ser_div_lin(double complex *a, unsigned m, double complex b)
         a[k] = (a[k] - (k ? a[k - 1] : 0)) / b;
 }
 
-/* a *= e^{theta s} = e^{theta s0} sum (theta u)^k / k!. */
-static void ser_mul_exp(double complex *a, unsigned m, double complex s0, double theta)
+/* a *= e^{theta s - shift} = e^{theta s0 - shift} sum (theta u)^k / k!. */
+static void ser_mul_exp(double complex *a, unsigned m, double complex s0, double theta, double shift)
 {
     double complex e[NP], out[NP];
-    e[0] = cexp(theta * s0);
+    e[0] = cexp(theta * s0 - shift);
     for (unsigned k = 1; k < m; k++)
         e[k] = e[k - 1] * theta / k;
     for (unsigned k = 0; k < m; k++) {
@@ -101,7 +131,7 @@ static void ser_mul_exp(double complex *a, unsigned m, double complex s0, double
 enum interp_kind { AT_POLES_T, AT_ZEROS_S, AT_POLES_EFFORT };
 
 static void taylor(enum interp_kind kind, const ps_analysis *an, const ps_cplx *z, size_t nz,
-                   const ps_cplx *p, size_t np, double complex s0, unsigned m, double complex *a)
+                   const ps_cplx *p, size_t np, double complex s0, unsigned m, double shift, double complex *a)
 {
     ser_one(a, m);
     if (kind == AT_ZEROS_S) {
@@ -111,7 +141,7 @@ static void taylor(enum interp_kind kind, const ps_analysis *an, const ps_cplx *
         }
         return;
     }
-    ser_mul_exp(a, m, s0, an->delay);
+    ser_mul_exp(a, m, s0, an->delay, shift);
     if (kind == AT_POLES_T) {
         for (size_t j = 0; j < nz; j++) {
             ser_mul_lin(a, m, s0 + conj(cx(z[j])));
@@ -129,22 +159,51 @@ static void taylor(enum interp_kind kind, const ps_analysis *an, const ps_cplx *
         a[k] /= an->gain;
 }
 
-/* Confluent Pick value for repeated points. */
+/* Confluent Pick value for repeated points. The delay's factor
+ * e^{theta s} is scaled by e^{-shift} when it could overflow (SCALE_LN). */
 static ps_status confluent(ps_limits_ws *ws, enum interp_kind kind, const ps_analysis *an, const ps_cplx *z,
-                           size_t nz, const ps_cplx *p, size_t np, double *out, double *cond, ps_diag *d)
+                           size_t nz, const ps_cplx *p, size_t np, big *out, double *cond, ps_diag *d)
 {
     const ps_cplx *pts = kind == AT_ZEROS_S ? z : p;
     size_t npts = kind == AT_ZEROS_S ? nz : np;
-    ps_cplx g[NP], data[NP];
-    unsigned mult[NP];
+    ps_cplx g[NP] = {{0, 0}}, data[NP] = {{0, 0}}; /* zeroed: the compiler cannot see that ng > 0 fills them */
+    unsigned mult[NP] = {0};
     size_t ng = group(pts, npts, g, mult), at = 0;
+    double top = 0.0;
+    for (size_t k = 0; kind != AT_ZEROS_S && k < ng; k++)
+        top = fmax(top, an->delay * g[k].re);
+    double shift = top > SCALE_LN ? top : 0.0, gamma;
     for (size_t k = 0; k < ng; k++) {
         double complex a[NP];
-        taylor(kind, an, z, nz, p, np, cx(g[k]), mult[k], a);
+        taylor(kind, an, z, nz, p, np, cx(g[k]), mult[k], shift, a);
         for (unsigned i = 0; i < mult[k]; i++)
             data[at++] = (ps_cplx){creal(a[i]), cimag(a[i])};
     }
-    return ps_pick_confluent(ws, g, mult, ng, data, out, cond, d);
+    ps_status st = ps_pick_confluent(ws, g, mult, ng, data, &gamma, cond, d);
+    if (st == PS_OK)
+        *out = shift > 0 ? big_exp(shift + log(gamma)) : big_val(gamma);
+    return st;
+}
+
+/* The Pick value at distinct points s for data w, given also as log-modulus
+ * lm and phase ph: w is used as it is unless its modulus could overflow, then
+ * the data are rebuilt from lm and ph scaled by the largest modulus. */
+static ps_status pick_big(ps_limits_ws *ws, const ps_cplx *s, ps_cplx *w, const double *lm, const double *ph, size_t n,
+                          big *out, double *cond, ps_diag *d)
+{
+    double top = -INFINITY, gamma;
+    for (size_t i = 0; i < n; i++)
+        top = fmax(top, lm[i]);
+    bool scaled = top > SCALE_LN && isfinite(top);
+    if (scaled)
+        for (size_t i = 0; i < n; i++) {
+            double m = exp(lm[i] - top);
+            w[i] = (ps_cplx){m * cos(ph[i]), m * sin(ph[i])};
+        }
+    ps_status st = ps_pick_gamma(ws, s, w, n, &gamma, cond, d);
+    if (st == PS_OK)
+        *out = scaled ? big_exp(top + log(gamma)) : big_val(gamma);
+    return st;
 }
 
 /* G_s(p) = k prod(p - z) / [prod_{non-RHP poles}(p - q) prod_{RHP i}(p + conj p_i)]:
@@ -248,39 +307,44 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
      * ps_ms_single and ps_mt_single return 1 when there is no point, so they
      * are used only with one. */
     bool s_one = s_forced_one(an, nz), t_one = np > 0 || an->n_axis_poles > 0;
-    double ms_single = nz ? ps_ms_single(z, nz, p, np) : s_one ? 1.0 : 0.0;
-    double mt_single = np ? ps_mt_single(z, nz, p, np, theta) : t_one ? 1.0 : 0.0;
-    out->infinite = isinf(ms_single) || isinf(mt_single);
+    big ms_single = nz ? big_pair(ps_ms_single(z, nz, p, np), ps_ms_single_ln(z, nz, p, np)) : big_val(s_one ? 1.0 : 0.0);
+    big mt_single = np ? big_pair(ps_mt_single(z, nz, p, np, theta), ps_mt_single_ln(z, nz, p, np, theta))
+                       : big_val(t_one ? 1.0 : 0.0);
+    /* Infinite only for an exact cancellation (a zero divisor in a product);
+     * a product too large for a double has a finite logarithm. */
+    out->infinite = ms_single.ln == INFINITY || mt_single.ln == INFINITY;
     bool ok_points = distinct(p, np) && distinct(z, nz);
+    big ms_i = {NAN, NAN}, mt_i = {NAN, NAN};
     if (out->infinite) {
         out->ms_route = out->mt_route = PS_ROUTE_INFINITE;
-        out->ms_interpolation = out->mt_interpolation = INFINITY;
+        ms_i = mt_i = big_val(INFINITY);
         snprintf(out->note, sizeof out->note, "%s",
                  an->hidden_unstable ? "hidden unstable mode: no controller can stabilize this plant"
                                      : "an RHP zero coincides with an RHP pole");
     } else if (np == 0) {
-        out->ms_interpolation = ms_single; /* 1 or 0: nothing to interpolate against */
-        out->mt_interpolation = mt_single;
+        ms_i = ms_single; /* 1 or 0: nothing to interpolate against */
+        mt_i = mt_single;
     } else if (!ok_points) {
         out->mt_route = PS_ROUTE_CONFLUENT;
         out->ms_route = theta > 0 ? PS_ROUTE_EQUAL_MT : nz > 0 ? PS_ROUTE_CONFLUENT : PS_ROUTE_NONE;
         /* Repeated RHP roots: derivative conditions at each repeated point
          * (confluent Pick). Without delay the floor on ||S|| is the Pick value
          * at the zeros, which equals the one at the poles (Chen's equality). */
-        double g = 1.0, c1 = 1.0, c2 = 1.0;
+        big g = big_val(1.0);
+        double c1 = 1.0, c2 = 1.0;
         ps_status st = confluent(ws, AT_POLES_T, an, z, nz, p, np, &g, &c1, &d);
         if (st == PS_OK) {
-            out->mt_interpolation = fmax(g, mt_single);
-            out->ms_interpolation = theta > 0 ? out->mt_interpolation : ms_single;
+            mt_i = big_max(g, mt_single);
+            ms_i = theta > 0 ? mt_i : ms_single;
             if (theta == 0 && nz > 0 && (st = confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &g, &c2, &d)) == PS_OK)
-                out->ms_interpolation = fmax(g, ms_single);
+                ms_i = big_max(g, ms_single);
         }
         if (st == PS_OK)
             snprintf(out->note, sizeof out->note, "repeated RHP root: confluent interpolation (derivative conditions)");
         else {
             out->ms_route = out->mt_route = PS_ROUTE_SINGLE;
-            out->ms_interpolation = ms_single;
-            out->mt_interpolation = mt_single;
+            ms_i = ms_single;
+            mt_i = mt_single;
             note_fallback(out, "repeated RHP roots, joint floor not computed", d.text, 70, s_one);
         }
         out->cond = fmax(c1, c2);
@@ -289,60 +353,80 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
          * delay this equals Chen's joint floor; with delay it is the floor on
          * ||T||, and on ||S|| by the commutant-lifting equality noted in the
          * README (held in every numerical check; labelled as such). */
+        double lm[NP], ph[NP];
         for (size_t i = 0; i < np; i++) {
             double complex v = cexp(cx(p[i]) * theta);
-            for (size_t j = 0; j < nz; j++)
-                v *= (cx(p[i]) + conj(cx(z[j]))) / (cx(p[i]) - cx(z[j]));
+            lm[i] = p[i].re * theta;
+            ph[i] = p[i].im * theta;
+            for (size_t j = 0; j < nz; j++) {
+                double complex r = (cx(p[i]) + conj(cx(z[j]))) / (cx(p[i]) - cx(z[j]));
+                v *= r;
+                lm[i] += log(cabs(r));
+                ph[i] += carg(r);
+            }
             w[i] = (ps_cplx){creal(v), cimag(v)};
         }
-        double g, cond = 1.0;
+        big g;
+        double cond = 1.0;
         out->mt_route = np == 1 ? PS_ROUTE_ONE_POINT : PS_ROUTE_PICK;
         out->ms_route = theta > 0 ? PS_ROUTE_EQUAL_MT : nz == 0 ? PS_ROUTE_NONE : np == 1 ? PS_ROUTE_ONE_POINT
                                                                                           : PS_ROUTE_CHEN;
-        if (ps_pick_gamma(ws, p, w, np, &g, &cond, &d) == PS_OK) {
-            out->mt_interpolation = fmax(g, mt_single);
-            out->ms_interpolation = theta > 0 ? out->mt_interpolation : ms_single;
+        if (pick_big(ws, p, w, lm, ph, np, &g, &cond, &d) == PS_OK) {
+            mt_i = big_max(g, mt_single);
+            ms_i = theta > 0 ? mt_i : ms_single;
             if (theta == 0 && nz > 0 && np == 1)
                 /* One RHP pole: Chen's joint floor equals the Pick value at
                  * the pole (his equality Ms_min = Mt_min without delay), so
                  * no matrix is needed. */
-                out->ms_interpolation = fmax(g, ms_single);
+                ms_i = big_max(g, ms_single);
             else if (theta == 0 && nz > 0) {
                 double chen, c2 = 1.0;
                 if (ps_chen_floor(ws, z, nz, p, np, &chen, &c2, &d) == PS_OK)
-                    out->ms_interpolation = fmax(chen, ms_single);
+                    ms_i = big_max(big_val(chen), ms_single);
                 else
                     out->ms_route = PS_ROUTE_SINGLE;
                 cond = fmax(cond, c2);
             }
         } else {
             out->ms_route = out->mt_route = PS_ROUTE_SINGLE;
-            out->ms_interpolation = ms_single;
-            out->mt_interpolation = mt_single;
+            ms_i = ms_single;
+            mt_i = mt_single;
             note_fallback(out, "joint floor not computed", d.text, 100, s_one);
         }
         out->cond = cond;
     }
+    out->ms_interpolation = ms_i.v;
+    out->ms_interpolation_ln = ms_i.ln;
+    out->mt_interpolation = mt_i.v;
+    out->mt_interpolation_ln = mt_i.ln;
 
     /* Effort: Pick with points p_i and values e^{p_i theta} / G_s(p_i). */
+    big effort;
     if (np == 0)
-        out->effort = 0.0;
+        effort = big_val(0.0);
     else if (ps_limits_effort_skipped(ws))
-        out->effort = NAN;
+        effort = big_val(NAN);
     else if (out->infinite)
-        out->effort = INFINITY;
+        effort = big_val(INFINITY);
     else {
-        double single = 0;
+        big single = big_val(0.0);
+        double lm[NP], ph[NP];
         for (size_t i = 0; i < np; i++) {
-            double complex v = cexp(cx(p[i]) * theta) / mirror_at(an, cx(p[i]));
+            double complex m = mirror_at(an, cx(p[i]));
+            double complex v = cexp(cx(p[i]) * theta) / m;
+            lm[i] = p[i].re * theta - log(cabs(m));
+            ph[i] = p[i].im * theta - carg(m);
             w[i] = (ps_cplx){creal(v), cimag(v)};
-            single = fmax(single, cabs(v));
+            single = big_max(single, big_pair(cabs(v), lm[i]));
         }
-        double g, cond = 1.0;
-        ps_status st = ok_points ? ps_pick_gamma(ws, p, w, np, &g, &cond, &d)
+        big g;
+        double cond = 1.0;
+        ps_status st = ok_points ? pick_big(ws, p, w, lm, ph, np, &g, &cond, &d)
                                  : confluent(ws, AT_POLES_EFFORT, an, z, nz, p, np, &g, &cond, &d);
-        out->effort = st == PS_OK ? fmax(g, single) : single;
+        effort = st == PS_OK ? big_max(g, single) : single;
     }
+    out->effort = effort.v;
+    out->effort_ln = effort.ln;
 
     /* Structure: parity interlacing, and which controllers the Bode area
      * floor covers (loop relative degree >= 2; at exactly 1 the integral
@@ -356,45 +440,76 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
 static void band_floors(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np,
                         const ps_requirements *req, ps_floors *out)
 {
-    out->ms_band = out->ms_poisson = NAN;
+    out->ms_band = out->ms_poisson = out->ms_band_ln = out->ms_poisson_ln = NAN;
     bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
-    if (rolloff)
-        out->ms_band = ps_band_floor_ws(ws, out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0, req->wh,
-                                     req->delta, req->k);
-    if (band)
-        out->ms_poisson = out->infinite ? INFINITY : ps_poisson_s_floor(z, nz, p, np, req->eps, req->wb);
+    if (rolloff) {
+        out->ms_band_ln = ps_band_floor_ln_ws(ws, out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0,
+                                              req->wh, req->delta, req->k);
+        out->ms_band = exp(out->ms_band_ln);
+    }
+    if (band) {
+        out->ms_poisson_ln = out->infinite ? INFINITY : ps_poisson_s_floor_ln(z, nz, p, np, req->eps, req->wb);
+        out->ms_poisson = exp(out->ms_poisson_ln);
+    }
 }
+
+/* Is floor a above floor b? By value while both are finite, else by
+ * logarithm (a NAN is above nothing). */
+static bool above(double a, double a_ln, double b, double b_ln)
+{
+    return isfinite(a) && isfinite(b) ? a > b : a_ln > b_ln;
+}
+
+/* ln(x - 1) for a floor x given with its logarithm: exact while x is
+ * finite; past a double's range x - 1 and x have the same logarithm (they
+ * differ by a factor 1 - 1/x, below any rounding). */
+static double ln_less_one(double x, double x_ln) { return isfinite(x) || isnan(x) ? log(x - 1.0) : x_ln; }
 
 /* Overall: the largest floor on each, with ||S|| >= ||T|| - 1 and ||T|| >=
  * ||S|| - 1 (S + T = 1). A roll-off requirement |L| <= delta (w_h/w)^(1+k)
  * makes the loop strictly proper, so S -> 1 and ||S|| >= 1; when that is
  * the only source of the 1, the note says so. limiting names what sets ms;
- * a plant no controller stabilizes has none of the floors as its limit. */
+ * a plant no controller stabilizes has none of the floors as its limit.
+ * Each floor goes with its logarithm (ps_floors), compared by value while
+ * both are finite. */
 static void overall(const ps_analysis *an, bool rolloff, ps_floors *out)
 {
     double s_only = out->ms_interpolation, t_only = out->mt_interpolation;
+    double s_ln = out->ms_interpolation_ln, t_ln = out->mt_interpolation_ln;
     const char *s_src = "interpolation";
-    if (out->ms_band > s_only) {
+    if (above(out->ms_band, out->ms_band_ln, s_only, s_ln)) {
         s_only = out->ms_band;
+        s_ln = out->ms_band_ln;
         s_src = "band";
     }
-    if (out->ms_poisson > s_only) {
+    if (above(out->ms_poisson, out->ms_poisson_ln, s_only, s_ln)) {
         s_only = out->ms_poisson;
+        s_ln = out->ms_poisson_ln;
         s_src = "poisson";
     }
-    if (out->mt_poisson > t_only)
+    if (above(out->mt_poisson, out->mt_poisson_ln, t_only, t_ln)) {
         t_only = out->mt_poisson;
+        t_ln = out->mt_poisson_ln;
+    }
     bool one_from_rolloff = rolloff && !(fmax(s_only, t_only - 1.0) >= 1.0);
-    if (rolloff && s_only < 1.0)
+    if (rolloff && s_only < 1.0) {
         s_only = 1.0;
+        s_ln = 0.0;
+    }
+    /* ms = max(s_only, t_only - 1), mt = max(t_only, s_only - 1) */
+    double t1_ln = ln_less_one(t_only, t_ln), s1_ln = ln_less_one(s_only, s_ln);
+    bool s_sets = !above(t_only - 1.0, t1_ln, s_only, s_ln);
     out->ms = fmax(s_only, t_only - 1.0);
+    out->ms_ln = isfinite(out->ms) || isnan(out->ms) ? log(out->ms) : s_sets ? s_ln : t1_ln;
     out->mt = fmax(t_only, s_only - 1.0);
+    out->mt_ln = isfinite(out->mt) || isnan(out->mt) ? log(out->mt)
+                 : above(s_only - 1.0, s1_ln, t_only, t_ln) ? s1_ln : t_ln;
     if (an->hidden_unstable)
         out->limiting = "hidden-mode";
     else if (out->infinite)
         out->limiting = "cancellation";
     else
-        out->limiting = out->ms <= 1.0 ? "none" : out->ms == s_only ? s_src : "complementary";
+        out->limiting = out->ms <= 1.0 ? "none" : s_sets ? s_src : "complementary";
 
     /* The plant half's note, then this half's sentence (the same whatever
      * was applied to out before). */
@@ -413,10 +528,13 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
     /* Requirement-dependent floors (README "Floors"). */
     band_floors(ws, z, nz, p, np, req, out);
     bool rolloff = req && req->wh > 0;
-    out->mt_poisson = NAN;
-    if (rolloff && req->delta > 0)
-        out->mt_poisson = out->infinite ? INFINITY
-                                        : ps_poisson_t_floor(z, nz, p, np, theta, req->delta / (1 - req->delta), req->wh);
+    out->mt_poisson = out->mt_poisson_ln = NAN;
+    if (rolloff && req->delta > 0) {
+        out->mt_poisson_ln = out->infinite ? INFINITY
+                                           : ps_poisson_t_floor_ln(z, nz, p, np, theta, req->delta / (1 - req->delta),
+                                                                   req->wh);
+        out->mt_poisson = exp(out->mt_poisson_ln);
+    }
     overall(an, rolloff, out);
 
     /* Crossover window, rules of thumb (S&P 2nd ed. ch. 5): w_c > 2 p for a

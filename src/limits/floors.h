@@ -44,6 +44,14 @@ typedef struct ps_floors {
                                 unstable mode), "cancellation" (an RHP zero on an RHP pole, not flagged as
                                 a hidden mode: e.g. a search moved one onto the other) */
     bool infinite;           /* an exact RHP cancellation: no controller stabilizes */
+    /* Natural logarithms of the floors above, kept beside them because a
+     * finite floor can exceed what a double holds (e^{p theta} with a long
+     * delay, the band floor of a pole far past the roll-off start): the value
+     * is then +INFINITY while its log stays finite and `infinite` stays
+     * false. log(value) wherever the value is finite; -INFINITY for 0; NAN
+     * with a NAN value; +INFINITY only with infinite. */
+    double ms_ln, mt_ln, ms_interpolation_ln, mt_interpolation_ln, effort_ln, ms_band_ln, ms_poisson_ln,
+        mt_poisson_ln;
     double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
     bool window_open;
     double cond;             /* largest condition estimate of the interpolation matrices */

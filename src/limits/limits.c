@@ -82,7 +82,7 @@ double ps_rolloff_tail(double wh, double delta, double k)
     return wh * sum;
 }
 
-double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)
+double ps_band_floor_ln_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)
 {
     /* The tail series depends on delta and k only (I = w_h * sum): a run
      * with shared requirements sums it once. */
@@ -97,7 +97,12 @@ double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, doubl
         ws->log_inv_eps = log(1 / eps);
     }
     double band = wb > 0 ? wb * ws->log_inv_eps : 0.0;
-    return exp((F + band - wh * ws->tail_sum) / (wh - wb));
+    return (F + band - wh * ws->tail_sum) / (wh - wb);
+}
+
+double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)
+{
+    return exp(ps_band_floor_ln_ws(ws, F, wb, eps, wh, delta, k));
 }
 
 double ps_band_floor(double F, double wb, double eps, double wh, double delta, double k)
@@ -134,6 +139,38 @@ double ps_mt_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, do
             prod *= cabs(conj(cx(z[j])) + cx(p[i])) / den;
         }
         best = fmax(best, prod);
+    }
+    return best;
+}
+
+double ps_ms_single_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np)
+{
+    double best = 0.0;
+    for (size_t j = 0; j < nz; j++) {
+        double sum = 0.0;
+        for (size_t i = 0; i < np; i++) {
+            double den = cabs(cx(z[j]) - cx(p[i]));
+            if (den == 0)
+                return INFINITY;
+            sum += log(cabs(cx(z[j]) + conj(cx(p[i])))) - log(den);
+        }
+        best = fmax(best, sum);
+    }
+    return best;
+}
+
+double ps_mt_single_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta)
+{
+    double best = 0.0;
+    for (size_t i = 0; i < np; i++) {
+        double sum = p[i].re * theta;
+        for (size_t j = 0; j < nz; j++) {
+            double den = cabs(cx(z[j]) - cx(p[i]));
+            if (den == 0)
+                return INFINITY;
+            sum += log(cabs(conj(cx(z[j])) + cx(p[i]))) - log(den);
+        }
+        best = fmax(best, sum);
     }
     return best;
 }
@@ -319,17 +356,44 @@ static double band_angle(ps_cplx s, double wb)
     return atan((wb - s.im) / s.re) + atan((wb + s.im) / s.re);
 }
 
-double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb)
+/* ln of a single-point product: log of the value where it is finite (so
+ * that the exponentials below are those of the plain formula), else the
+ * sum of logarithms (the value overflowed). */
+static double ln_of(double value, double ln) { return isfinite(value) ? log(value) : ln; }
+
+double ps_poisson_s_floor_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb)
 {
     /* Each zero's value is at least 1 (b >= 1, eps < 1); with no zero there
-     * is no Poisson constraint, and 0 says so. */
-    double best = 0.0;
+     * is no Poisson constraint, and 0 (ln -inf) says so. */
+    double best = -INFINITY;
     for (size_t j = 0; j < nz; j++) {
         if (z[j].im < 0)
             continue; /* one bound per complex pair */
-        double b = ps_ms_single(&z[j], 1, p, np), th = band_angle(z[j], wb);
-        /* (1/eps)^(th/(pi-th)) * b^(pi/(pi-th)), as one exponential */
-        best = fmax(best, exp((th * log(1 / eps) + M_PI * log(b)) / (M_PI - th)));
+        double lb = ln_of(ps_ms_single(&z[j], 1, p, np), ps_ms_single_ln(&z[j], 1, p, np)), th = band_angle(z[j], wb);
+        /* ln of (1/eps)^(th/(pi-th)) * b^(pi/(pi-th)) */
+        best = fmax(best, (th * log(1 / eps) + M_PI * lb) / (M_PI - th));
+    }
+    return best;
+}
+
+double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb)
+{
+    return exp(ps_poisson_s_floor_ln(z, nz, p, np, eps, wb));
+}
+
+double ps_poisson_t_floor_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
+                             double eps_t, double wh)
+{
+    /* Reported as computed, below 1 too (eps_t > 1 when delta > 0.5), like
+     * the band floor: a value below 1 is not binding. */
+    double best = -INFINITY;
+    for (size_t i = 0; i < np; i++) {
+        if (p[i].im < 0)
+            continue;
+        double lb = ln_of(ps_mt_single(z, nz, &p[i], 1, theta), ps_mt_single_ln(z, nz, &p[i], 1, theta));
+        double th = band_angle(p[i], wh);
+        /* ln of (1/eps_t)^((pi-th)/th) * b^(pi/th) */
+        best = fmax(best, ((M_PI - th) * log(1 / eps_t) + M_PI * lb) / th);
     }
     return best;
 }
@@ -337,15 +401,5 @@ double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t 
 double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
                           double eps_t, double wh)
 {
-    /* Reported as computed, below 1 too (eps_t > 1 when delta > 0.5), like
-     * the band floor: a value below 1 is not binding. */
-    double best = np ? -INFINITY : 0.0;
-    for (size_t i = 0; i < np; i++) {
-        if (p[i].im < 0)
-            continue;
-        double b = ps_mt_single(z, nz, &p[i], 1, theta), th = band_angle(p[i], wh);
-        /* (1/eps_t)^((pi-th)/th) * b^(pi/th), as one exponential */
-        best = fmax(best, exp(((M_PI - th) * log(1 / eps_t) + M_PI * log(b)) / th));
-    }
-    return best;
+    return exp(ps_poisson_t_floor_ln(z, nz, p, np, theta, eps_t, wh));
 }

@@ -34,6 +34,10 @@ double ps_rolloff_tail(double wh, double delta, double k);
 double ps_band_floor(double F, double wb, double eps, double wh, double delta, double k);
 /* The same, with the tail series kept in ws between calls with the same delta, k. */
 double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k);
+/* Its natural logarithm, the exponent [F + wb ln(1/eps) - I] / (wh - wb):
+ * finite where the floor itself overflows a double (e.g. an RHP pole far
+ * beyond the roll-off start). ps_band_floor_ws is exp of this value. */
+double ps_band_floor_ln_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k);
 
 /* Single-point interpolation floors (S&P 2nd ed. 2005, ch. 5):
  *   ||S|| >= max_j prod_i |z_j + conj(p_i)| / |z_j - p_i|
@@ -41,6 +45,11 @@ double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, doubl
  * Return 1 when there is nothing to bound; INFINITY for an exact cancellation. */
 double ps_ms_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np);
 double ps_mt_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta);
+/* Their natural logarithms, summed factor by factor (Re(p) theta for the
+ * delay): finite where the product overflows a double, +INFINITY only for
+ * an exact cancellation, 0 when there is nothing to bound. */
+double ps_ms_single_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np);
+double ps_mt_single_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta);
 
 /* Joint tight floor Ms_min = Mt_min = sqrt(1 + sigma_max^2(Qz^-1/2 Qzp Qp^-1/2))
  * (J. Chen, IEEE TAC 45(6), 2000), no delay; z and p distinct simple points.
@@ -80,6 +89,11 @@ ps_status ps_pick_confluent(ps_limits_ws *ws, const ps_cplx *s, const unsigned *
 double ps_poisson_s_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb);
 double ps_poisson_t_floor(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
                           double eps_t, double wh);
+/* Their natural logarithms (-INFINITY for the 0 of "nothing to bound"),
+ * finite where the floors overflow a double; the two above are exp of these. */
+double ps_poisson_s_floor_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double eps, double wb);
+double ps_poisson_t_floor_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta,
+                             double eps_t, double wh);
 
 /* Margins guaranteed by a peak (exact inequalities; S&P 2nd ed. ch. 2):
  * from Ms: GM >= Ms/(Ms-1), PM >= 2 asin(1/(2 Ms)); from Mt: GM >= 1 + 1/Mt,

@@ -1,6 +1,7 @@
 /* html_report.c - the screening run as one self-contained HTML5 page: inline
  * style, no script, no external assets, figures as inline SVG; prints in black on white. */
 #include "report/reports.h"
+#include "core/text.h"
 
 #include <math.h>
 #include <stdbool.h>
@@ -43,6 +44,16 @@ static void h_num(FILE *f, double x)
         fprintf(f, "%.4g", x);
     else
         fputs(isinf(x) ? "infinite" : "n/a", f);
+}
+
+/* A floor: as h_num, and past a double's range as a power of ten from its logarithm. */
+static void h_big(FILE *f, double x, double ln)
+{
+    char b[48];
+    if (isinf(x) && x > 0 && isfinite(ln))
+        fputs(ps_text_big(b, sizeof b, x, ln, 4), f);
+    else
+        h_num(f, x);
 }
 
 /* Copy at most max_chars UTF-8 characters of src into dst (size n), with
@@ -244,11 +255,11 @@ static void ranking(FILE *f, const ps_run *r)
                        "<td class=\"num\">n/a</td><td>n/a</td>");
         else {
             fprintf(f, "<td class=\"num\">");
-            h_num(f, s->fl.ms);
+            h_big(f, s->fl.ms, s->fl.ms_ln);
             fprintf(f, "</td><td class=\"num\">");
             h_num(f, s->req.ms_allowed);
             fprintf(f, "</td><td class=\"num\">");
-            h_num(f, s->fl.mt);
+            h_big(f, s->fl.mt, s->fl.mt_ln);
             fprintf(f, "</td><td class=\"num\">");
             h_num(f, s->req.mt_allowed);
             fprintf(f, "</td><td>");

@@ -29,16 +29,29 @@ static json_t *jtarget(const ps_summary *s, ps_target_kind k)
 
 /* The binding floor taken apart (screen/attribution.h): the present
  * factors, lowest relaxed floor first. */
+/* A floor past a double's range is null in obj[key]; its base-10 logarithm
+ * then goes beside it as key_log10. */
+static void jlog10(json_t *obj, const char *key, double x, double ln)
+{
+    if (isinf(x) && x > 0 && isfinite(ln))
+        json_object_set_new(obj, key, json_real(ln / log(10.0)));
+}
+
 static json_t *jattribution(const ps_attribution *a)
 {
     json_t *fs = json_array();
     for (size_t i = 0; i < a->n_present; i++) {
         ps_factor f = (ps_factor)a->order[i];
-        json_array_append_new(fs, json_pack("{s:s,s:o,s:b}", "factor", ps_factor_key(f), "floor_without",
-                                            ps_json_num(a->without[f]), "lowers", i < a->n_lowering));
+        json_t *o = json_pack("{s:s,s:o,s:b}", "factor", ps_factor_key(f), "floor_without",
+                              ps_json_num(a->without[f]), "lowers", i < a->n_lowering);
+        jlog10(o, "floor_without_log10", a->without[f], a->without_ln[f]);
+        json_array_append_new(fs, o);
     }
-    return json_pack("{s:s,s:o,s:o,s:o,s:o}", "binding", ps_peak_name(a->binding), "floor", ps_json_num(a->floor),
-                     "allowed", ps_json_num(a->allowed), "factors", fs, "all_relaxed", ps_json_num(a->all_relaxed));
+    json_t *o = json_pack("{s:s,s:o,s:o,s:o,s:o}", "binding", ps_peak_name(a->binding), "floor", ps_json_num(a->floor),
+                          "allowed", ps_json_num(a->allowed), "factors", fs, "all_relaxed", ps_json_num(a->all_relaxed));
+    jlog10(o, "floor_log10", a->floor, a->floor_ln);
+    jlog10(o, "all_relaxed_log10", a->all_relaxed, a->all_relaxed_ln);
+    return o;
 }
 
 static json_t *given_fields(const ps_summary *s)

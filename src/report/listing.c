@@ -8,6 +8,7 @@
 
 #include <jansson.h>
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -88,14 +89,24 @@ static json_t *jwarnings(const ps_plant *p)
     return a;
 }
 
-/* A floor value: a number, or null with a reason in reasons[key]. */
-static void jfloor(json_t *obj, json_t *reasons, const char *key, double x, const char *why_inf)
+/* A floor value: a number, or null with a reason in reasons[key]. A floor
+ * past a double's range (ln finite) is null with its base-10 logarithm in
+ * <key>_log10 beside it. */
+static void jfloor(json_t *obj, json_t *reasons, const char *key, double x, double ln, const char *why_inf)
 {
     if (isfinite(x)) {
         json_object_set_new(obj, key, json_real(x));
         return;
     }
     json_object_set_new(obj, key, json_null());
+    if (isinf(x) && x > 0 && isfinite(ln)) {
+        char k[64];
+        snprintf(k, sizeof k, "%s_log10", key);
+        json_object_set_new(obj, k, json_real(ln / log(10.0)));
+        json_object_set_new(reasons, key, json_string("finite but past a double's range (about 1.8e308): its base-10 "
+                                                      "logarithm is given beside it"));
+        return;
+    }
     json_object_set_new(reasons, key, json_string(isinf(x) ? why_inf : "not computed"));
 }
 
@@ -112,23 +123,24 @@ json_t *ps_json_floors(const ps_floors *fl)
 {
     json_t *f = json_object(), *why = json_object();
     json_object_set_new(f, "bode_area", ps_json_num(fl->bode_area));
-    jfloor(f, why, "ms", fl->ms, fl->note);
-    jfloor(f, why, "mt", fl->mt, fl->note);
-    jfloor(f, why, "ms_interpolation", fl->ms_interpolation, fl->note);
-    jfloor(f, why, "mt_interpolation", fl->mt_interpolation, fl->note);
-    struct { const char *key; double v; const char *missing; } req_floors[] = {
-        {"ms_band", fl->ms_band, "needs rolloff_start (the available bandwidth w_h)"},
-        {"ms_poisson", fl->ms_poisson, "needs a band requirement (band_edge, band_attenuation)"},
-        {"mt_poisson", fl->mt_poisson, "needs rolloff_start and rolloff_gain > 0 (undefined for rolloff_gain = 0)"},
+    jfloor(f, why, "ms", fl->ms, fl->ms_ln, fl->note);
+    jfloor(f, why, "mt", fl->mt, fl->mt_ln, fl->note);
+    jfloor(f, why, "ms_interpolation", fl->ms_interpolation, fl->ms_interpolation_ln, fl->note);
+    jfloor(f, why, "mt_interpolation", fl->mt_interpolation, fl->mt_interpolation_ln, fl->note);
+    struct { const char *key; double v, ln; const char *missing; } req_floors[] = {
+        {"ms_band", fl->ms_band, fl->ms_band_ln, "needs rolloff_start (the available bandwidth w_h)"},
+        {"ms_poisson", fl->ms_poisson, fl->ms_poisson_ln, "needs a band requirement (band_edge, band_attenuation)"},
+        {"mt_poisson", fl->mt_poisson, fl->mt_poisson_ln,
+         "needs rolloff_start and rolloff_gain > 0 (undefined for rolloff_gain = 0)"},
     };
     for (size_t i = 0; i < 3; i++) {
         if (isnan(req_floors[i].v)) {
             json_object_set_new(f, req_floors[i].key, json_null());
             json_object_set_new(why, req_floors[i].key, json_string(req_floors[i].missing));
         } else
-            jfloor(f, why, req_floors[i].key, req_floors[i].v, fl->note);
+            jfloor(f, why, req_floors[i].key, req_floors[i].v, req_floors[i].ln, fl->note);
     }
-    jfloor(f, why, "effort", fl->effort, fl->note);
+    jfloor(f, why, "effort", fl->effort, fl->effort_ln, fl->note);
     json_object_set_new(f, "limiting", json_string(fl->limiting));
     json_object_set_new(f, "infinite", json_boolean(fl->infinite));
     json_object_set_new(f, "condition_estimate", ps_json_num(fl->cond));

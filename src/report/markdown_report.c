@@ -1,6 +1,7 @@
 /* markdown_report.c - the screening run as a Markdown document for design
  * reviews: counts, ranked table, redesign list, requirements and caution. */
 #include "report/reports.h"
+#include "core/text.h"
 
 #include <ctype.h>
 #include <math.h>
@@ -39,6 +40,17 @@ static void md_cell(FILE *f, const char *s) { md_put(f, s, true); }
 
 /* A number ("%.3f" for shares, "%.4g" otherwise), or a word when it has no
  * finite value. */
+/* A floor: as md_num, and past a double's range as a power of ten from its logarithm. */
+static void md_num(FILE *f, bool share, double x, const char *inf_word);
+static void md_big(FILE *f, double x, double ln)
+{
+    char b[48];
+    if (isinf(x) && x > 0 && isfinite(ln))
+        fputs(ps_text_big(b, sizeof b, x, ln, 4), f);
+    else
+        md_num(f, false, x, "infinite");
+}
+
 static void md_num(FILE *f, bool share, double x, const char *inf_word)
 {
     if (isfinite(x))
@@ -107,9 +119,9 @@ static void ranked_table(FILE *f, const ps_run *r)
         if (unread)
             fprintf(f, "n/a | n/a | n/a | n/a | ");
         else {
-            md_num(f, false, s->fl.ms, "infinite");
+            md_big(f, s->fl.ms, s->fl.ms_ln);
             fprintf(f, " | %.4g | ", s->req.ms_allowed);
-            md_num(f, false, s->fl.mt, "infinite");
+            md_big(f, s->fl.mt, s->fl.mt_ln);
             fprintf(f, " | %.4g | ", s->req.mt_allowed);
         }
         md_cell(f, s->cause);

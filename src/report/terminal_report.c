@@ -2,6 +2,7 @@
  * table, the redesign list with causes and targets, the headroom of passing
  * plants, counts per verdict and the caution. Colour only when asked. */
 #include "report/reports.h"
+#include "core/text.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -30,6 +31,15 @@ static void num(char *buf, size_t n, double x)
         snprintf(buf, n, "inf");
     else
         snprintf(buf, n, "%.3g", x);
+}
+
+/* A floor: as num, and past a double's range as a power of ten from its logarithm. */
+static void num_big(char *buf, size_t n, double x, double ln)
+{
+    if (isinf(x) && x > 0 && isfinite(ln))
+        ps_text_big(buf, n, x, ln, 3);
+    else
+        num(buf, n, x);
 }
 
 static void wrap(FILE *f, const char *text, const char *indent, size_t width)
@@ -92,12 +102,12 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
             "severity", "worst", "Ms floor", "Ms allow", "Mt floor", "Mt allow");
     for (size_t i = 0; i < r->n_rows && i < show; i++) {
         const ps_summary *s = ps_run_row(r, i);
-        char sev[16], msf[16], msa[16], mtf[16], mta[16];
+        char sev[16], msf[40], msa[16], mtf[40], mta[16];
         num(sev, sizeof sev, s->severity);
         bool read = s->verdict != PS_VERDICT_UNREAD;
-        num(msf, sizeof msf, read ? s->fl.ms : NAN);
+        num_big(msf, sizeof msf, read ? s->fl.ms : NAN, s->fl.ms_ln);
         num(msa, sizeof msa, read ? s->req.ms_allowed : NAN);
-        num(mtf, sizeof mtf, read ? s->fl.mt : NAN);
+        num_big(mtf, sizeof mtf, read ? s->fl.mt : NAN, s->fl.mt_ln);
         num(mta, sizeof mta, read ? s->req.mt_allowed : NAN);
         fprintf(f, "%4zu  %-*.*s  %s%-16s%s  %8s  %-6s  %9s  %9s  %9s  %9s\n", i + 1, (int)idw, (int)idw, s->id,
                 colour ? tint(s->verdict) : "", ps_verdict_name(s->verdict), colour ? "\033[0m" : "", sev,

@@ -60,6 +60,23 @@ double ps_peak_floor(const ps_floors *fl, ps_peak b)
     return NAN;
 }
 
+double ps_peak_floor_ln(const ps_floors *fl, ps_peak b)
+{
+    switch (b) {
+    case PS_PEAK_MS: return fl->ms_ln;
+    case PS_PEAK_MT: return fl->mt_ln;
+    case PS_PEAK_EFFORT: return fl->effort_ln;
+    case PS_PEAK_NONE: break;
+    }
+    return NAN;
+}
+
+/* Is a below b? By value while both are finite, else by logarithm. */
+static bool below(double a, double a_ln, double b, double b_ln)
+{
+    return isfinite(a) && isfinite(b) ? a < b : a_ln < b_ln;
+}
+
 static double allowed_of(const ps_requirements *q, ps_peak b)
 {
     switch (b) {
@@ -91,14 +108,16 @@ static void relax(unsigned mask, ps_analysis *w, ps_requirements *q)
         q->wb = 0.0;
 }
 
+/* The binding floor with the factors in mask relaxed; OUT: *ln its logarithm. */
 static double relaxed_floor(ps_limits_ws *lws, ps_analysis *scratch, const ps_analysis *an,
-                            const ps_requirements *q, ps_peak b, unsigned mask)
+                            const ps_requirements *q, ps_peak b, unsigned mask, double *ln)
 {
     ps_requirements rq = *q;
     memcpy(scratch, an, sizeof *scratch);
     relax(mask, scratch, &rq);
     ps_floors fl;
     ps_floors_compute(lws, scratch, &rq, &fl);
+    *ln = ps_peak_floor_ln(&fl, b);
     return ps_peak_floor(&fl, b);
 }
 
@@ -108,15 +127,18 @@ void ps_attribution_compute(ps_limits_ws *lws, ps_analysis *scratch, const ps_an
     memset(out, 0, sizeof *out);
     out->binding = binding;
     out->floor = ps_peak_floor(fl, binding);
+    out->floor_ln = ps_peak_floor_ln(fl, binding);
     out->allowed = allowed_of(q, binding);
-    out->all_relaxed = NAN;
+    out->all_relaxed = out->all_relaxed_ln = NAN;
     out->present[PS_FACTOR_DELAY] = an->delay > 0;
     out->present[PS_FACTOR_ZEROS] = an->n_rhp_zeros > 0;
     out->present[PS_FACTOR_ROLLOFF] = q->wh > 0;
     out->present[PS_FACTOR_BAND] = q->wb > 0;
     for (int f = 0; f < PS_FACTOR_COUNT; f++)
-        out->without[f] = NAN;
-    if (binding == PS_PEAK_NONE || !isfinite(out->floor))
+        out->without[f] = out->without_ln[f] = NAN;
+    /* An infinite floor (an exact cancellation) has nothing to take apart;
+     * one past a double's range does, through its logarithm. */
+    if (binding == PS_PEAK_NONE || !isfinite(out->floor_ln))
         return;
     bool skipped = ps_limits_effort_skipped(lws);
     ps_limits_skip_effort(lws, false);
@@ -125,22 +147,27 @@ void ps_attribution_compute(ps_limits_ws *lws, ps_analysis *scratch, const ps_an
         if (!out->present[f])
             continue;
         all |= 1u << f;
-        out->without[f] = relaxed_floor(lws, scratch, an, q, binding, 1u << f);
+        out->without[f] = relaxed_floor(lws, scratch, an, q, binding, 1u << f, &out->without_ln[f]);
         /* insertion by the relaxed floor, lowest first; ties keep enum order */
         size_t k = out->n_present++;
-        while (k > 0 && out->without[out->order[k - 1]] > out->without[f]) {
+        while (k > 0 && below(out->without[f], out->without_ln[f], out->without[out->order[k - 1]],
+                              out->without_ln[out->order[k - 1]])) {
             out->order[k] = out->order[k - 1];
             k--;
         }
         out->order[k] = (unsigned char)f;
     }
+    /* floor * (1 - RTOL) with its logarithm (the product may overflow too) */
+    double cut = out->floor * (1 - PS_ATTR_RTOL), cut_ln = out->floor_ln + log1p(-PS_ATTR_RTOL);
     for (size_t i = 0; i < out->n_present; i++)
-        if (out->without[out->order[i]] < out->floor * (1 - PS_ATTR_RTOL))
+        if (below(out->without[out->order[i]], out->without_ln[out->order[i]], cut, cut_ln))
             out->n_lowering = i + 1;
     if (out->n_present > 1)
-        out->all_relaxed = relaxed_floor(lws, scratch, an, q, binding, all);
-    else if (out->n_present == 1)
+        out->all_relaxed = relaxed_floor(lws, scratch, an, q, binding, all, &out->all_relaxed_ln);
+    else if (out->n_present == 1) {
         out->all_relaxed = out->without[out->order[0]];
+        out->all_relaxed_ln = out->without_ln[out->order[0]];
+    }
     ps_limits_skip_effort(lws, skipped);
 }
 
@@ -332,17 +359,25 @@ void ps_attribution_cause(const ps_attribution *a, const ps_analysis *an, const 
         ps_text_put(&t, n_lead ? " with " : "");
         put_poles(&t, an);
     }
-    ps_text_put(&t, ": %s %.3g against %.3g allowed", peak_words(a->binding), a->floor, a->allowed);
+    ps_text_put(&t, ": %s ", peak_words(a->binding));
+    ps_text_put_big(&t, a->floor, a->floor_ln, 3);
+    ps_text_put(&t, " against %.3g allowed", a->allowed);
     /* The figures: each present factor's relaxation. */
     const char *sep = " (";
     for (size_t i = 0; i < a->n_lowering; i++) {
         ps_factor f = (ps_factor)a->order[i];
-        ps_text_put(&t, "%s%.3g %s", sep, a->without[f], relaxed_words(f, an));
+        ps_text_put(&t, "%s", sep);
+        ps_text_put_big(&t, a->without[f], a->without_ln[f], 3);
+        ps_text_put(&t, " %s", relaxed_words(f, an));
         sep = "; ";
     }
     if (a->n_lowering == 0 && a->n_present > 1)
-        ps_text_put(&t, "%sno single relaxation lowers it; %.3g with all of them relaxed", sep, a->all_relaxed),
-            sep = "; ";
+    {
+        ps_text_put(&t, "%sno single relaxation lowers it; ", sep);
+        ps_text_put_big(&t, a->all_relaxed, a->all_relaxed_ln, 3);
+        ps_text_put(&t, " with all of them relaxed");
+        sep = "; ";
+    }
     for (size_t i = a->n_lowering; i < a->n_present; i++) {
         ps_factor f = (ps_factor)a->order[i];
         if (a->n_lowering == 0 && a->n_present > 1)

@@ -46,6 +46,10 @@ typedef struct ps_attribution {
     size_t n_present;
     size_t n_lowering;               /* the first n_lowering of order lower the floor (the named factors) */
     double all_relaxed;              /* every present factor relaxed at once */
+    /* The natural logarithms of floor, without[] and all_relaxed (ps_floors):
+     * finite where the value overflowed a double; the ranking and the
+     * lowering test compare these whenever a value is not finite. */
+    double floor_ln, without_ln[PS_FACTOR_COUNT], all_relaxed_ln;
 } ps_attribution;
 
 /* The binding peak of a plant from its shares (NAN: not counted): the
@@ -60,8 +64,10 @@ ps_peak ps_peak_binding(double share_ms, double share_mt, double share_effort);
 void ps_attribution_compute(ps_limits_ws *lws, ps_analysis *scratch, const ps_analysis *an, const ps_requirements *q,
                             const ps_floors *fl, ps_peak binding, ps_attribution *out);
 
-/* The binding floor of fl for peak b (NAN for NONE). */
+/* The binding floor of fl for peak b (NAN for NONE), and its natural
+ * logarithm (finite where the floor overflowed a double). */
 double ps_peak_floor(const ps_floors *fl, ps_peak b);
+double ps_peak_floor_ln(const ps_floors *fl, ps_peak b);
 
 /* The cause in one sentence, built from the attribution: the factors that
  * lower the binding floor, largest first, each with the floor its

@@ -25,13 +25,14 @@ static void put_rhp(ps_text *t, const char *label, const ps_root *r, size_t n)
         ps_text_put(t, " none");
 }
 
-static ps_audit_item *add(ps_audit *a, const char *key, const char *name, double value, const char *source,
-                          const char *assumption)
+static ps_audit_item *add(ps_audit *a, const char *key, const char *name, double value, double value_ln,
+                          const char *source, const char *assumption)
 {
     ps_audit_item *it = &a->item[a->n++];
     it->key = key;
     it->name = name;
     it->value = value;
+    it->value_ln = value_ln;
     it->formula[0] = it->inputs[0] = '\0';
     it->source = source;
     it->assumption = assumption;
@@ -65,7 +66,7 @@ static const char ASSUME_IS[] = "internal stability: no RHP pole/zero cancellati
 
 static void mt_item(ps_audit *a, const ps_analysis *an, const ps_floors *fl)
 {
-    ps_audit_item *it = add(a, "mt_interpolation", "Mt interpolation floor", fl->mt_interpolation, SRC_PICK, ASSUME_IS);
+    ps_audit_item *it = add(a, "mt_interpolation", "Mt interpolation floor", fl->mt_interpolation, fl->mt_interpolation_ln, SRC_PICK, ASSUME_IS);
     roots_inputs(it, an);
     switch (fl->mt_route) {
     case PS_ROUTE_NONE:
@@ -103,7 +104,7 @@ static void mt_item(ps_audit *a, const ps_analysis *an, const ps_floors *fl)
 
 static void ms_item(ps_audit *a, const ps_analysis *an, const ps_floors *fl)
 {
-    ps_audit_item *it = add(a, "ms_interpolation", "Ms interpolation floor", fl->ms_interpolation, SRC_CHEN, ASSUME_IS);
+    ps_audit_item *it = add(a, "ms_interpolation", "Ms interpolation floor", fl->ms_interpolation, fl->ms_interpolation_ln, SRC_CHEN, ASSUME_IS);
     roots_inputs(it, an);
     switch (fl->ms_route) {
     case PS_ROUTE_NONE:
@@ -154,7 +155,7 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
     ps_audit_item *it;
     ps_text t;
 
-    it = add(out, "bode_area", "Bode area F", fl->bode_area, "Bode 1945; " "Freudenberg & Looze, IEEE TAC 30(6), 1985",
+    it = add(out, "bode_area", "Bode area F", fl->bode_area, log(fl->bode_area), "Bode 1945; " "Freudenberg & Looze, IEEE TAC 30(6), 1985",
              "closed loop stable; loop of relative degree >= 2 (degree 1 adds -pi/2 lim s L(s))");
     set_formula(it, "F = pi * sum Re p over the RHP poles (with multiplicity)");
     t = ps_text_on(it->inputs, sizeof it->inputs);
@@ -163,20 +164,20 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
     ms_item(out, an, fl);
     mt_item(out, an, fl);
 
-    it = add(out, "effort", "effort floor (peak |C S|)", fl->effort, SRC_SP5, ASSUME_IS);
+    it = add(out, "effort", "effort floor (peak |C S|)", fl->effort, fl->effort_ln, SRC_SP5, ASSUME_IS);
     t = ps_text_on(it->inputs, sizeof it->inputs);
     put_rhp(&t, "p", an->poles, an->n_poles);
     ps_text_put(&t, "; theta = %.10g s; G_s the stable mirror k prod(s - z)/[prod_{LHP, axis}(s - q) prod_{RHP}(s + conj p)]",
         an->delay);
     if (an->n_rhp_poles == 0)
         set_formula(it, "0: no unstable pole to stabilize");
-    else if (isinf(fl->effort))
+    else if (fl->infinite)
         set_formula(it, "infinite: %s", fl->note);
     else
         set_formula(it, "Pick minimum norm with points p_i and values e^{p_i theta}/G_s(p_i) (one pole: "
                         "e^{p theta}/|G_s(p)|)");
 
-    it = add(out, "ms_band", "Ms band-forced floor", fl->ms_band,
+    it = add(out, "ms_band", "Ms band-forced floor", fl->ms_band, fl->ms_band_ln,
              "Doyle, Francis & Tannenbaum, Feedback Control Theory, 1992, ch. \"Design Constraints\"; "
              "delta = 0: G. Stein, IEEE CSM 23(4), 2003",
              "the future loop meets |L| <= delta (w_h/w)^(1+k) beyond w_h (an assumption about the controller); "
@@ -190,7 +191,7 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
     } else
         set_formula(it, "not applicable: no rolloff_start given");
 
-    it = add(out, "ms_poisson", "Ms Poisson floor", fl->ms_poisson, SRC_FL, "|S| <= eps on [0, w_b]");
+    it = add(out, "ms_poisson", "Ms Poisson floor", fl->ms_poisson, fl->ms_poisson_ln, SRC_FL, "|S| <= eps on [0, w_b]");
     t = ps_text_on(it->inputs, sizeof it->inputs);
     if (q->wb > 0) {
         set_formula(it, "max over the RHP zeros z = x + jy (one per pair) of (1/eps)^{Theta/(pi - Theta)} "
@@ -202,7 +203,7 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
     } else
         set_formula(it, "not applicable: no band requirement");
 
-    it = add(out, "mt_poisson", "Mt Poisson floor", fl->mt_poisson, SRC_FL,
+    it = add(out, "mt_poisson", "Mt Poisson floor", fl->mt_poisson, fl->mt_poisson_ln, SRC_FL,
              "|T| <= eps_T = delta/(1 - delta) beyond w_h (from the roll-off requirement)");
     t = ps_text_on(it->inputs, sizeof it->inputs);
     if (q->wh > 0 && q->delta > 0) {
@@ -217,12 +218,12 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
                                     "the limit, which gives no finite floor"
                                   : "not applicable: no rolloff_start given");
 
-    it = add(out, "ms", "overall Ms floor", fl->ms, "S + T = 1 (identity)",
+    it = add(out, "ms", "overall Ms floor", fl->ms, fl->ms_ln, "S + T = 1 (identity)",
              "each floor above under its own assumption");
     set_formula(it, "max(Ms interpolation, Ms band-forced, Ms Poisson, max(Mt interpolation, Mt Poisson) - 1)%s; "
                     "set by: %s",
                 q->wh > 0 ? ", at least 1 with a roll-off requirement (a strictly proper loop)" : "", fl->limiting);
-    it = add(out, "mt", "overall Mt floor", fl->mt, "S + T = 1 (identity)",
+    it = add(out, "mt", "overall Mt floor", fl->mt, fl->mt_ln, "S + T = 1 (identity)",
              "each floor above under its own assumption");
     set_formula(it, "max(Mt interpolation, Mt Poisson, max(Ms interpolation, Ms band-forced, Ms Poisson) - 1)");
 }

@@ -15,7 +15,8 @@ enum { PS_AUDIT_MAX = 12, PS_AUDIT_TEXT = 480 };
 typedef struct ps_audit_item {
     const char *key;        /* stable key, the JSON name of the value ("bode_area", "ms_interpolation", ...) */
     const char *name;       /* in words ("Bode area F") */
-    double value;           /* NAN: not applicable; INFINITY: infinite */
+    double value;           /* NAN: not applicable; INFINITY: infinite, or past a double's range */
+    double value_ln;        /* its natural logarithm: finite when the value is past a double's range */
     char formula[PS_AUDIT_TEXT];    /* the formula of the route actually taken */
     char inputs[PS_AUDIT_TEXT];     /* its inputs, with their values */
     const char *source;     /* book, edition, section; or "common practice" / "from memory" */

@@ -12,6 +12,7 @@
 #include <sys/types.h>
 #include <unistd.h>
 
+#include "core/text.h"
 #include "limits/limits.h"
 
 #ifndef M_PI
@@ -87,6 +88,22 @@ double ps_share_effort(double floor, double allowed)
     return log1p(floor) / log1p(allowed);
 }
 
+double ps_share_peak_ln(double floor, double floor_ln, double allowed)
+{
+    if (isinf(floor) && isfinite(floor_ln))
+        return fmax(floor_ln, 0.0) / log(allowed);
+    return ps_share_peak(floor, allowed);
+}
+
+double ps_share_effort_ln(double floor, double floor_ln, double allowed)
+{
+    /* ln(1 + e^L) = L + ln(1 + e^-L): past a double's range the second
+     * term is below any rounding of L. */
+    if (isinf(floor) && isfinite(floor_ln) && allowed > 0)
+        return floor_ln / log1p(allowed);
+    return ps_share_effort(floor, allowed);
+}
+
 ps_verdict ps_verdict_of(double severity, bool infinite, bool hidden, double marginal_at)
 {
     if (infinite || hidden || isinf(severity))
@@ -100,9 +117,9 @@ ps_verdict ps_verdict_of(double severity, bool infinite, bool hidden, double mar
 
 static double severity_of(const ps_floors *fl, const ps_requirements *q, double *sm, double *st, double *se)
 {
-    *sm = ps_share_peak(fl->ms, q->ms_allowed);
-    *st = ps_share_peak(fl->mt, q->mt_allowed);
-    *se = q->effort_allowed > 0 ? ps_share_effort(fl->effort, q->effort_allowed) : NAN;
+    *sm = ps_share_peak_ln(fl->ms, fl->ms_ln, q->ms_allowed);
+    *st = ps_share_peak_ln(fl->mt, fl->mt_ln, q->mt_allowed);
+    *se = q->effort_allowed > 0 ? ps_share_effort_ln(fl->effort, fl->effort_ln, q->effort_allowed) : NAN;
     if (fl->infinite)
         return INFINITY;
     double s = fmax(*sm, *st);
@@ -301,9 +318,11 @@ static void failing_words(const probe *pr, double x, char *buf, size_t n)
     double sm, st, se;
     severity_of(fl, &q, &sm, &st, &se);
     ps_peak b = ps_peak_binding(sm, st, se);
-    double floor = ps_peak_floor(fl, b);
+    char floor[48];
+    ps_text_big(floor, sizeof floor, ps_peak_floor(fl, b), ps_peak_floor_ln(fl, b), 3);
     double allowed = b == PS_PEAK_MT ? q.mt_allowed : b == PS_PEAK_EFFORT ? q.effort_allowed : q.ms_allowed;
-    snprintf(buf, n, "%s the %s floor is %.3g against %.3g allowed", at,
+    ps_text t = ps_text_on(buf, n); /* cut quietly at the end of the room, as before */
+    ps_text_put(&t, "%s the %s floor is %s against %.3g allowed", at,
              b == PS_PEAK_EFFORT ? "effort" : ps_peak_name(b), floor, allowed);
 }
 
@@ -503,11 +522,13 @@ static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_require
 static void text_needs_bandwidth(const ps_analysis *an, const ps_floors *fl, char *buf, size_t n)
 {
     double p = dominant_pole(an);
+    char ms[48], mt[48];
     snprintf(buf, n,
-             "unstable pole%s %.3g rad/s and no rolloff_start: without a bandwidth limit the floors (Ms %.3g, "
-             "Mt %.3g) cannot rule the plant in or out; give rolloff_start, the bandwidth the actuator, sensor "
+             "unstable pole%s %.3g rad/s and no rolloff_start: without a bandwidth limit the floors (Ms %s, "
+             "Mt %s) cannot rule the plant in or out; give rolloff_start, the bandwidth the actuator, sensor "
              "and sampling allow",
-             an->n_rhp_poles > 1 ? "s, dominant" : "", p, fl->ms, fl->mt);
+             an->n_rhp_poles > 1 ? "s, dominant" : "", p, ps_text_big(ms, sizeof ms, fl->ms, fl->ms_ln, 3),
+             ps_text_big(mt, sizeof mt, fl->mt, fl->mt_ln, 3));
 }
 
 static void copy_roots(const ps_root *r, size_t n, ps_cplx *out, size_t *n_out)

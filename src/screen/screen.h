@@ -126,6 +126,11 @@ void ps_screen_ws_free(ps_screen_ws *ws);
  * below 1 counts as 1), ln(1 + effort)/ln(1 + allowed) for effort. */
 double ps_share_peak(double floor, double allowed);
 double ps_share_effort(double floor, double allowed);
+/* The same for a floor given with its natural logarithm (ps_floors): where
+ * the floor overflowed a double (+INFINITY with a finite floor_ln) the share
+ * is taken from the logarithm, so it stays finite; otherwise as above. */
+double ps_share_peak_ln(double floor, double floor_ln, double allowed);
+double ps_share_effort_ln(double floor, double floor_ln, double allowed);
 
 /* Verdict from the floors, requirements and structure. */
 ps_verdict ps_verdict_of(double severity, bool infinite, bool hidden, double marginal_at);

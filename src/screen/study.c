@@ -126,9 +126,9 @@ static bool evaluate(ps_study_ws *ws, ps_family *fam, const double *values, cons
     pt->mt_allowed = q->mt_allowed;
     pt->effort_allowed = q->effort_allowed > 0 ? q->effort_allowed : NAN;
     /* The shares as the severity weighs them (screen.c). */
-    pt->share_ms = ps_share_peak(fl->ms, q->ms_allowed);
-    pt->share_mt = ps_share_peak(fl->mt, q->mt_allowed);
-    pt->share_effort = q->effort_allowed > 0 ? ps_share_effort(fl->effort, q->effort_allowed) : NAN;
+    pt->share_ms = ps_share_peak_ln(fl->ms, fl->ms_ln, q->ms_allowed);
+    pt->share_mt = ps_share_peak_ln(fl->mt, fl->mt_ln, q->mt_allowed);
+    pt->share_effort = q->effort_allowed > 0 ? ps_share_effort_ln(fl->effort, fl->effort_ln, q->effort_allowed) : NAN;
     pt->hidden = ws->an.hidden_unstable;
     pt->verdict = ps_verdict_of(sev, fl->infinite, ws->an.hidden_unstable, opt->marginal_at);
     pt->pass = pt->verdict == PS_VERDICT_CLEAR || pt->verdict == PS_VERDICT_MARGINAL;

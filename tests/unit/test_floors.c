@@ -6,6 +6,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "core/text.h"
 #include "limits/floors.h"
 #include "support.h"
 
@@ -209,6 +210,7 @@ Test(floors, exact_cancellation_is_infinite)
     cr_assert(an.hidden_unstable);
     cr_assert(fl.infinite);
     cr_assert(isinf(fl.ms));
+    cr_assert(fl.ms_ln == INFINITY && fl.mt_ln == INFINITY, "an exact cancellation is infinite in the log too");
     cr_assert_str_eq(fl.limiting, "hidden-mode");
 }
 
@@ -423,6 +425,13 @@ static void same_floors(const ps_floors *a_fl, const ps_floors *f_fl, const ps_r
     for (size_t m = 0; m < 9; m++) /* bode_area .. mt */
         cr_assert(same_double(a[m], f[m]), "field %zu at wb %g wh %g delta %g: %.17g vs %.17g", m, q->wb, q->wh,
                   q->delta, a[m], f[m]);
+    const double a_ln[] = {a_fl->ms_ln, a_fl->mt_ln, a_fl->ms_interpolation_ln, a_fl->mt_interpolation_ln,
+                           a_fl->effort_ln, a_fl->ms_band_ln, a_fl->ms_poisson_ln, a_fl->mt_poisson_ln};
+    const double f_ln[] = {f_fl->ms_ln, f_fl->mt_ln, f_fl->ms_interpolation_ln, f_fl->mt_interpolation_ln,
+                           f_fl->effort_ln, f_fl->ms_band_ln, f_fl->ms_poisson_ln, f_fl->mt_poisson_ln};
+    for (size_t m = 0; m < 8; m++) /* the logarithms beside the floors */
+        cr_assert(same_double(a_ln[m], f_ln[m]), "log %zu at wb %g wh %g delta %g: %.17g vs %.17g", m, q->wb, q->wh,
+                  q->delta, a_ln[m], f_ln[m]);
     cr_assert_str_eq(a_fl->limiting, f_fl->limiting);
     cr_assert(same_double(a_fl->crossover_min, f_fl->crossover_min));
     cr_assert(same_double(a_fl->crossover_max, f_fl->crossover_max));
@@ -471,6 +480,11 @@ Test(floors, plant_half_then_requirements_equals_full_compute)
     check_halves();
     run((ps_cplx[]){{-1.9, 0}}, 1, (ps_cplx[]){{0.35, 0}}, 1, 2.6, 0.0);
     check_halves();
+    /* floors past a double's range: e^{p theta} = e^{954}, and band floors of a fast pole */
+    run((ps_cplx[]){{7.9, 0}}, 1, (ps_cplx[]){{2.385, 0}, {0.93, 0}, {-7.1, 0}}, 3, 3.17, 400.0);
+    check_halves();
+    run(NULL, 0, (ps_cplx[]){{2.385e5, 0}, {-20, 0}}, 2, 100.0, 0.0);
+    check_halves();
 }
 
 /* After one ps_floors_apply, moving only the band edge (wb, eps) with
@@ -491,7 +505,7 @@ static void check_band_only(void)
             ps_floors base, moved, full;
             ps_floors_plant(lws, &an, &base);
             ps_floors_apply(lws, &an, &q, &base);
-            cr_assert(isfinite(base.mt_poisson), "the Poisson Mt floor is active in this case");
+            cr_assert(isfinite(base.mt_poisson_ln), "the Poisson Mt floor is active in this case");
             for (size_t i = 0; i < 5; i++) {
                 q.wb = wb[i];
                 q.eps = i % 2 ? 0.1 : 0.7071;
@@ -516,4 +530,95 @@ Test(floors, band_only_update_equals_full_compute)
     check_band_only();
     run((ps_cplx[]){{-1.9, 0}}, 1, (ps_cplx[]){{0.35, 0}}, 1, 2.6, 0.0);
     check_band_only();
+    /* past a double's range: a long delay (Poisson Mt floor) and a fast pole (band floors) */
+    run((ps_cplx[]){{19, 0}}, 1, (ps_cplx[]){{2.385, 0}, {-9, 0}}, 2, 2.0, 400.0);
+    check_band_only();
+    run(NULL, 0, (ps_cplx[]){{2.385e5, 0}, {-20, 0}}, 2, 100.0, 0.0);
+    check_band_only();
+}
+
+/* Floors past a double's range (about 1.8e308) are finite: they are carried
+ * in natural logarithms, `infinite` stays false and the note names no
+ * cancellation (issue 14, finding 1). One RHP pole p with delay theta: the
+ * Mt floor is |e^{p theta} B_z(p)^-1| = e^{p theta} (z + p)/(z - p) for one
+ * RHP zero z (S&P 2nd ed. 2005, ch. 5, one interpolation point), and with
+ * delay the Ms floor equals it; the effort floor is e^{p theta}/|G_s(p)|,
+ * G_s(p) = k (p - z)/((p + p)(p + a)) for P = k (s - z)/((s - p)(s + a)). */
+Test(floors, long_delay_floor_is_finite_in_logarithm)
+{
+    double pp = 2.385, th = 400.0, a = 7.1, k = 3.17, z = 7.9;
+    run(NULL, 0, (ps_cplx[]){{pp, 0}, {-a, 0}}, 2, k, th);
+    cr_assert(!fl.infinite);
+    cr_assert(isinf(fl.mt_interpolation), "e^954 is past a double's range");
+    cr_assert_float_eq(fl.mt_interpolation_ln, pp * th, 1e-12 * pp * th);
+    cr_assert_float_eq(fl.ms_interpolation_ln, pp * th, 1e-12 * pp * th);
+    cr_assert_float_eq(fl.ms_ln, pp * th, 1e-12 * pp * th);
+    cr_assert_float_eq(fl.mt_ln, pp * th, 1e-12 * pp * th);
+    cr_assert_float_eq(fl.effort_ln, pp * th + log(2 * pp * (pp + a) / k), 1e-12 * pp * th);
+    cr_assert_str_eq(fl.limiting, "interpolation");
+    cr_assert_null(strstr(fl.note, "coincides"), "note: %s", fl.note);
+    /* printed as a power of ten: e^954 = 2.0746065...e+414 (Python decimal, 40 digits) */
+    char b[48];
+    cr_assert_str_eq(ps_text_big(b, sizeof b, fl.mt, fl.mt_ln, 5), "2.0746e+414");
+    run((ps_cplx[]){{z, 0}}, 1, (ps_cplx[]){{pp, 0}, {-a, 0}}, 2, k, th);
+    cr_assert(!fl.infinite);
+    double want = pp * th + log((z + pp) / (z - pp));
+    cr_assert_float_eq(fl.mt_interpolation_ln, want, 1e-12 * want);
+    cr_assert_float_eq(fl.ms_ln, want, 1e-12 * want);
+    cr_assert_float_eq(fl.effort_ln, pp * th + log(2 * pp * (pp + a) / (k * (z - pp))), 1e-12 * want);
+}
+
+/* Two RHP poles with delay: past e^230 the Pick data are scaled by their
+ * largest modulus (gamma(c w) = |c| gamma(w)). ln gamma is smooth in theta,
+ * so its second difference across the threshold (one side plain, one side
+ * scaled; step h) is O(h^2); a scaling that lost or doubled the factor would
+ * leave a jump of about 230. */
+Test(floors, scaled_pick_continues_the_plain_one)
+{
+    double p2 = 7.7, h = 1e-3, th[3], l[3];
+    th[1] = 230.0 / p2; /* the larger data modulus is e^{p2 theta}: at the threshold */
+    th[0] = th[1] - h;
+    th[2] = th[1] + h;
+    for (int i = 0; i < 3; i++) {
+        run((ps_cplx[]){{19.3, 0}}, 1, (ps_cplx[]){{3.1, 0}, {p2, 0}, {-12, 0}}, 3, 55.0, th[i]);
+        cr_assert(!fl.infinite);
+        cr_assert_eq(fl.mt_route, PS_ROUTE_PICK);
+        l[i] = fl.mt_interpolation_ln;
+        cr_assert_geq(l[i], p2 * th[i] + log((19.3 + p2) / (19.3 - p2)) - 1e-9, "not below the single-point value");
+    }
+    cr_assert_float_eq(l[0] - 2 * l[1] + l[2], 0.0, 1e-6, "second difference %g", l[0] - 2 * l[1] + l[2]);
+    /* and far past a double's range it stays finite and above the single-point value */
+    run((ps_cplx[]){{19.3, 0}}, 1, (ps_cplx[]){{3.1, 0}, {p2, 0}, {-12, 0}}, 3, 55.0, 500.0);
+    cr_assert(!fl.infinite);
+    cr_assert(isfinite(fl.mt_interpolation_ln) && isfinite(fl.effort_ln));
+    cr_assert_geq(fl.mt_interpolation_ln, p2 * 500.0 + log((19.3 + p2) / (19.3 - p2)) - 1e-9);
+}
+
+/* A fast RHP pole against a low roll-off start: the band floor exp(pi p /
+ * w_h) with delta = 0 (Stein 2003) is past a double's range; its logarithm
+ * is pi p / w_h, and Mt >= Ms - 1 has the same logarithm there. */
+Test(floors, band_floor_past_double_range_is_finite_in_logarithm)
+{
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "far");
+    p.poles[0] = (ps_cplx){2.385e8, 0};
+    p.poles[1] = (ps_cplx){-20, 0};
+    p.n_poles = 2;
+    p.gain = 100;
+    p.req.wh = 7.3;
+    p.req.delta = 0.0;
+    p.present = (1u << PS_F_ID) | (1u << PS_F_POLES) | (1u << PS_F_GAIN) | (1u << PS_F_ROLLOFF_START) |
+                (1u << PS_F_ROLLOFF_GAIN);
+    ps_diag d = {0};
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(rws, &p, &an, &d), PS_OK, "%s", d.text);
+    ps_floors_compute(lws, &an, &p.req, &fl);
+    double want = M_PI * 2.385e8 / 7.3;
+    cr_assert(!fl.infinite);
+    cr_assert(isinf(fl.ms_band));
+    cr_assert_float_eq(fl.ms_band_ln, want, 1e-13 * want);
+    cr_assert_float_eq(fl.ms_ln, want, 1e-13 * want);
+    cr_assert_float_eq(fl.mt_ln, want, 1e-13 * want);
+    cr_assert_str_eq(fl.limiting, "band");
+    cr_assert_float_eq(fl.ms_interpolation, 1.0, 0);
 }
