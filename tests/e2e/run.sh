@@ -423,6 +423,55 @@ rows = list(csv.DictReader(open(sys.argv[2], newline="")))
 assert [r["id"] for r in rows] == [p["id"] for p in d["plants"]], rows
 assert rows[1]["verdict"] == "redesign"
 ' "$tmp/scr/closed-form.screen.json" "$tmp/scr/closed-form.screen.csv"; check "screen: closed-form verdicts, ranking and targets" 0 $?
+# Floors too large for a double but finite (issue 14, finding 1): carried in
+# logarithms, a redesign with a finite severity and a true cause, never "not
+# stabilizable"; an exact cancellation still is. Closed forms in the catalog's
+# header: e^{p theta} for one RHP pole with delay (S&P 2nd ed. 2005, ch. 5) and
+# exp(pi p / w_h) for the band floor with delta = 0 (Stein 2003).
+"$ps" screen -o "$tmp/ovf" --gate never "$src/tests/data/e2e/overflow.yaml" >"$tmp/out" 2>"$tmp/err"
+check "screen: overflowing floors screen without error" 0 $?
+contains "listing prints an overflowing floor as a power of ten (e^1000 = 1.97e+434)" "$tmp/ovf/overflow.screen.txt" "1.97e+434"
+"$py" - "$tmp/ovf/overflow.screen.json" "$tmp/ovf/overflow.screen.csv" <<'PY'
+import csv, json, math, sys
+doc = json.load(open(sys.argv[1]))
+rows = {r["id"]: r for r in csv.DictReader(open(sys.argv[2], newline=""))}
+by = {p["id"]: p for p in doc["plants"]}
+def close(a, b, rel=1e-9):
+    return a is not None and abs(a - b) <= rel * abs(b)
+bad = []
+def want(cond, what):
+    if not cond:
+        bad.append(what)
+for pid, ln_floor, factor, words in (("pole-long-delay", 1.0 * 1000.0, "delay", "delay 1e+03 s"),
+                                     ("pole-far", math.pi * 1.0e8 / 10.0, "rolloff_start", "available bandwidth 10 rad/s")):
+    p = by[pid]
+    f, q = p["floors"], p["requirements"]
+    # Mt >= Ms - 1 and Ms >= Mt - 1: past 1e308 both share the one logarithm.
+    sev = max(ln_floor / math.log(q["peak_s_allowed"]), ln_floor / math.log(q["peak_t_allowed"]))
+    want(p["verdict"] == "redesign", pid + ": verdict " + p["verdict"])
+    want(close(p["severity"], sev), "%s: severity %r, closed form %r" % (pid, p["severity"], sev))
+    want(close(float(rows[pid]["severity"]), sev, 1e-8), pid + ": CSV severity " + rows[pid]["severity"])  # "%.9g"
+    want(f["infinite"] is False, pid + ": infinite")
+    for key in ("ms", "mt"):
+        want(f[key] is None and close(f.get(key + "_log10"), ln_floor / math.log(10), 1e-12),
+             "%s: %s %r, %s_log10 %r" % (pid, key, f[key], key, f.get(key + "_log10")))
+        want(f["reasons"].get(key, "").startswith("finite but past"), pid + ": reason for " + key)
+    want(close(p["attribution"]["floor_log10"], ln_floor / math.log(10), 1e-12), pid + ": attribution floor_log10")
+    want(p["attribution"]["factors"][0]["factor"] == factor and p["attribution"]["factors"][0]["lowers"],
+         pid + ": first factor " + repr(p["attribution"]["factors"]))
+    want(p["cause"].startswith(words) and "coincide" not in p["cause"] and "hidden" not in p["cause"],
+         pid + ": cause " + p["cause"])
+want(close(by["pole-long-delay"]["floors"].get("mt_interpolation_log10"), 1000 / math.log(10), 1e-12), "delay: Mt interpolation log10")
+want(close(by["pole-far"]["floors"].get("ms_band_log10"), math.pi * 1e7 / math.log(10), 1e-12), "far: band log10")
+want(by["pole-far"]["floors"]["limiting"] == "band", "far: limiting")
+c = by["cancel"]
+want(c["verdict"] == "not-stabilizable" and c["floors"]["infinite"] is True and c["floors"]["ms"] is None
+     and "ms_log10" not in c["floors"], "cancel: " + repr((c["verdict"], c["floors"]["infinite"])))
+print("\n".join(bad))
+sys.exit(1 if bad else 0)
+PY
+check "screen: overflowing floors are finite redesigns with closed-form severity and log10; a cancellation stays infinite" 0 $?
+
 (cd "$src" && "$ps" screen -o "$tmp/demo" --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
 for ext in txt csv json md html; do
     cmp -s "$tmp/demo/demo-variants.screen.$ext" "$src/reports/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
@@ -432,7 +481,7 @@ done
 # survey schema's $defs/floors, referenced by file name: the resolver gets
 # that file from a local store and may not fetch anything.
 for doc in "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" \
-           "$tmp/scr/broken-entries.screen.json" "$tmp/fam/families.screen.json"; do
+           "$tmp/scr/broken-entries.screen.json" "$tmp/fam/families.screen.json" "$tmp/ovf/overflow.screen.json"; do
     "$py" -c '
 import json, sys, jsonschema
 from jsonschema.validators import validator_for
