@@ -461,8 +461,13 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
             break;
         case PS_TARGET_BAND: {
             t->now = q->wb > 0 ? q->wb : NAN;
+            /* The band lies below the roll-off start: the range ends there,
+             * and starts six decades below the plant's scale or below w_h,
+             * whichever is lower (a plant far faster than w_h would
+             * otherwise get a range that starts above its end). */
             double hi = q->wh > 0 ? q->wh * (1 - 1e-9) : scale * 1e6;
-            search(&pr, t, q->wb > 0 ? q->wb : scale * 1e-6, scale * 1e-6, hi, true);
+            double lo = fmin(scale, hi) * 1e-6;
+            search(&pr, t, q->wb > 0 ? q->wb : lo, lo, hi, true);
             if (!(q->wb > 0))
                 t->passes_now = false;
             break;
@@ -497,7 +502,7 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
 static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *q, ps_summary *s)
 {
     double scale = plant_scale(an, q);
-    double lo = scale * 1e-3, hi = q->wh > 0 ? q->wh * 0.999 : scale * 1e2;
+    double hi = q->wh > 0 ? q->wh * 0.999 : scale * 1e2, lo = fmin(scale, hi) * 1e-3;
     ps_requirements r = *q;
     r.eps = s->band_eps;
     s->n_curve = PS_CURVE_N;

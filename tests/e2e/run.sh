@@ -471,6 +471,17 @@ print("\n".join(bad))
 sys.exit(1 if bad else 0)
 PY
 check "screen: overflowing floors are finite redesigns with closed-form severity and log10; a cancellation stays infinite" 0 $?
+# A plant far faster than its roll-off start fails with any band: its band
+# target and band curve stay below w_h (the range once started above its end).
+"$py" - "$tmp/ovf/overflow.screen.json" <<'PY'
+import json, sys
+P = {p["id"]: p for p in json.load(open(sys.argv[1]))["plants"]}
+p = P["pole-far"]
+assert p["targets"]["band_edge"]["state"] == "no-value-passes", p["targets"]["band_edge"]
+wh = p["requirements"]["rolloff_start"]
+assert all(w < wh for w in p["band_curve"]["band_edge"]), p["band_curve"]["band_edge"]
+PY
+check "band target and curve of a plant far faster than w_h stay below w_h" 0 $?
 
 (cd "$src" && "$ps" screen -o "$tmp/demo" --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
 for ext in txt csv json md html; do
