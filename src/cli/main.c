@@ -3,6 +3,7 @@
 #include <errno.h>
 #include <locale.h>
 #include <math.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -15,6 +16,7 @@
 #include "core/text.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
+#include "report/report_set.h"
 #include "report/reports.h"
 #include "screen/audit.h"
 #include "screen/screen.h"
@@ -28,8 +30,11 @@ enum {
     EXIT_GATE = 1,       /* screening: the gate tripped (by default: some plant needs redesign or is not stabilizable) */
     EXIT_USAGE = 2,      /* bad command line */
     EXIT_ENTRIES = 3,    /* some entries could not be read or (screen) judged; the rest were processed */
-    EXIT_IO = 4          /* a catalog could not be opened or parsed, or output failed */
+    EXIT_IO = 4,         /* a catalog could not be opened or parsed, or output failed */
+    EXIT_BUSY = 5        /* screen: another run is writing the same report set into DIR */
 };
+/* An interrupted screen run exits 128 + the signal number (130 SIGINT,
+ * 143 SIGTERM, 129 SIGHUP), as a shell reports a process killed by it. */
 
 /* Rows per section of the stdout listing unless --show says otherwise. */
 #define SHOW_DEFAULT 40
@@ -79,7 +84,9 @@ static const char usage_text[] =
     "Catalogs are YAML (.yaml, .yml) or CSV (.csv). Exit codes: 0 success (screen:\n"
     "the gate passed), 1 the gate tripped, 2 usage error, 3 some entries rejected\n"
     "or (screen) some plants not judged: an unstable plant needs rolloff_start (the\n"
-    "rest processed), 4 a catalog, a report or the output failed.\n";
+    "rest processed), 4 a catalog, a report or the output failed, 5 another run is\n"
+    "writing the same reports into DIR; interrupted by SIGINT, SIGTERM or SIGHUP:\n"
+    "128 + the signal number, and no report of the run is published.\n";
 
 typedef struct cli_ctx {
     ps_listing *listing;
@@ -342,6 +349,58 @@ static bool want_colour(void)
 
 static size_t count_entries(char **files, int n);
 
+/* The report set of a screen run and what an interrupt prints, static so
+ * that the handler reaches them; it uses only async-signal-safe calls. */
+static ps_report_set screen_set;
+static const int interrupt_signals[] = {SIGINT, SIGTERM, SIGHUP};
+static char interrupt_text[3][PS_SET_PATH + 200];
+static size_t interrupt_len[3];
+
+static void on_interrupt(int sig)
+{
+    ps_report_set_release(&screen_set);
+    size_t k = sig == SIGINT ? 0 : sig == SIGTERM ? 1 : 2;
+    ssize_t w = write(STDERR_FILENO, interrupt_text[k], interrupt_len[k]);
+    (void)w;
+    _exit(128 + sig);
+}
+
+/* From here until the run ends, SIGINT, SIGTERM and SIGHUP discard the
+ * staged reports, release the lock and end the run. */
+static void interrupts_catch(const char *outdir)
+{
+    static const char *const names[] = {"SIGINT", "SIGTERM", "SIGHUP"};
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = on_interrupt;
+    sigemptyset(&sa.sa_mask);
+    for (size_t k = 0; k < 3; k++)
+        sigaddset(&sa.sa_mask, interrupt_signals[k]);
+    for (size_t k = 0; k < 3; k++) {
+        /* A signal ignored at start (a background job of a script, nohup) stays ignored. */
+        struct sigaction was;
+        if (sigaction(interrupt_signals[k], NULL, &was) == 0 && was.sa_handler == SIG_IGN)
+            continue;
+        int n = snprintf(interrupt_text[k], sizeof interrupt_text[k],
+                         "plantsieve: interrupted by %s: no report of this run was published; the previous "
+                         "reports in %s are left as they were\n",
+                         names[k], outdir);
+        interrupt_len[k] = n < 0 ? 0 : (size_t)n < sizeof interrupt_text[k] ? (size_t)n : sizeof interrupt_text[k] - 1;
+        sigaction(interrupt_signals[k], &sa, NULL);
+    }
+}
+
+/* Publishing is one step that a signal must not cut: hold the signals from
+ * here to the end of the run (a signal this late finds the run finished). */
+static void interrupts_hold(void)
+{
+    sigset_t set;
+    sigemptyset(&set);
+    for (size_t k = 0; k < 3; k++)
+        sigaddset(&set, interrupt_signals[k]);
+    sigprocmask(SIG_BLOCK, &set, NULL);
+}
+
 static int cmd_screen(int argc, char **argv)
 {
     const char *outdir = "reports";
@@ -447,6 +506,19 @@ static int cmd_screen(int argc, char **argv)
     }
     if (!files)
         opt.keep_top = show; /* only the cut listing reads the rows (0: all) */
+    char stem[256], name[320], full[PS_SET_PATH + 600];
+    stem_of(cats[0], stem, sizeof stem);
+    if (files) {
+        /* The lock is taken before the work, so a concurrent run is refused at once. */
+        ps_diag d = {0};
+        ps_status st = ps_report_set_open(&screen_set, outdir, stem, &d);
+        if (st != PS_OK) {
+            fprintf(stderr, "plantsieve: %s\n", d.text);
+            free(cats);
+            return st == PS_ERR_BUSY ? EXIT_BUSY : EXIT_IO;
+        }
+        interrupts_catch(outdir);
+    }
     screen_ctx c = {0};
     ps_run_init(&c.run, &opt);
     c.ws = ps_screen_ws_new();
@@ -463,6 +535,8 @@ static int cmd_screen(int argc, char **argv)
     ps_pool_free(c.pool);
     if (!c.ws || c.nomem) {
         fputs("plantsieve: out of memory (or no room for the temporary summary file)\n", stderr);
+        if (files)
+            ps_report_set_release(&screen_set);
         ps_screen_ws_free(c.ws);
         ps_run_free(&c.run);
         free(cats);
@@ -471,34 +545,53 @@ static int cmd_screen(int argc, char **argv)
     ps_run_rank(&c.run);
     int rc = EXIT_CLEAN;
     bool io_failed = !read_ok;
-    char stem[256], name[320], full[600];
-    stem_of(cats[0], stem, sizeof stem);
-    snprintf(full, sizeof full, "%s/%s.screen.txt", outdir, stem);
+    snprintf(full, sizeof full, "%s/%s.screen.txt", screen_set.published, stem);
     if (ps_write_terminal(stdout, &c.run, want_colour(), show, files ? full : NULL) != PS_OK)
         io_failed = true;
     if (files) {
+        /* The whole set is staged, then published at once, or nothing is. */
         struct { const char *ext; ps_writer_fn fn; } out[] = {
             {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
             {"md", ps_write_markdown},     {"html", ps_write_html},
             {"families.csv", ps_write_families_csv},
         };
-        if (mkdir(outdir, 0777) != 0 && errno != EEXIST) {
-            fprintf(stderr, "plantsieve: cannot create %s: %s\n", outdir, strerror(errno));
-            io_failed = true;
-        } else
-            for (size_t i = 0; i < sizeof out / sizeof out[0]; i++) {
-                ps_diag d = {0};
-                if (out[i].fn == ps_write_families_csv && c.run.n_families == 0)
-                    continue;
-                snprintf(name, sizeof name, "%s.screen.%s", stem, out[i].ext);
-                if (ps_write_atomic(outdir, name, out[i].fn, &c.run, &d) != PS_OK) {
-                    fprintf(stderr, "plantsieve: %s\n", d.text);
-                    io_failed = true;
-                }
+        enum { N_OUT = sizeof out / sizeof out[0] };
+        char retired[N_OUT][320];
+        const char *retired_names[N_OUT];
+        bool staged = true;
+        ps_diag d = {0};
+        for (size_t i = 0; i < N_OUT; i++) {
+            snprintf(name, sizeof name, "%s.screen.%s", stem, out[i].ext);
+            snprintf(retired[i], sizeof retired[i], "%s", name); /* the flat layout before sets */
+            retired_names[i] = retired[i];
+            if (!staged || (out[i].fn == ps_write_families_csv && c.run.n_families == 0))
+                continue;
+            if (ps_report_set_write(&screen_set, name, out[i].fn, &c.run, &d) != PS_OK) {
+                fprintf(stderr, "plantsieve: %s\n", d.text);
+                staged = false;
             }
-    }
-    if (ps_run_failed(&c.run)) {
-        fputs("plantsieve: the temporary summary file could not be written or read: reports are incomplete\n",
+        }
+        if (staged && ps_run_failed(&c.run)) {
+            fputs("plantsieve: the temporary summary file could not be written or read\n", stderr);
+            staged = false;
+        }
+        if (staged) {
+            interrupts_hold();
+            ps_diag_clear(&d);
+            if (ps_report_set_publish(&screen_set, retired_names, N_OUT, &d) != PS_OK) {
+                fprintf(stderr, "plantsieve: %s\n", d.text);
+                staged = false;
+            } else if (d.text[0])
+                fprintf(stderr, "plantsieve: warning: %s\n", d.text);
+        }
+        ps_report_set_release(&screen_set);
+        if (!staged) {
+            fprintf(stderr, "plantsieve: no report of this run was published; the previous reports in %s are left "
+                            "as they were\n", outdir);
+            io_failed = true;
+        }
+    } else if (ps_run_failed(&c.run)) {
+        fputs("plantsieve: the temporary summary file could not be written or read: the listing is incomplete\n",
               stderr);
         io_failed = true;
     }

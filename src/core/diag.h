@@ -12,7 +12,8 @@ typedef enum ps_status {
     PS_ERR_SYNTAX,    /* the file cannot be parsed further (YAML/CSV structure broken) */
     PS_ERR_NUMERIC,   /* a numerical routine failed; recorded on the plant */
     PS_ERR_IO,        /* a file could not be opened, read or written */
-    PS_ERR_NOMEM
+    PS_ERR_NOMEM,
+    PS_ERR_BUSY       /* another process holds what this one needs (the lock of a report set) */
 } ps_status;
 
 enum { PS_DIAG_TEXT = 512, PS_DIAG_FIELD = 48, PS_DIAG_FILE = 512 };

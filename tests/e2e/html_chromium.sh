@@ -47,8 +47,8 @@ else
         exit 1
     fi
     ok "plantsieve screen -o DIR --gate never $(basename "$catalog") exits 0"
-    html=$tmp/out/$stem.screen.html
-    csv=$tmp/out/$stem.screen.csv
+    html=$tmp/out/$stem.screen/$stem.screen.html
+    csv=$tmp/out/$stem.screen/$stem.screen.csv
 fi
 for f in "$html" "$csv"; do
     if [ ! -s "$f" ]; then echo "FAIL: no report $f"; exit 1; fi

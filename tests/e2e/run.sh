@@ -114,7 +114,7 @@ contains "explain of a family id lists its grid plants" "$tmp/out" "  glide-gap[
 claims="$src/tests/data/e2e/claims.yaml"
 "$ps" screen -o "$tmp/claims" --gate never "$claims" >"$tmp/out" 2>"$tmp/err"
 check "screen: unstable plants without a bandwidth limit are not judged (exit 3, gate never)" 3 $?
-"$py" - "$tmp/claims/claims.screen.json" "$tmp/claims/claims.screen.txt" <<'PY'
+"$py" - "$tmp/claims/claims.screen/claims.screen.json" "$tmp/claims/claims.screen/claims.screen.txt" <<'PY'
 import json, math, re, sys
 doc = json.load(open(sys.argv[1]))
 P = {p["id"]: p for p in doc["plants"]}
@@ -160,7 +160,7 @@ PY
 check "claims: needs-bandwidth, time to double, rules of thumb, effort lever, movable cancellation" 0 $?
 # A plant that fails with no band requirement at all gets no band edge: no band
 # makes it pass (strider-d fails on its Mt floor, whatever the band).
-"$py" - "$tmp/claims/claims.screen.json" "$src/reports/demo-variants.screen.json" <<'PY'
+"$py" - "$tmp/claims/claims.screen/claims.screen.json" "$src/reports/demo-variants.screen/demo-variants.screen.json" <<'PY'
 import json, sys
 seen = 0
 for f in sys.argv[1:]:
@@ -173,7 +173,7 @@ PY
 check "band edge target: none for a plant that fails without any band" 0 $?
 "$ps" screen -o "$tmp/scr2" --gate never "$cf" >/dev/null 2>&1
 for ext in txt csv json md html; do
-    cmp -s "$tmp/scr/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
+    cmp -s "$tmp/scr/closed-form.screen/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
 done
 # Thread-count invariance: the demo (with its family) on 1, 2 and 5 threads, byte for byte.
 for t in 1 2 5; do
@@ -183,7 +183,7 @@ done
 for t in 2 5; do
     cmp -s "$tmp/thr1.out" "$tmp/thr$t.out"; check "screen: stdout same on $t threads as on 1" 0 $?
     for ext in txt csv json md html; do
-        cmp -s "$tmp/thr1/demo-variants.screen.$ext" "$tmp/thr$t/demo-variants.screen.$ext"
+        cmp -s "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/thr$t/demo-variants.screen/demo-variants.screen.$ext"
         check "screen: $ext same on $t threads as on 1" 0 $?
     done
 done
@@ -191,7 +191,7 @@ done
 # --detail: verdicts and ranking unchanged; targets only where asked.
 "$ps" screen --detail none -o "$tmp/dnone" --gate never "$src/catalogs/demo-variants.yaml" >/dev/null 2>&1
 check "screen --detail none" 0 $?
-"$py" - "$tmp/thr1/demo-variants.screen.json" "$tmp/dnone/demo-variants.screen.json" <<'PY'
+"$py" - "$tmp/thr1/demo-variants.screen/demo-variants.screen.json" "$tmp/dnone/demo-variants.screen/demo-variants.screen.json" <<'PY'
 import json, sys
 a, b = (json.load(open(p)) for p in sys.argv[1:3])
 ka = [(p["id"], p["verdict"], p["severity"]) for p in a["plants"]]
@@ -204,13 +204,13 @@ check "screen: --detail none keeps verdicts and ranking, drops targets" 0 $?
 # --show: the stdout listing is cut per section; the .txt report stays whole.
 demo="$src/catalogs/demo-variants.yaml"
 "$ps" screen --show 3 -o "$tmp/show3" --gate never "$demo" >"$tmp/show3.out" 2>&1; check "screen --show 3" 0 $?
-"$py" - "$tmp/show3.out" "$tmp/thr1.out" "$tmp/show3/demo-variants.screen.txt" <<'PY'
+"$py" - "$tmp/show3.out" "$tmp/thr1.out" "$tmp/show3/demo-variants.screen/demo-variants.screen.txt" <<'PY'
 import re, sys
 cut, whole, txt = (open(p).read() for p in sys.argv[1:4])
 rows = lambda t: re.findall(r"^ *\d+  \S+ +(?:clear|marginal|redesign|not-stabilizable|input-error) ", t, re.M)
 n = len(rows(whole))
 assert n > 3 and len(rows(cut)) == 3, (n, len(rows(cut)))
-more = [int(m) for m in re.findall(r"^  \.\.\. and (\d+) more \(all of them in .*show3/demo-variants\.screen\.txt", cut, re.M)]
+more = [int(m) for m in re.findall(r"^  \.\.\. and (\d+) more \(all of them in .*show3/demo-variants\.screen/demo-variants\.screen\.txt", cut, re.M)]
 flag = int(re.search(r"redesign \((\d+)\)", whole).group(1))
 passing = sum(int(x) for x in re.findall(r"(?:clear|marginal) (\d+)", whole.split("Counts:")[1]))
 assert more == [n - 3, flag - 3, passing - 3], (more, n, flag, passing)
@@ -252,11 +252,11 @@ cmp -s "$tmp/keep-t1.out" "$tmp/keep-t5.out"; check "screen --no-files keep mode
 check "screen --memory-rows 3" 0 $?
 cmp -s "$tmp/thr1.out" "$tmp/spill.out"; check "screen: stdout same with summaries on file" 0 $?
 for ext in txt csv json md html families.csv; do
-    cmp -s "$tmp/thr1/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen.$ext"
+    cmp -s "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen/demo-variants.screen.$ext"
     check "screen: $ext same with summaries on file" 0 $?
 done
 # Families: a CSV of the studies next to the other reports, only when the run has families.
-"$py" - "$tmp/thr1/demo-variants.screen.families.csv" "$tmp/thr1/demo-variants.screen.json" <<'PY'
+"$py" - "$tmp/thr1/demo-variants.screen/demo-variants.screen.families.csv" "$tmp/thr1/demo-variants.screen/demo-variants.screen.json" <<'PY'
 import csv, json, sys
 rows = list(csv.DictReader(open(sys.argv[1], newline="")))
 fams = json.load(open(sys.argv[2]))["families"]
@@ -266,7 +266,7 @@ b = [r for r in rows if r["study"] == "boundary"][0]
 assert abs(float(b["value"]) - fams[0]["boundaries"][0]["value"]) <= 1e-8 * abs(float(b["value"])), b
 PY
 check "screen: families CSV parsed back, one row per study" 0 $?
-[ -e "$tmp/scr/closed-form.screen.families.csv" ]; check "screen: no families CSV without families" 1 $?
+[ -e "$tmp/scr/closed-form.screen/closed-form.screen.families.csv" ]; check "screen: no families CSV without families" 1 $?
 # Broken families: each one an entry error naming line, column and what was expected; the rest screened.
 "$ps" screen --no-files --gate never "$src/tests/data/e2e/bad-families.yaml" >"$tmp/out" 2>"$tmp/err"
 check "screen: broken families are entry errors (exit 3)" 3 $?
@@ -284,11 +284,11 @@ contains "family: a range needs a tolerance" "$tmp/err" "bad-families.yaml:46:41
 # draws counted as redrawn, invalid units counted apart with a warning line.
 fam="$src/tests/data/e2e/families.yaml"
 "$ps" screen -o "$tmp/fam" --gate never "$fam" >"$tmp/fam.out" 2>"$tmp/fam.err"; check "screen: families catalog" 0 $?
-contains "family text: the Mt floor binds, with its allowed value" "$tmp/fam/families.screen.txt" \
+contains "family text: the Mt floor binds, with its allowed value" "$tmp/fam/families.screen/families.screen.txt" \
     "theta must stay below 0.0603091 (nominal 0.03, swept 0.005 .. 0.12); there the severity crosses 1, set by the Mt floor: 1.25 passing, 1.25 failing, allowed 1.25"
-contains "family text: redrawn draws" "$tmp/fam/families.screen.txt" "gap drawn from its normal distribution truncated to >= 0 (97.7 % of it): "
-contains "family text: warning line on invalid units" "$tmp/fam/families.screen.txt" "    warning   "
-"$py" - "$tmp/fam/families.screen" <<'PY'
+contains "family text: redrawn draws" "$tmp/fam/families.screen/families.screen.txt" "gap drawn from its normal distribution truncated to >= 0 (97.7 % of it): "
+contains "family text: warning line on invalid units" "$tmp/fam/families.screen/families.screen.txt" "    warning   "
+"$py" - "$tmp/fam/families.screen/families.screen" <<'PY'
 import csv, json, math, re, sys
 from html.parser import HTMLParser
 stem = sys.argv[1]
@@ -422,7 +422,7 @@ assert "caution" in d and "necessary" in d["caution"]
 rows = list(csv.DictReader(open(sys.argv[2], newline="")))
 assert [r["id"] for r in rows] == [p["id"] for p in d["plants"]], rows
 assert rows[1]["verdict"] == "redesign"
-' "$tmp/scr/closed-form.screen.json" "$tmp/scr/closed-form.screen.csv"; check "screen: closed-form verdicts, ranking and targets" 0 $?
+' "$tmp/scr/closed-form.screen/closed-form.screen.json" "$tmp/scr/closed-form.screen/closed-form.screen.csv"; check "screen: closed-form verdicts, ranking and targets" 0 $?
 # Floors too large for a double but finite (issue 14, finding 1): carried in
 # logarithms, a redesign with a finite severity and a true cause, never "not
 # stabilizable"; an exact cancellation still is. Closed forms in the catalog's
@@ -430,8 +430,8 @@ assert rows[1]["verdict"] == "redesign"
 # exp(pi p / w_h) for the band floor with delta = 0 (Stein 2003).
 "$ps" screen -o "$tmp/ovf" --gate never "$src/tests/data/e2e/overflow.yaml" >"$tmp/out" 2>"$tmp/err"
 check "screen: overflowing floors screen without error" 0 $?
-contains "listing prints an overflowing floor as a power of ten (e^1000 = 1.97e+434)" "$tmp/ovf/overflow.screen.txt" "1.97e+434"
-"$py" - "$tmp/ovf/overflow.screen.json" "$tmp/ovf/overflow.screen.csv" <<'PY'
+contains "listing prints an overflowing floor as a power of ten (e^1000 = 1.97e+434)" "$tmp/ovf/overflow.screen/overflow.screen.txt" "1.97e+434"
+"$py" - "$tmp/ovf/overflow.screen/overflow.screen.json" "$tmp/ovf/overflow.screen/overflow.screen.csv" <<'PY'
 import csv, json, math, sys
 doc = json.load(open(sys.argv[1]))
 rows = {r["id"]: r for r in csv.DictReader(open(sys.argv[2], newline=""))}
@@ -473,7 +473,7 @@ PY
 check "screen: overflowing floors are finite redesigns with closed-form severity and log10; a cancellation stays infinite" 0 $?
 # A plant far faster than its roll-off start fails with any band: its band
 # target and band curve stay below w_h (the range once started above its end).
-"$py" - "$tmp/ovf/overflow.screen.json" <<'PY'
+"$py" - "$tmp/ovf/overflow.screen/overflow.screen.json" <<'PY'
 import json, sys
 P = {p["id"]: p for p in json.load(open(sys.argv[1]))["plants"]}
 p = P["pole-far"]
@@ -484,15 +484,15 @@ PY
 check "band target and curve of a plant far faster than w_h stay below w_h" 0 $?
 
 (cd "$src" && "$ps" screen -o "$tmp/demo" --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
-for ext in txt csv json md html; do
-    cmp -s "$tmp/demo/demo-variants.screen.$ext" "$src/reports/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
+for ext in txt csv json md html families.csv; do
+    cmp -s "$tmp/demo/demo-variants.screen/demo-variants.screen.$ext" "$src/reports/demo-variants.screen/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
 done
 
 # The screening JSON validates against its schema. The floors object is the
 # survey schema's $defs/floors, referenced by file name: the resolver gets
 # that file from a local store and may not fetch anything.
-for doc in "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" \
-           "$tmp/scr/broken-entries.screen.json" "$tmp/fam/families.screen.json" "$tmp/ovf/overflow.screen.json"; do
+for doc in "$tmp/scr/closed-form.screen/closed-form.screen.json" "$tmp/demo/demo-variants.screen/demo-variants.screen.json" \
+           "$tmp/scr/broken-entries.screen/broken-entries.screen.json" "$tmp/fam/families.screen/families.screen.json" "$tmp/ovf/overflow.screen/overflow.screen.json" "$tmp/claims/claims.screen/claims.screen.json"; do
     "$py" -c '
 import json, sys, jsonschema
 from jsonschema.validators import validator_for
@@ -511,7 +511,7 @@ done
 # The Markdown ranking parsed back: one row per plant, same ids in the same
 # order as the CSV report, every row as many cells as the header.
 for stem in "$tmp/scr/closed-form" "$tmp/demo/demo-variants"; do
-    "$py" - "$stem.screen.md" "$stem.screen.csv" <<'PY'
+    "$py" - "$stem.screen/${stem##*/}.screen.md" "$stem.screen/${stem##*/}.screen.csv" <<'PY'
 import csv, sys
 lines = open(sys.argv[1], encoding="utf-8").read().split("\n")
 start = lines.index("## Ranking")
@@ -553,9 +553,9 @@ done
 # Cause by attribution. one-pole-tight: band floor exp(pi p / w_h) (Stein 2003)
 # = exp(12 pi / 40) = 2.566, so Mt >= 1.566 > 1.25 allowed (||T|| >= ||S|| - 1)
 # while its own Mt floors are 1: unlimited bandwidth takes the Mt floor to 1.
-contains "cause names the bandwidth with the figure its relaxation gives" "$tmp/scr/closed-form.screen.csv" \
+contains "cause names the bandwidth with the figure its relaxation gives" "$tmp/scr/closed-form.screen/closed-form.screen.csv" \
     "available bandwidth 40 rad/s with the unstable pole 12 rad/s: Mt floor 1.57 against 1.25 allowed (1 with unlimited bandwidth)"
-"$py" - "$tmp/scr/closed-form.screen.json" "$tmp/demo/demo-variants.screen.json" <<'PY'
+"$py" - "$tmp/scr/closed-form.screen/closed-form.screen.json" "$tmp/demo/demo-variants.screen/demo-variants.screen.json" <<'PY'
 import json, math, sys
 P = {p["id"]: p for p in json.load(open(sys.argv[1]))["plants"]}
 fl = P["one-pole-tight"]["floors"]
@@ -596,7 +596,7 @@ if command -v script >/dev/null 2>&1 && script -qec true /dev/null </dev/null >/
     ttycmd="'$ps' screen -o '$tmp/tty' --gate never '$cf'"
     script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1; check "screen under a pseudo-terminal" 0 $?
     grep -qF "$esc[" "$tmp/tty.out"; check "screen: terminal output has ESC[ sequences" 0 $?
-    grep -qF "$esc" "$tmp/tty/closed-form.screen.txt"; check "screen: .txt report has no ESC even on a terminal" 1 $?
+    grep -qF "$esc" "$tmp/tty/closed-form.screen/closed-form.screen.txt"; check "screen: .txt report has no ESC even on a terminal" 1 $?
     NO_COLOR=1 script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1; check "screen with NO_COLOR=1 under a pseudo-terminal" 0 $?
     grep -qF "$esc" "$tmp/tty.out"; check "screen: NO_COLOR=1 on a terminal gives no ESC byte" 1 $?
     NO_COLOR= script -qec "$ttycmd" /dev/null </dev/null >"$tmp/tty.out" 2>&1
@@ -606,7 +606,7 @@ if command -v script >/dev/null 2>&1 && script -qec true /dev/null </dev/null >/
     contains "screen: progress line on a terminal" "$tmp/tty.out" "plants/s, about"
     script -qec "'$ps' screen --quiet --no-files --gate never '$cf'" /dev/null </dev/null >"$tmp/tty.out" 2>&1
     grep -qF "plants/s" "$tmp/tty.out"; check "screen: --quiet hides the progress line" 1 $?
-    grep -qF "plants/s" "$tmp/tty/closed-form.screen.txt"; check "screen: no progress in the .txt report" 1 $?
+    grep -qF "plants/s" "$tmp/tty/closed-form.screen/closed-form.screen.txt"; check "screen: no progress in the .txt report" 1 $?
 else
     echo "SKIP: colour on a terminal (script(1) missing or no pseudo-terminal available)"
 fi

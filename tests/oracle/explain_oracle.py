@@ -658,7 +658,7 @@ def ids_of(ps, catalog, tmp):
     out = os.path.join(tmp, os.path.basename(catalog))
     r = subprocess.run([ps, "screen", "--gate", "never", "--quiet", "-o", out, catalog],
                        stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
-    reports = glob.glob(os.path.join(out, "*.screen.csv"))
+    reports = glob.glob(os.path.join(out, "*.screen", "*.screen.csv"))
     if r.returncode not in (0, 3) or len(reports) != 1:
         raise RuntimeError("plantsieve screen %s exited %d: %s" % (catalog, r.returncode, r.stderr.strip()))
     with open(reports[0], newline="") as fh:
