@@ -823,12 +823,16 @@ static bool matrix_rows(yaml_rd *r, ps_plant *p)
 static void read_text(yaml_rd *r, ps_field f, const ev *v, char *dst, size_t cap)
 {
     const char *name = ps_field_name(f);
+    char why[YR_MSG];
+    size_t at = 0;
     if (v->type == EV_BAD)
         entry_fail(r, v->line, v->col, name, "%s: %s", name, v->value);
     else if (memchr(v->value, '\0', v->len))
         entry_fail(r, v->line, v->col, name, "%s: contains a NUL character", name);
     else if (v->len >= cap)
         entry_fail(r, v->line, v->col, name, "%s: longer than %zu bytes", name, cap - 1);
+    else if (ps_catalog_text_check(v->value, v->len, f == PS_F_ID, &at, why, sizeof why) != 0)
+        entry_fail(r, v->line, v->col, name, "%s: %s", name, why);
     else
         memcpy(dst, v->value, v->len + 1);
 }

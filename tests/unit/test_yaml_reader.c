@@ -486,6 +486,32 @@ Test(yaml_reader, id_too_long)
     expect_entry_error(1, 3, 9, "id", "id: longer than 95 bytes");
 }
 
+/* libyaml refuses raw control bytes, but escapes in double quotes and a raw
+ * NEL (U+0085, a C1 character YAML allows) still make them: the id is refused
+ * where its scalar starts. */
+Test(yaml_reader, control_characters_in_ids_refused)
+{
+    static const char text[] = "plants:\n"
+                               "  - id: \"red\\e[31mx\"\n"          /* ESC by escape */
+                               "    gain: 2.385\n"
+                               "  - {gain: 1.5, id: \"a\\tb\"}\n"     /* tab by escape, line 4 col 17 */
+                               "  - id: \"nel\\N\"\n"                /* U+0085 by escape */
+                               "  - id: \"csi\\x9b\"\n"              /* U+009B by escape */
+                               "  - id: \"del\\x7f\"\n"
+                               "  - id: \"ok\\u00a0nbsp\"\n"
+                               "    note: \"tab\\tin a note\"\n";
+    cr_assert_eq(read_text(text), PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 6);
+    expect_entry_error(0, 2, 9, "id", "id: control character U+001B at character 4");
+    expect_entry_error(1, 4, 21, "id", "control character U+0009 at character 2");
+    expect_entry_error(2, 5, 9, "id", "control character U+0085 at character 4");
+    expect_entry_error(3, 6, 9, "id", "control character U+009B at character 4");
+    expect_entry_error(4, 7, 9, "id", "control character U+007F at character 4");
+    expect_ok(5);
+    cr_expect_str_eq(kept(5)->id, "ok\xC2\xA0nbsp");
+    cr_expect_str_eq(kept(5)->note, "tab\tin a note", "a note may hold a tab");
+}
+
 Test(yaml_reader, scalar_over_field_limit)
 {
     size_t n = (size_t)PS_FIELD_MAX_BYTES + 10;
