@@ -512,6 +512,37 @@ Test(yaml_reader, control_characters_in_ids_refused)
     cr_expect_str_eq(kept(5)->note, "tab\tin a note", "a note may hold a tab");
 }
 
+/* The README's anchor cap: 256 distinct anchor names per file are read, the
+ * 257th ends the read of the file where it stands. */
+static char *anchored_plants(size_t n)
+{
+    size_t cap = 32 + n * 48;
+    char *text = malloc(cap);
+    cr_assert_not_null(text);
+    size_t used = (size_t)snprintf(text, cap, "plants:\n");
+    for (size_t i = 0; i < n; i++)
+        used += (size_t)snprintf(text + used, cap - used, "  - id: &k%zu p%zu\n    gain: 2.385\n", i, i);
+    return text;
+}
+
+Test(yaml_reader, anchor_cap_256_names)
+{
+    char *text = anchored_plants(256);
+    cr_assert_eq(read_text(text), PS_OK, "%s", fd.text);
+    free(text);
+    cr_assert_eq(col.calls, 256);
+    cr_assert_eq(col.errors, 0);
+    col.calls = col.errors = 0;
+    text = anchored_plants(257);
+    ps_status st = read_text(text);
+    free(text);
+    cr_assert_eq(st, PS_ERR_SYNTAX);
+    cr_expect_eq(fd.line, 2 + 2 * 256, "the 257th anchor's line: %zu", fd.line);
+    cr_expect(strstr(fd.text, "more than 256 distinct anchors in one file") != NULL, "%s", fd.text);
+    cr_expect_geq(col.calls, 256, "the 256 plants before it are read");
+    cr_expect_eq(col.calls - col.errors, 256);
+}
+
 Test(yaml_reader, scalar_over_field_limit)
 {
     size_t n = (size_t)PS_FIELD_MAX_BYTES + 10;
