@@ -2,7 +2,7 @@
  * no control characters in an id. Shared by both readers. */
 #include <stdio.h>
 
-#include "catalog/catalog_internal.h"
+#include "catalog/catalog.h"
 
 /* Length of the UTF-8 sequence that starts at s (at most n bytes left) and
  * its code point, or 0 when it is not well formed: a stray continuation

@@ -136,6 +136,14 @@ static void header_field(csv_reader *r, const char *s, size_t len, size_t col, s
         file_fail(r, PS_ERR_SYNTAX, line, col, NULL, "header column %zu contains a NUL byte", col);
         return;
     }
+    /* A column name is echoed in the error below: no raw bytes or control
+     * characters may reach the terminal through it either. */
+    char why[PS_DIAG_TEXT / 2];
+    size_t at = 0;
+    if (ps_catalog_text_check(s, len, true, &at, why, sizeof why) != 0) {
+        file_fail(r, PS_ERR_SYNTAX, line, col, NULL, "header column %zu: %s", col, why);
+        return;
+    }
     ps_field f = ps_field_lookup(s);
     if (f == PS_F_COUNT) {
         char names[PS_DIAG_TEXT / 2] = "";

@@ -613,6 +613,17 @@ Test(csv_reader, unknown_column)
               "%s", fd.text);
 }
 
+Test(csv_reader, header_name_with_raw_bytes_is_not_echoed)
+{
+    static const char bytes[] = "id,gain\x1B[2J,no\xFFte\np,2.385,x\n";
+    cr_assert_eq(read_bytes(bytes, sizeof bytes - 1), PS_ERR_SYNTAX);
+    cr_expect_eq(col.calls, 0);
+    cr_expect_eq(fd.line, 1);
+    cr_expect_eq(fd.col, 2);
+    cr_expect(strstr(fd.text, "header column 2: control character U+001B at character 5") != NULL, "%s", fd.text);
+    cr_expect(strchr(fd.text, '\x1B') == NULL, "the escape is not in the message");
+}
+
 Test(csv_reader, duplicate_column)
 {
     cr_assert_eq(read_text("id,gain,poles,gain\np,1,2,3\n"), PS_ERR_SYNTAX);

@@ -340,6 +340,18 @@ Test(yaml_reader, unknown_field_then_next_entry)
     cr_expect_str_eq(kept(1)->id, "q");
 }
 
+/* A key is echoed in the message: its control characters are shown as '?'. */
+Test(yaml_reader, unknown_key_with_control_characters_not_echoed_raw)
+{
+    cr_assert_eq(read_text("plants:\n"
+                           "  - id: p\n"
+                           "    \"ga\\e[2Jin\\x9b\": 2.385\n"
+                           "    poles: [-1]\n"),
+                 PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 1);
+    expect_entry_error(0, 3, 5, "ga?[2Jin?" "?", "unknown field 'ga?[2Jin?" "?'");
+}
+
 Test(yaml_reader, id_after_error_still_named)
 {
     cr_assert_eq(read_text("plants:\n  - foo: 1\n    id: later\n"), PS_OK);
