@@ -48,6 +48,14 @@ enum {
     PS_FIELD_MAX_BYTES = 1 << 20       /* one CSV field or YAML scalar */
 };
 
+/* Check the len bytes of a text cell at s (an id, a note, a family id): well-formed UTF-8 (RFC 3629:
+ * no overlong forms, surrogates or values past U+10FFFF), and, when is_id,
+ * no control character (C0 U+0000..U+001F including tab and line ends, DEL
+ * U+007F, C1 U+0080..U+009F). Returns 0, or -1 with OUT: *at the 1-based
+ * character of the first offence and why (cap bytes) the reason:
+ * "not valid UTF-8 (byte 0xFF at character 3)". */
+int ps_catalog_text_check(const char *s, size_t len, bool is_id, size_t *at, char *why, size_t cap);
+
 /* Read a YAML catalog. scratch is the caller's entry buffer (reused for each
  * entry). Returns PS_OK when the file was read to the end (entry errors are
  * reported through fn, not here); PS_ERR_IO / PS_ERR_SYNTAX with fdiag set

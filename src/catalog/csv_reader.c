@@ -136,6 +136,14 @@ static void header_field(csv_reader *r, const char *s, size_t len, size_t col, s
         file_fail(r, PS_ERR_SYNTAX, line, col, NULL, "header column %zu contains a NUL byte", col);
         return;
     }
+    /* A column name is echoed in the error below: no raw bytes or control
+     * characters may reach the terminal through it either. */
+    char why[PS_DIAG_TEXT / 2];
+    size_t at = 0;
+    if (ps_catalog_text_check(s, len, true, &at, why, sizeof why) != 0) {
+        file_fail(r, PS_ERR_SYNTAX, line, col, NULL, "header column %zu: %s", col, why);
+        return;
+    }
     ps_field f = ps_field_lookup(s);
     if (f == PS_F_COUNT) {
         char names[PS_DIAG_TEXT / 2] = "";
@@ -244,6 +252,12 @@ static void parse_matrix(csv_reader *r, char *s, size_t line, size_t col)
 static void copy_text(csv_reader *r, ps_field f, const char *s, size_t len, size_t line,
                       size_t col, char *out, size_t cap)
 {
+    char why[PS_DIAG_TEXT / 2];
+    size_t at = 0;
+    if (ps_catalog_text_check(s, len, f == PS_F_ID, &at, why, sizeof why) != 0) {
+        row_fail(r, line, col, ps_field_name(f), "%s: %s", ps_field_name(f), why);
+        return;
+    }
     if (len >= cap) {
         row_fail(r, line, col, ps_field_name(f), "%s: longer than %zu bytes", ps_field_name(f),
                  cap - 1);
@@ -330,6 +344,14 @@ static void on_row(int term, void *data)
         r->pending_line = 0;
         return;
     }
+    /* RFC 4180 (section 2, item 4): every row has the header's field count.
+     * A short row is named where it ends, not as if its cells were empty. */
+    if (r->field_no < r->n_cols)
+        row_fail(r, r->line, r->field_no, "",
+                 "row has %zu field%s, the header has %zu: it ends after column %zu (%s); write "
+                 "an empty cell for a value not given",
+                 r->field_no, r->field_no == 1 ? "" : "s", r->n_cols, r->field_no,
+                 column_field_name(r, r->field_no));
     row_deliver(r);
 }
 
@@ -350,18 +372,24 @@ static void parse_error(csv_reader *r, struct csv_parser *cp, size_t at)
 {
     int err = csv_error(cp);
     bool too_big = err == CSV_ENOMEM || err == CSV_ETOOBIG;
+    /* libcsv asks for ever smaller increments before it gives up, so when
+     * capped_realloc refused for the cap the field already holds at least
+     * PS_FIELD_MAX_BYTES bytes; shorter, the allocator itself failed. */
+    bool no_memory = err == CSV_ENOMEM && cp->entry_pos < (size_t)PS_FIELD_MAX_BYTES;
     size_t col = r->field_no + 1;
     char text[PS_DIAG_TEXT];
-    if (too_big)
-        snprintf(text, sizeof text, "field longer than %d bytes (or out of memory)",
-                 PS_FIELD_MAX_BYTES);
+    if (no_memory)
+        snprintf(text, sizeof text, "out of memory while reading a field (%zu bytes read into it, "
+                 "below the limit of %d)", cp->entry_pos, PS_FIELD_MAX_BYTES);
+    else if (too_big)
+        snprintf(text, sizeof text, "field longer than the limit of %d bytes", PS_FIELD_MAX_BYTES);
     else
         snprintf(text, sizeof text,
                  "bad quoting at character %zu of line %zu: a field must be wholly quoted "
                  "(\"...\", with \"\" for a quote) or contain no quotes",
                  at, r->line);
     if (!r->header_done) {
-        file_fail(r, PS_ERR_SYNTAX, r->line, col, NULL, "header: %s", text);
+        file_fail(r, no_memory ? PS_ERR_NOMEM : PS_ERR_SYNTAX, r->line, col, NULL, "header: %s", text);
         return;
     }
     if (!r->in_row)
@@ -370,7 +398,7 @@ static void parse_error(csv_reader *r, struct csv_parser *cp, size_t at)
     row_fail(r, r->line, col, name, "%s", text);
     row_deliver(r);
     if (too_big)
-        file_fail(r, PS_ERR_SYNTAX, r->line, col, name, "%s", text);
+        file_fail(r, no_memory ? PS_ERR_NOMEM : PS_ERR_SYNTAX, r->line, col, name, "%s", text);
 }
 
 ps_status ps_csv_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,

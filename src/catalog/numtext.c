@@ -1,12 +1,25 @@
 /* numtext.c - strict number parsing for catalog text.
- * strtod alone accepts hex, inf, nan and overflows to inf; all are refused here. */
+ * strtod alone accepts hex, inf, nan, overflows to inf and underflows to 0;
+ * all are refused here. */
 #include "catalog/numtext.h"
 
 #include <ctype.h>
 #include <errno.h>
+#include <float.h>
 #include <math.h>
+#include <stdbool.h>
 #include <stdlib.h>
 #include <string.h>
+
+/* True when the digits of the decimal s..end (before any exponent) are not
+ * all zero. */
+static bool mantissa_nonzero(const char *s, const char *end)
+{
+    for (const char *q = s; q < end && *q != 'e' && *q != 'E'; q++)
+        if (*q >= '1' && *q <= '9')
+            return true;
+    return false;
+}
 
 /* Parse a real starting at s; *end gets the first unparsed byte.
  * Only decimal forms: [+-]digits[.digits][e[+-]digits]. */
@@ -32,6 +45,14 @@ static int real_prefix(const char *s, double *out, const char **end, const char 
     }
     if (errno == ERANGE && fabs(v) > 1.0) {
         *why = "number out of range";
+        return -1;
+    }
+    /* A nonzero decimal below the smallest normal double (DBL_MIN, about
+     * 2.2e-308) would be read as 0 or as a subnormal with few significant
+     * bits: a pole or a delay silently read as 0. Refused; an exact zero in
+     * any spelling (0, 0.0e-400) is still 0. */
+    if (fabs(v) < DBL_MIN && mantissa_nonzero(s, e)) {
+        *why = "nonzero number too small: below 2.2e-308 it cannot be held (it would be read as 0)";
         return -1;
     }
     if (!isfinite(v)) {

@@ -823,12 +823,16 @@ static bool matrix_rows(yaml_rd *r, ps_plant *p)
 static void read_text(yaml_rd *r, ps_field f, const ev *v, char *dst, size_t cap)
 {
     const char *name = ps_field_name(f);
+    char why[YR_MSG];
+    size_t at = 0;
     if (v->type == EV_BAD)
         entry_fail(r, v->line, v->col, name, "%s: %s", name, v->value);
     else if (memchr(v->value, '\0', v->len))
         entry_fail(r, v->line, v->col, name, "%s: contains a NUL character", name);
     else if (v->len >= cap)
         entry_fail(r, v->line, v->col, name, "%s: longer than %zu bytes", name, cap - 1);
+    else if (ps_catalog_text_check(v->value, v->len, f == PS_F_ID, &at, why, sizeof why) != 0)
+        entry_fail(r, v->line, v->col, name, "%s: %s", name, why);
     else
         memcpy(dst, v->value, v->len + 1);
 }
@@ -883,12 +887,22 @@ static bool read_value(yaml_rd *r, ps_plant *p, ps_field f, const ev *v)
     return true;
 }
 
-/* src cut to fit n bytes (what snprintf "%s" does, without the format). */
+/* src cut to fit n bytes (what snprintf "%s" does, without the format),
+ * with every control character (C0, DEL, and C1 in UTF-8) made '?': a key is
+ * echoed in messages, and no field name holds a '?', so the lookup is
+ * unchanged. */
 static void copy_key(char *dst, size_t n, const char *src)
 {
     size_t len = strnlen(src, n - 1);
     memcpy(dst, src, len);
     dst[len] = '\0';
+    for (size_t i = 0; i < len; i++) {
+        unsigned char c = (unsigned char)dst[i];
+        if (c < 0x20 || c == 0x7F)
+            dst[i] = '?';
+        else if (c == 0xC2 && i + 1 < len && (unsigned char)dst[i + 1] >= 0x80 && (unsigned char)dst[i + 1] <= 0x9F)
+            dst[i] = dst[i + 1] = '?';
+    }
 }
 
 /* Fields of one mapping (after its start event) into p: a plant entry, or

@@ -339,6 +339,13 @@ ps_status ps_family_parse(ps_family *fam, const ps_ynode *node, const ps_plant *
         snprintf(fam->id, sizeof fam->id, "%s", id->text);
     if (!is_scalar(id) || id->text[0] == '\0')
         return fail(d, node, "id", "family: an id is needed");
+    /* The family id starts every grid plant's id: the same rule as a plant id. */
+    char bad_id[PS_DIAG_TEXT / 2];
+    size_t bad_at = 0;
+    if (ps_catalog_text_check(id->text, strlen(id->text), true, &bad_at, bad_id, sizeof bad_id) != 0) {
+        fam->id[0] = '\0';
+        return fail(d, id, "id", "family id: %s", bad_id);
+    }
     if (!params)
         return fail(d, node, "parameters", "family '%s': 'parameters' is missing (a mapping of names to values)",
                     fam->id);

@@ -4,17 +4,23 @@
 #include <math.h>
 #include <string.h>
 
-void ps_csv_text(ps_csv_out *o, const char *s)
+/* One cell as given, quoted when RFC 4180 asks for it; guard: a leading
+ * apostrophe written inside the cell, before s. */
+static void cell_put(ps_csv_out *o, const char *s, bool guard)
 {
     if (o->n_cells++ > 0)
         fputc(',', o->f);
     if (!s)
         return;
     if (strpbrk(s, ",\"\r\n") == NULL) {
+        if (guard)
+            fputc('\'', o->f);
         fputs(s, o->f);
         return;
     }
     fputc('"', o->f);
+    if (guard)
+        fputc('\'', o->f);
     for (const char *c = s; *c; c++) {
         if (*c == '"')
             fputc('"', o->f);
@@ -23,28 +29,38 @@ void ps_csv_text(ps_csv_out *o, const char *s)
     fputc('"', o->f);
 }
 
+bool ps_csv_text_guarded(const char *s)
+{
+    return s && s[0] != '\0' && strchr("=+-@\t\r", s[0]) != NULL;
+}
+
+void ps_csv_text(ps_csv_out *o, const char *s)
+{
+    cell_put(o, s, ps_csv_text_guarded(s));
+}
+
 void ps_csv_num(ps_csv_out *o, double x)
 {
     char buf[40];
     if (!isfinite(x)) {
-        ps_csv_text(o, NULL);
+        cell_put(o, NULL, false);
         return;
     }
     snprintf(buf, sizeof buf, "%.9g", x);
-    ps_csv_text(o, buf);
+    cell_put(o, buf, false);
 }
 
 void ps_csv_unsigned(ps_csv_out *o, unsigned long long n)
 {
     char buf[32];
     snprintf(buf, sizeof buf, "%llu", n);
-    ps_csv_text(o, buf);
+    cell_put(o, buf, false);
 }
 
 void ps_csv_row_end(ps_csv_out *o, size_t width)
 {
     while (o->n_cells < width)
-        ps_csv_text(o, NULL);
+        cell_put(o, NULL, false);
     fputs("\r\n", o->f);
     o->n_cells = 0;
 }

@@ -27,9 +27,7 @@ static void cell_num(csv_out *o, double x) { ps_csv_num(o, x); }
 
 static void cell_size(csv_out *o, size_t n)
 {
-    char buf[32];
-    snprintf(buf, sizeof buf, "%zu", n);
-    cell_text(o, buf);
+    ps_csv_unsigned(o, n);
 }
 
 static void cell_bool(csv_out *o, bool b) { cell_text(o, b ? "true" : "false"); }

@@ -203,7 +203,10 @@ static void header(FILE *f, const ps_run *r)
         if (c->failed) {
             fprintf(f, "<strong>not read to the end</strong> (line %zu, column %zu: ", c->line, c->col);
             h_text(f, c->error);
-            fprintf(f, ")");
+            char unread[256];
+            ps_unread_text(c->line, unread, sizeof unread);
+            fprintf(f, "); ");
+            h_text(f, unread);
         } else
             fprintf(f, "read to the end");
         fprintf(f, "</li>\n");

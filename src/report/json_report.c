@@ -149,9 +149,15 @@ ps_status ps_write_json(FILE *f, const ps_run *r)
     for (size_t i = 0; i < r->n_catalogs; i++) {
         const ps_catalog_entry *c = &r->catalogs[i];
         json_t *cj = json_pack("{s:o,s:s}", "file", ps_json_str(c->file), "status", c->failed ? "failed" : "read");
-        if (c->failed)
-            json_object_set_new(cj, "error", json_pack("{s:o,s:I,s:I}", "message", ps_json_str(c->error), "line",
-                                                       (json_int_t)c->line, "column", (json_int_t)c->col));
+        if (c->failed) {
+            char unread[256];
+            ps_unread_text(c->line, unread, sizeof unread);
+            json_object_set_new(cj, "error",
+                                json_pack("{s:o,s:I,s:I,s:o,s:s}", "message", ps_json_str(c->error), "line",
+                                          (json_int_t)c->line, "column", (json_int_t)c->col, "unread_after_line",
+                                          c->line > 0 ? json_integer((json_int_t)c->line) : json_null(),
+                                          "unread", unread));
+        }
         json_array_append_new(cats, cj);
     }
     for (int v = 0; v < PS_VERDICT_COUNT; v++)

@@ -5,6 +5,7 @@
 
 #include "limits/limits.h"
 #include "report/json_parts.h"
+#include "report/reports.h"
 
 #include <jansson.h>
 #include <math.h>
@@ -283,8 +284,10 @@ static void plant_text(FILE *f, const ps_outcome *o)
 {
     const ps_plant *p = o->p;
     if (o->err) {
-        fprintf(f, "%s  REJECTED  %s:%zu\n  error  %s (field '%s')\n\n", p->id[0] ? p->id : "(no id)",
-                o->file, o->err->line, o->err->text, o->err->field);
+        /* A row-level error (a short or long CSV row) names no field. */
+        fprintf(f, "%s  REJECTED  %s:%zu\n  error  %s%s%s%s\n\n", p->id[0] ? p->id : "(no id)", o->file,
+                o->err->line, o->err->text, o->err->field[0] ? " (field '" : "", o->err->field,
+                o->err->field[0] ? "')" : "");
         return;
     }
     const ps_analysis *an = o->an;
@@ -326,10 +329,16 @@ void ps_listing_add(void *ctx, const ps_outcome *o)
 void ps_listing_catalog(ps_listing *l, const char *file, const ps_diag *fdiag)
 {
     json_t *c = json_pack("{s:o,s:s}", "file", ps_json_str(file), "status", fdiag ? "failed" : "read");
-    if (fdiag)
-        json_object_set_new(c, "error", json_pack("{s:o,s:I,s:I}", "message", ps_json_str(fdiag->text), "line",
-                                                  (json_int_t)fdiag->line, "column",
-                                                  (json_int_t)fdiag->col));
+    if (fdiag) {
+        char unread[256];
+        ps_unread_text(fdiag->line, unread, sizeof unread);
+        json_object_set_new(c, "error",
+                            json_pack("{s:o,s:I,s:I,s:o,s:s}", "message", ps_json_str(fdiag->text), "line",
+                                      (json_int_t)fdiag->line, "column", (json_int_t)fdiag->col,
+                                      "unread_after_line",
+                                      fdiag->line > 0 ? json_integer((json_int_t)fdiag->line) : json_null(),
+                                      "unread", unread));
+    }
     json_array_append_new(l->catalogs, c);
 }
 

@@ -84,7 +84,9 @@ static void header(FILE *f, const ps_run *r)
         if (c->failed) {
             fprintf(f, "**not read to the end** (line %zu, column %zu: ", c->line, c->col);
             md_text(f, c->error);
-            fprintf(f, ")\n");
+            char unread[256];
+            ps_unread_text(c->line, unread, sizeof unread);
+            fprintf(f, "); %s\n", unread);
         } else
             fprintf(f, "read to the end\n");
     }

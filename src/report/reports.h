@@ -46,6 +46,13 @@ ps_status ps_write_html(FILE *f, const ps_run *r);
 
 typedef ps_status (*ps_writer_fn)(FILE *f, const ps_run *r);
 
+/* What a catalog not read to the end left out, as a sentence without a final
+ * period: "the entries after line L were not read; their number is not
+ * known, ...", or, when the stop has no line (line 0), the same about the
+ * point where reading stopped. Counting them would mean parsing past a break in
+ * the file's structure, so no number is given. OUT: out (n bytes). */
+void ps_unread_text(size_t line, char *out, size_t n);
+
 /* Family studies (src/report/family_report.c): a section of the text report,
  * of the Markdown report (cell escapes a table cell), one boundary in words. */
 struct ps_family_result;

@@ -89,8 +89,14 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
     if (show == 0)
         show = SIZE_MAX;
     fprintf(f, "plantsieve %s screening of %zu plant%s from", PS_VERSION, r->n_rows, r->n_rows == 1 ? "" : "s");
-    for (size_t i = 0; i < r->n_catalogs; i++)
-        fprintf(f, " %s%s", r->catalogs[i].file, r->catalogs[i].failed ? " (not read to the end)" : "");
+    for (size_t i = 0; i < r->n_catalogs; i++) {
+        fprintf(f, " %s", r->catalogs[i].file);
+        if (r->catalogs[i].failed) {
+            char unread[256];
+            ps_unread_text(r->catalogs[i].line, unread, sizeof unread);
+            fprintf(f, " (not read to the end: %s)", unread);
+        }
+    }
     fprintf(f, "\nseverity = share of the allowed log-peak used by the worst floor; marginal from %.2g, "
                "redesign above 1\n\n",
             r->opt.marginal_at);
@@ -184,8 +190,9 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
                 continue;
             const ps_summary *s = ps_run_row(r, i);
             told++;
-            fprintf(f, "  %s:%zu:%zu: %s%s%s (field '%s')\n", r->catalogs[s->file_index].file, s->err_line,
-                    s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text, s->err_field);
+            fprintf(f, "  %s:%zu:%zu: %s%s%s%s%s%s\n", r->catalogs[s->file_index].file, s->err_line,
+                    s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text,
+                    s->err_field[0] ? " (field '" : "", s->err_field, s->err_field[0] ? "')" : "");
         }
         more(f, n_unread - told, full);
     }

@@ -14,6 +14,16 @@ const char ps_caution_text[] =
     "judgment; flight-, vehicle- and people-critical hardware needs a complete design and verification "
     "process.";
 
+void ps_unread_text(size_t line, char *out, size_t n)
+{
+    if (line > 0)
+        snprintf(out, n, "the entries after line %zu were not read; their number is not known, as the file "
+                         "cannot be split into entries past a break in its structure", line);
+    else
+        snprintf(out, n, "the entries after the point where reading stopped were not read; that point has no "
+                         "line number, and their number is not known");
+}
+
 const char *ps_verdict_meaning(ps_verdict v)
 {
     switch (v) {

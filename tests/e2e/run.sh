@@ -611,5 +611,77 @@ else
     echo "SKIP: colour on a terminal (script(1) missing or no pseudo-terminal available)"
 fi
 
+# Hostile text cells (catalogs/broken/hostile-rows.csv): invalid UTF-8 and
+# control characters refused with file:line:col, a short row named where it
+# ends, 1e-400 refused; formula-like ids guarded in the CSV report only.
+hr="$src/catalogs/broken/hostile-rows.csv"
+"$ps" survey --json "$hr" >"$tmp/hr.json" 2>"$tmp/err"; check "hostile rows: entry errors (exit 3)" 3 $?
+contains "invalid UTF-8 id refused at file:line:col" "$tmp/err" "$hr:3:1: id: not valid UTF-8 (byte 0xFF at character 7)"
+contains "escape in an id refused" "$tmp/err" "$hr:4:1: id: control character U+001B at character 7"
+contains "short row named where it ends" "$tmp/err" "$hr:5:3: plant 'glide-short': row has 3 fields, the header has 5"
+contains "underflow refused, field named" "$tmp/err" "$hr:6:3: plant 'glide-tiny': poles: item 2: nonzero number too small"
+contains "invalid UTF-8 note refused" "$tmp/err" "$hr:7:2: plant 'glide-note': note: not valid UTF-8 (byte 0xC3 at character 22)"
+"$ps" survey "$hr" >"$tmp/out" 2>>"$tmp/err"
+if LC_ALL=C grep -q "$(printf '[\001-\010\013-\037\177]')" "$tmp/out" "$tmp/err"; then fail=$((fail + 1)); echo "FAIL: a control character reached the terminal"; else pass=$((pass + 1)); fi
+grep -qxF "  error  row has 3 fields, the header has 5: it ends after column 3 (poles); write an empty cell for a value not given" "$tmp/out"
+check "survey text: a row-level error names no empty field" 0 $?
+"$py" - "$tmp/hr.json" "$src/reports/schema/plantsieve-survey.schema.json" <<'PY'
+import json, sys, jsonschema
+raw = open(sys.argv[1], "rb").read()
+raw.decode("utf-8")                          # the document is valid UTF-8
+d = json.loads(raw)
+jsonschema.validate(d, json.load(open(sys.argv[2])))
+assert d["counts"] == {"entries": 8, "models": 3, "errors": 5}, d["counts"]
+ids = [p["id"] for p in d["plants"] if not p["error"]]
+assert sorted(ids) == ["-7.13", "=2.385+A1", "glide-ok"], ids   # every model has its id as text
+# a rejected row whose id was refused has none (null), never the raw bytes
+assert [p["id"] for p in d["plants"] if p["error"]] == [None, None, "glide-short", "glide-tiny", "glide-note"]
+PY
+check "hostile rows: JSON is UTF-8, ids are strings, counts add up" 0 $?
+"$ps" screen -o "$tmp/hr" --gate never "$hr" >"$tmp/out" 2>"$tmp/err"; check "hostile rows: screen exit 3" 3 $?
+"$py" - "$tmp/hr/hostile-rows.screen.csv" <<'PY'
+import csv, sys
+rows = list(csv.DictReader(open(sys.argv[1], newline="", encoding="utf-8"), strict=True))
+ids = {r["id"] for r in rows}
+assert "'=2.385+A1" in ids and "'-7.13" in ids and "=2.385+A1" not in ids, ids
+for r in rows:
+    for k, v in r.items():
+        assert not v or v[0] not in "=+-@\t\r", (k, v)   # no cell a spreadsheet would run
+    if r["id"] == "'-7.13":
+        assert float(r["rhp_poles"]) == 0 and r["verdict"] == "clear", r
+PY
+check "hostile rows: formula-like ids guarded in the CSV report, numbers left as numbers" 0 $?
+
+# A YAML file whose structure breaks: the reports say after which line the
+# entries were not read, and that their number is not known.
+cut="$src/tests/data/e2e/cut-structure.yaml"
+"$ps" screen -o "$tmp/cut" --gate never "$cut" >"$tmp/out" 2>"$tmp/err"; check "cut YAML: exit 4" 4 $?
+contains "cut YAML: stderr names file:line:col" "$tmp/err" "$cut:16:9: did not find expected ',' or ']'"
+unread="not read to the end: the entries after line 16 were not read; their number is not known"
+contains "cut YAML: terminal says what was not read" "$tmp/out" "$unread"
+contains "cut YAML: .txt says what was not read" "$tmp/cut/cut-structure.screen.txt" "$unread"
+contains "cut YAML: .md says what was not read" "$tmp/cut/cut-structure.screen.md" "the entries after line 16 were not read"
+contains "cut YAML: .html says what was not read" "$tmp/cut/cut-structure.screen.html" "the entries after line 16 were not read"
+"$py" - "$tmp/cut/cut-structure.screen.json" "$src/reports/schema/plantsieve-screening.schema.json" "$src/reports/schema/plantsieve-survey.schema.json" <<'PY'
+import json, sys, jsonschema
+d = json.load(open(sys.argv[1]))
+schema, survey = (json.load(open(f)) for f in sys.argv[2:4])
+resolver = jsonschema.RefResolver.from_schema(schema, store={survey["$id"]: survey})
+jsonschema.validators.validator_for(schema)(schema, resolver=resolver).validate(d)
+e = d["catalogs"][0]["error"]
+assert d["catalogs"][0]["status"] == "failed" and e["line"] == 16 and e["unread_after_line"] == 16, e
+assert e["unread"].startswith("the entries after line 16 were not read"), e
+ids = sorted(p["id"] for p in d["plants"])
+assert ids == ["cut-before-1", "cut-before-2", "cut-broken"], ids   # none after line 16
+PY
+check "cut YAML: JSON catalogs entry names the line after which nothing was read" 0 $?
+"$ps" survey --json "$cut" >"$tmp/cut.json" 2>/dev/null
+"$py" -c '
+import json, sys, jsonschema
+d = json.load(open(sys.argv[1]))
+jsonschema.validate(d, json.load(open(sys.argv[2])))
+assert d["catalogs"][0]["error"]["unread_after_line"] == 16, d["catalogs"]
+' "$tmp/cut.json" "$src/reports/schema/plantsieve-survey.schema.json"; check "cut YAML: survey JSON names the line too" 0 $?
+
 echo "$pass passed, $fail failed"
 [ "$fail" -eq 0 ]

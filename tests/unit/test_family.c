@@ -395,6 +395,22 @@ typedef struct range_case {
     const char *field, *words;
 } range_case;
 
+/* A family id starts every grid plant's id: a control character in it is
+ * refused like one in a plant id (it would reach the terminal raw). */
+Test(family, control_character_in_family_id_refused)
+{
+    read_family("families:\n  - id: \"gap\\e[2J\"\n    parameters:\n      gap: {nominal: 0.006, sweep: [0.004, 0.008]}\n"
+                "    poles: [\"-1/gap\"]\n    gain: 2.385\n",
+                false);
+    cr_assert_eq(fam_status, PS_ERR_INPUT);
+    cr_expect_eq(fam_diag.line, 2);
+    cr_expect_eq(fam_diag.col, 9);
+    cr_expect_str_eq(fam_diag.field, "id");
+    cr_expect(strstr(fam_diag.text, "family id: control character U+001B at character 4") != NULL, "%s",
+              fam_diag.text);
+    cr_expect_str_eq(fam.id, "", "no id with the escape is kept");
+}
+
 Test(family, range_errors_name_line_field_and_expectation)
 {
     static const range_case cases[] = {

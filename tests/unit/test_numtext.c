@@ -1,6 +1,7 @@
 /* test_numtext.c - strict parsing of catalog numbers: reals, complex values
  * and pairs, and blank-separated lists. */
 #include <criterion/criterion.h>
+#include <float.h>
 #include <string.h>
 
 #include "catalog/numtext.h"
@@ -36,7 +37,35 @@ Test(numtext, reals)
     cr_expect_eq(real_ok("  1.25e-3\t"), 1.25e-3);
     cr_expect_eq(real_ok("6.02E23"), 6.02e23);
     cr_expect_eq(real_ok("-0"), 0.0);
-    cr_expect_eq(real_ok("1e-400"), 0.0, "underflow is a tiny number, not an error");
+    /* Zero in any spelling stays 0; the smallest normal double is still read
+     * (IEEE 754 binary64: DBL_MIN = 2^-1022 = 2.2250738585072014e-308). */
+    cr_expect_eq(real_ok("0e-400"), 0.0);
+    cr_expect_eq(real_ok("-0.000e-999"), 0.0);
+    cr_expect_eq(real_ok("2.2250738585072014e-308"), DBL_MIN);
+    cr_expect_eq(real_ok("-3.917e-300"), -3.917e-300);
+}
+
+/* A nonzero decimal that would underflow to 0 (or to a subnormal) is refused,
+ * not read as 0: a pole or delay of 1e-400 is not a pole or delay at 0. */
+Test(numtext, underflow_refused)
+{
+    cr_expect(strstr(real_bad("1e-400"), "too small") != NULL);
+    cr_expect(strstr(real_bad("-2.385e-400"), "too small") != NULL);
+    cr_expect(strstr(real_bad("4.9e-324"), "too small") != NULL, "the smallest subnormal");
+    cr_expect(strstr(real_bad("1.7e-310"), "too small") != NULL, "a subnormal");
+    cr_expect(strstr(real_bad("0.0000001e-305"), "too small") != NULL);
+    ps_cplx v[2];
+    const char *why = NULL;
+    cr_expect_eq(ps_text_complex("-1.5+1e-400j", v, &why), -1);
+    cr_expect(why && strstr(why, "too small"));
+    double out[4];
+    size_t bad = 99;
+    cr_expect_eq(ps_text_real_list("1 2.385 6.1e-401", out, 4, &bad, &why), -1);
+    cr_expect_eq(bad, 2, "the third value is named");
+    ps_plant p;
+    ps_plant_reset(&p);
+    cr_expect_eq(ps_text_scalar_field(&p, PS_F_DELAY, "3.3e-342", &why), -1);
+    cr_expect_eq(ps_text_scalar_field(&p, PS_F_BAND_EDGE, "1e-330 Hz", &why), -1);
 }
 
 Test(numtext, real_rejections)

@@ -11,6 +11,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "report/csv_cells.h"
 #include "report/reports.h"
 #include "screen/screen.h"
 #include "support.h"
@@ -216,6 +217,64 @@ static void assert_near(const char *text, double want, double rel)
     double got = strtod(text, &end);
     cr_assert(end != text && *end == '\0', "'%s' is not a number", text);
     cr_assert(fabs(got - want) <= rel * fabs(want), "got %s, want %.9g", text, want);
+}
+
+/* Formula injection (common practice: a spreadsheet runs a cell that begins
+ * with =, +, -, @, a tab or a CR as a formula; an apostrophe in front makes it
+ * text). Text cells get the apostrophe, numbers never do. */
+Test(reports, csv_text_cells_guarded_against_formulas_numbers_not)
+{
+    static const char *const ids[] = {"=HYPERLINK(\"http://x.example\",\"2.385\")", "+7.13+cmd|' /C calc'!A0",
+                                      "-4.91+A1", "@SUM(A1:A9)", "\tlead-tab", "plain-6.02"};
+    enum { N_IDS = sizeof ids / sizeof ids[0] };
+    static ps_run r;
+    ps_screen_opts opt = {.marginal_at = 0.8};
+    ps_run_init(&r, &opt);
+    cr_assert_eq(ps_run_add_catalog(&r, "=cmd.yaml", NULL), PS_OK);
+    for (size_t i = 0; i < N_IDS; i++) {
+        ps_summary *s = add_screened(&r, ids[i], PS_VERDICT_MARGINAL, 0.8 + 0.0173 * (double)i, 1.83, 1.21, 11 + i);
+        s->fl.bode_area = -1.5 - 0.25 * (double)i; /* a negative number must stay a number */
+        snprintf(s->cause, sizeof s->cause, "-%zu dB of margin lost", i + 3);
+        ps_run_commit(&r);
+    }
+    r.counts = (ps_batch_counts){.entries = N_IDS, .models = N_IDS};
+    ps_run_rank(&r);
+    char *doc = render(ps_write_csv, &r, NULL);
+    const char *path = ps_test_write_temp(".csv", doc);
+    cr_assert_not_null(path);
+    char csv_path[256];
+    snprintf(csv_path, sizeof csv_path, "%s", path);
+    static table t;
+    read_back(csv_path, &t);
+    unlink(csv_path);
+    cr_assert_eq(t.n_rows, N_IDS + 1);
+    size_t seen = 0;
+    for (size_t row = 1; row < t.n_rows; row++) {
+        const char *got = cell(&t, row, "id");
+        size_t i = 0;
+        while (i < N_IDS && strcmp(got + (got[0] == '\''), ids[i]) != 0)
+            i++;
+        cr_assert_lt(i, N_IDS, "row %zu: id '%s' is none of the plants", row, got);
+        seen |= (size_t)1 << i;
+        bool risky = strchr("=+-@\t", ids[i][0]) != NULL;
+        if (risky) {
+            cr_assert_eq(got[0], '\'', "row %zu: id '%s' is not guarded", row, got);
+            cr_assert_str_eq(got + 1, ids[i]);
+        } else {
+            cr_assert_str_eq(got, ids[i], "a safe id is written as it is");
+        }
+        char want_cause[64];
+        snprintf(want_cause, sizeof want_cause, "'-%zu dB of margin lost", i + 3);
+        cr_assert_str_eq(cell(&t, row, "cause"), want_cause);
+        cr_assert_str_eq(cell(&t, row, "file"), "'=cmd.yaml");
+        /* Numbers: no apostrophe, and negative ones parse back exactly. */
+        assert_near(cell(&t, row, "bode_area"), -1.5 - 0.25 * (double)i, 1e-12);
+        assert_near(cell(&t, row, "severity"), 0.8 + 0.0173 * (double)i, 1e-8);
+    }
+    cr_assert_eq(seen, ((size_t)1 << N_IDS) - 1, "every plant has its row");
+    cr_assert(ps_csv_text_guarded("-x") && !ps_csv_text_guarded("x-") && !ps_csv_text_guarded(""));
+    free(doc);
+    ps_run_free(&r);
 }
 
 Test(reports, csv_read_back_by_a_csv_reader)

@@ -340,6 +340,18 @@ Test(yaml_reader, unknown_field_then_next_entry)
     cr_expect_str_eq(kept(1)->id, "q");
 }
 
+/* A key is echoed in the message: its control characters are shown as '?'. */
+Test(yaml_reader, unknown_key_with_control_characters_not_echoed_raw)
+{
+    cr_assert_eq(read_text("plants:\n"
+                           "  - id: p\n"
+                           "    \"ga\\e[2Jin\\x9b\": 2.385\n"
+                           "    poles: [-1]\n"),
+                 PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 1);
+    expect_entry_error(0, 3, 5, "ga?[2Jin?" "?", "unknown field 'ga?[2Jin?" "?'");
+}
+
 Test(yaml_reader, id_after_error_still_named)
 {
     cr_assert_eq(read_text("plants:\n  - foo: 1\n    id: later\n"), PS_OK);
@@ -484,6 +496,63 @@ Test(yaml_reader, id_too_long)
     expect_ok(0);
     cr_expect_eq(strlen(kept(0)->id), PS_ID_MAX - 1);
     expect_entry_error(1, 3, 9, "id", "id: longer than 95 bytes");
+}
+
+/* libyaml refuses raw control bytes, but escapes in double quotes and a raw
+ * NEL (U+0085, a C1 character YAML allows) still make them: the id is refused
+ * where its scalar starts. */
+Test(yaml_reader, control_characters_in_ids_refused)
+{
+    static const char text[] = "plants:\n"
+                               "  - id: \"red\\e[31mx\"\n"          /* ESC by escape */
+                               "    gain: 2.385\n"
+                               "  - {gain: 1.5, id: \"a\\tb\"}\n"     /* tab by escape, line 4 col 17 */
+                               "  - id: \"nel\\N\"\n"                /* U+0085 by escape */
+                               "  - id: \"csi\\x9b\"\n"              /* U+009B by escape */
+                               "  - id: \"del\\x7f\"\n"
+                               "  - id: \"ok\\u00a0nbsp\"\n"
+                               "    note: \"tab\\tin a note\"\n";
+    cr_assert_eq(read_text(text), PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 6);
+    expect_entry_error(0, 2, 9, "id", "id: control character U+001B at character 4");
+    expect_entry_error(1, 4, 21, "id", "control character U+0009 at character 2");
+    expect_entry_error(2, 5, 9, "id", "control character U+0085 at character 4");
+    expect_entry_error(3, 6, 9, "id", "control character U+009B at character 4");
+    expect_entry_error(4, 7, 9, "id", "control character U+007F at character 4");
+    expect_ok(5);
+    cr_expect_str_eq(kept(5)->id, "ok\xC2\xA0nbsp");
+    cr_expect_str_eq(kept(5)->note, "tab\tin a note", "a note may hold a tab");
+}
+
+/* The README's anchor cap: 256 distinct anchor names per file are read, the
+ * 257th ends the read of the file where it stands. */
+static char *anchored_plants(size_t n)
+{
+    size_t cap = 32 + n * 48;
+    char *text = malloc(cap);
+    cr_assert_not_null(text);
+    size_t used = (size_t)snprintf(text, cap, "plants:\n");
+    for (size_t i = 0; i < n; i++)
+        used += (size_t)snprintf(text + used, cap - used, "  - id: &k%zu p%zu\n    gain: 2.385\n", i, i);
+    return text;
+}
+
+Test(yaml_reader, anchor_cap_256_names)
+{
+    char *text = anchored_plants(256);
+    cr_assert_eq(read_text(text), PS_OK, "%s", fd.text);
+    free(text);
+    cr_assert_eq(col.calls, 256);
+    cr_assert_eq(col.errors, 0);
+    col.calls = col.errors = 0;
+    text = anchored_plants(257);
+    ps_status st = read_text(text);
+    free(text);
+    cr_assert_eq(st, PS_ERR_SYNTAX);
+    cr_expect_eq(fd.line, 2 + 2 * 256, "the 257th anchor's line: %zu", fd.line);
+    cr_expect(strstr(fd.text, "more than 256 distinct anchors in one file") != NULL, "%s", fd.text);
+    cr_expect_geq(col.calls, 256, "the 256 plants before it are read");
+    cr_expect_eq(col.calls - col.errors, 256);
 }
 
 Test(yaml_reader, scalar_over_field_limit)
