@@ -639,7 +639,7 @@ assert [p["id"] for p in d["plants"] if p["error"]] == [None, None, "glide-short
 PY
 check "hostile rows: JSON is UTF-8, ids are strings, counts add up" 0 $?
 "$ps" screen -o "$tmp/hr" --gate never "$hr" >"$tmp/out" 2>"$tmp/err"; check "hostile rows: screen exit 3" 3 $?
-"$py" - "$tmp/hr/hostile-rows.screen.csv" <<'PY'
+"$py" - "$tmp/hr/hostile-rows.screen/hostile-rows.screen.csv" <<'PY'
 import csv, sys
 rows = list(csv.DictReader(open(sys.argv[1], newline="", encoding="utf-8"), strict=True))
 ids = {r["id"] for r in rows}
@@ -659,10 +659,10 @@ cut="$src/tests/data/e2e/cut-structure.yaml"
 contains "cut YAML: stderr names file:line:col" "$tmp/err" "$cut:16:9: did not find expected ',' or ']'"
 unread="not read to the end: the entries after line 16 were not read; their number is not known"
 contains "cut YAML: terminal says what was not read" "$tmp/out" "$unread"
-contains "cut YAML: .txt says what was not read" "$tmp/cut/cut-structure.screen.txt" "$unread"
-contains "cut YAML: .md says what was not read" "$tmp/cut/cut-structure.screen.md" "the entries after line 16 were not read"
-contains "cut YAML: .html says what was not read" "$tmp/cut/cut-structure.screen.html" "the entries after line 16 were not read"
-"$py" - "$tmp/cut/cut-structure.screen.json" "$src/reports/schema/plantsieve-screening.schema.json" "$src/reports/schema/plantsieve-survey.schema.json" <<'PY'
+contains "cut YAML: .txt says what was not read" "$tmp/cut/cut-structure.screen/cut-structure.screen.txt" "$unread"
+contains "cut YAML: .md says what was not read" "$tmp/cut/cut-structure.screen/cut-structure.screen.md" "the entries after line 16 were not read"
+contains "cut YAML: .html says what was not read" "$tmp/cut/cut-structure.screen/cut-structure.screen.html" "the entries after line 16 were not read"
+"$py" - "$tmp/cut/cut-structure.screen/cut-structure.screen.json" "$src/reports/schema/plantsieve-screening.schema.json" "$src/reports/schema/plantsieve-survey.schema.json" <<'PY'
 import json, sys, jsonschema
 d = json.load(open(sys.argv[1]))
 schema, survey = (json.load(open(f)) for f in sys.argv[2:4])
