@@ -5,11 +5,11 @@
 #include <stdio.h>
 #include <string.h>
 
-#include <complex.h>
+#include "core/complex_make.h"
 
 enum { NP = PS_MAX_ORDER };
 
-static inline double complex cx(ps_cplx a) { return CMPLX(a.re, a.im); }
+static inline double complex cx(ps_cplx a) { return ps_complex_make(a.re, a.im); }
 
 /* RHP roots as plain values (multiplicity kept: each member once). */
 static size_t rhp(const ps_root *r, size_t n, ps_cplx *out)
