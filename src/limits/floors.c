@@ -5,11 +5,11 @@
 #include <stdio.h>
 #include <string.h>
 
-#include <complex.h>
+#include "core/complex_make.h"
 
 enum { NP = PS_MAX_ORDER };
 
-static inline double complex cx(ps_cplx a) { return CMPLX(a.re, a.im); }
+static inline double complex cx(ps_cplx a) { return ps_complex_make(a.re, a.im); }
 
 /* A floor with its natural logarithm (ps_floors): the value may overflow a
  * double (+INFINITY) while the logarithm stays finite. */

@@ -14,7 +14,7 @@
 #include <math.h>
 #include <stdlib.h>
 
-#include <complex.h> /* after GSL: gsl_complex stays a struct */
+#include "core/complex_make.h" /* after GSL: gsl_complex stays a struct */
 
 enum { NP = PS_MAX_ORDER };
 
@@ -56,8 +56,7 @@ void ps_limits_ws_free(ps_limits_ws *ws)
     free(ws);
 }
 
-static inline double complex cx(ps_cplx a) { return CMPLX(a.re, a.im); }
-static inline gsl_complex gz(double complex a) { return gsl_complex_rect(creal(a), cimag(a)); }
+static inline double complex cx(ps_cplx a) { return ps_complex_make(a.re, a.im); }
 
 double ps_bode_area(const ps_cplx *p, size_t np)
 {

@@ -15,7 +15,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include <complex.h> /* after the GSL headers: gsl_complex stays a struct */
+#include "core/complex_make.h" /* after the GSL headers: gsl_complex stays a struct */
 
 enum { NMAX = PS_MAX_ORDER + 1 };
 
@@ -73,7 +73,7 @@ void ps_roots_ws_free(ps_roots_ws *ws)
     free(ws);
 }
 
-static inline double complex to_c(ps_cplx x) { return CMPLX(x.re, x.im); }
+static inline double complex to_c(ps_cplx x) { return ps_complex_make(x.re, x.im); }
 static inline ps_cplx from_c(double complex x) { return (ps_cplx){creal(x), cimag(x)}; }
 
 ps_cplx ps_poly_eval(const double *c, size_t n, ps_cplx s)

@@ -32,7 +32,7 @@
 #include <string.h>
 
 /* After the GSL headers (LIBRARIES.md 1g); no gsl_complex is used here. */
-#include <complex.h>
+#include "core/complex_make.h"
 
 #include "limits/floors.h"
 #include "limits/limits.h"
@@ -161,7 +161,7 @@ static int poly_roots(const double *c, size_t len, double complex *out)
     if (rc != GSL_SUCCESS)
         return -1;
     for (size_t i = 0; i + 1 < len; i++)
-        out[i] = CMPLX(z[2 * i], z[2 * i + 1]);
+        out[i] = ps_complex_make(z[2 * i], z[2 * i + 1]);
     return (int)(len - 1);
 }
 
@@ -293,8 +293,8 @@ static void push_pair(double complex *v, size_t *n, double mag, double ang, int 
 {
     /* side = +1: RHP, x = mag cos(ang); side = -1: LHP */
     double x = side * mag * cos(ang), y = mag * sin(ang);
-    push(v, n, CMPLX(x, y));
-    push(v, n, CMPLX(x, -y));
+    push(v, n, ps_complex_make(x, y));
+    push(v, n, ps_complex_make(x, -y));
 }
 
 static bool near_axis(double complex q, double scale)

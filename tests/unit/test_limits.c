@@ -6,7 +6,7 @@
 #include <math.h>
 #include <stdlib.h>
 
-#include <complex.h>
+#include "core/complex_make.h"
 
 #include "limits/limits.h"
 #include "support.h"
@@ -91,7 +91,7 @@ Test(limits, chen_equals_pick_on_random_sets)
         for (size_t i = 0; i < np; i++) {
             double complex v = 1;
             for (size_t j = 0; j < nz; j++) {
-                double complex pi = CMPLX(p[i].re, p[i].im), zj = CMPLX(z[j].re, z[j].im);
+                double complex pi = ps_complex_make(p[i].re, p[i].im), zj = ps_complex_make(z[j].re, z[j].im);
                 v *= (pi + conj(zj)) / (pi - zj);
             }
             w[i] = (ps_cplx){creal(v), cimag(v)};

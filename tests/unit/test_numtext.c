@@ -119,7 +119,9 @@ Test(numtext, complex_forms)
 Test(numtext, complex_pairs)
 {
     ps_cplx v[2];
-    const char *forms[] = {"-1.5+-2j", "-1.5\xC2\xB1" "2j", "-1.5+/-2j"};
+    /* U+00B1 split off so that the hex escape stops before the 2; the
+     * parentheses tell clang the concatenation is meant. */
+    const char *forms[] = {"-1.5+-2j", ("-1.5\xC2\xB1" "2j"), "-1.5+/-2j"};
     for (size_t i = 0; i < sizeof forms / sizeof *forms; i++) {
         memset(v, 0, sizeof v);
         cr_assert_eq(cplx(forms[i], v), 2, "%s", forms[i]);
