@@ -5,18 +5,7 @@
 set -u
 ps=$1
 src=$2
-py=$(command -p -v python3)
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-pass=0
-fail=0
-
-check() { # check NAME EXPECTED_RC ACTUAL_RC
-    if [ "$2" = "$3" ]; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1 (exit $3, expected $2)"; fi
-}
-contains() { # contains NAME FILE TEXT
-    if grep -qF -- "$3" "$2"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1: '$3' not in $2:"; sed 's/^/    /' "$2"; fi
-}
+. "$src/tests/e2e/lib.sh"
 # Every entry under DIR (hidden ones too) with the hash of every file, by path relative to DIR.
 snapshot() { # snapshot DIR OUT
     (cd "$1" && { find . -mindepth 1 -type d | sed 's/^/dir /'; find . -mindepth 1 ! -type d -exec sha256sum {} +; } | sort) >"$2"

@@ -1,0 +1,15 @@
+# lib.sh - what every end-to-end script shares (sourced after ps and src are
+# set): Debian's python3, a temporary directory removed on exit, and the
+# pass/fail counters with their two checks.
+py=$(command -p -v python3)
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+pass=0
+fail=0
+
+check() { # check NAME EXPECTED_RC ACTUAL_RC
+    if [ "$2" = "$3" ]; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1 (exit $3, expected $2)"; fi
+}
+contains() { # contains NAME FILE TEXT
+    if grep -qF -- "$3" "$2"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1: '$3' not in $2:"; sed 's/^/    /' "$2"; fi
+}
