@@ -609,3 +609,34 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
     count_regions(out);
     return PS_OK;
 }
+
+ps_status ps_roots_held(ps_roots_ws *ws, const ps_held *held, const ps_analysis *cont, ps_held_roots *out,
+                        ps_diag *d)
+{
+    const ps_plant *z = &held->ss;
+    out->n_poles = out->n_zeros = 0;
+    if (cont->n_poles != held->n || z->form != PS_FORM_SS || z->a_rows < held->n)
+        return ps_diag_set(d, PS_ERR_INPUT, z->line, 0, "", "held plant of order %zu does not match %zu poles",
+                           held->n, cont->n_poles);
+    ps_analysis a;
+    a.n_poles = a.n_zeros = 0;
+    size_t dropped = 0;
+    double from = 0;
+    ps_status st;
+    if ((st = ss_markov(ws, z, &a, d)) != PS_OK || (st = ss_zeros(ws, z, &a, &dropped, &from, d)) != PS_OK)
+        return st;
+    /* The pole of e^{A h} for an eigenvalue p of A is e^{p h}. */
+    for (size_t i = 0; i < held->n; i++) {
+        double r = exp(cont->poles[i].v.re * held->h), w = cont->poles[i].v.im * held->h;
+        out->poles[i] = (ps_cplx){r * cos(w), r * sin(w)};
+    }
+    for (size_t i = held->n; i < z->a_rows; i++)
+        out->poles[i] = (ps_cplx){0.0, 0.0};
+    out->n_poles = z->a_rows;
+    for (size_t i = 0; i < a.n_zeros; i++)
+        out->zeros[i] = a.zeros[i].v;
+    out->n_zeros = a.n_zeros;
+    out->gain = a.gain;
+    out->rel_degree = a.rel_degree;
+    return PS_OK;
+}

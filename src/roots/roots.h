@@ -6,6 +6,7 @@
 #include <stdbool.h>
 
 #include "core/diag.h"
+#include "model/discrete.h"
 #include "model/plant.h"
 
 /* Stated tolerances (documented in README and DEVELOPERS.md). */
@@ -57,6 +58,29 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
  * Roots polished by Newton steps on c, clustered (PS_CLUSTER_RTOL) and
  * classified. Returns the number of roots (n-1) or -1 with d set. OUT: out. */
 int ps_roots_poly(ps_roots_ws *ws, const double *c, size_t n, ps_root *out, ps_diag *d);
+
+/* Poles and zeros of a held plant's transfer function in z:
+ * H(z) = gain prod(z - zeros) / prod(z - poles), rel_degree = n_poles - n_zeros. */
+typedef struct ps_held_roots {
+    size_t n_poles, n_zeros;
+    ps_cplx poles[PS_MAX_ORDER], zeros[PS_MAX_ORDER];
+    double gain;     /* first non-zero Markov parameter: D_d, or C_d Phi_d^(r-1) Gamma_d */
+    int rel_degree;
+} ps_held_roots;
+
+/* Poles and zeros of the held plant made by ps_discrete_hold from the
+ * continuous plant whose analysis is cont (ps_roots_analyse, same plant).
+ * Poles: e^{p h} for each continuous pole p (the eigenvalues of Phi, without
+ * rounding the defective zero eigenvalues of the delay chain) and one pole at
+ * z = 0 per delay state. Zeros: finite generalized eigenvalues of the Rosenbrock
+ * pencil of (Phi_d, Gamma_d, C_d, D_d), with the relative degree from the Markov
+ * parameters (the same machinery as state-space plants in s); the sampling zeros
+ * are among them. No classification (that is for the unit circle, later).
+ * Returns PS_OK, PS_ERR_INPUT (cont does not match held, zero transfer function)
+ * or PS_ERR_NUMERIC with d set. Allocates nothing beyond GSL 2.7's QZ vector
+ * (see DEVELOPERS.md). OUT: out. */
+ps_status ps_roots_held(ps_roots_ws *ws, const ps_held *held, const ps_analysis *cont, ps_held_roots *out,
+                        ps_diag *d);
 
 /* Evaluate a DESCENDING-coefficient polynomial at s. */
 ps_cplx ps_poly_eval(const double *c, size_t n, ps_cplx s);

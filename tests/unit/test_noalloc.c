@@ -14,6 +14,7 @@
 
 #include "catalog/catalog.h"
 #include "sanitizer.h"
+#include "model/discrete.h"
 #include "screen/screen.h"
 #include "support.h"
 
@@ -188,6 +189,52 @@ Test(noalloc, per_plant_path_allocates_nothing)
     ps_limits_ws_free(lws);
     ps_screen_ws_free(sws);
     ps_roots_ws_free(rws);
+    __libc_free(scratch);
+    __libc_free(plants);
+}
+
+/* The hold discretisation and the held plant's roots (model/discrete, roots):
+ * every demo plant held at 13.7 ms with its own delay plus 1.37 samples. */
+Test(noalloc, held_plant_path_allocates_nothing)
+{
+    SKIP_UNDER_SANITIZER();
+    plants = __libc_calloc(MAX_PLANTS, sizeof *plants);
+    ps_plant *scratch = __libc_calloc(1, sizeof *scratch);
+    ps_held *held = __libc_calloc(1, sizeof *held);
+    ps_held_roots *hr = __libc_calloc(1, sizeof *hr);
+    cr_assert(plants && scratch && held && hr);
+    n_plants = 0;
+    ps_diag fd = {0};
+    cr_assert_eq(ps_catalog_read(PS_SOURCE_DIR "/catalogs/demo-variants.yaml", scratch, keep, NULL, &fd), PS_OK,
+                 "%s", fd.text);
+    cr_assert_geq(n_plants, 20);
+    ps_roots_ws *rws = ps_roots_ws_new();
+    ps_discrete_ws *dws = ps_discrete_ws_new();
+    cr_assert(rws && dws);
+    ps_analysis an;
+    size_t total = 0, held_ok = 0;
+    for (size_t i = 0; i < n_plants; i++) {
+        *scratch = plants[i];
+        ps_diag d = {0};
+        if (ps_roots_analyse(rws, scratch, &an, &d) != PS_OK)
+            continue;
+        const double h = 0.0137;
+        counting = 1;
+        calls = 0;
+        ps_status st = ps_discrete_hold(dws, scratch, h, scratch->delay + 1.37 * h, held, &d);
+        if (st == PS_OK)
+            st = ps_roots_held(rws, held, &an, hr, &d);
+        counting = 0;
+        held_ok += st == PS_OK;
+        cr_expect_eq(calls, 0, "plant '%s': %zu allocation(s)", plants[i].id, calls);
+        total += calls;
+    }
+    cr_assert_eq(total, 0);
+    cr_assert_geq(held_ok, 20, "only %zu plants held", held_ok);
+    ps_discrete_ws_free(dws);
+    ps_roots_ws_free(rws);
+    __libc_free(hr);
+    __libc_free(held);
     __libc_free(scratch);
     __libc_free(plants);
 }
