@@ -214,8 +214,9 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
         put_rhp(&t, "; z", an->zeros, an->n_zeros);
         ps_text_put(&t, "; theta = %.10g s; eps_T = %.10g; w_h = %.10g rad/s", an->delay, q->delta / (1 - q->delta), q->wh);
     } else
-        set_formula(it, q->wh > 0 ? "not applicable: rolloff_gain delta = 0 bounds |T| by 0 beyond w_h only in "
-                                    "the limit, which gives no finite floor"
+        set_formula(it, q->wh > 0 ? "not applicable: with rolloff_gain delta = 0 (the available-bandwidth form) "
+                                    "eps_T = 0 and the Poisson bound on T degenerates; the band-forced floor "
+                                    "covers that form"
                                   : "not applicable: no rolloff_start given");
 
     it = add(out, "ms", "overall Ms floor", fl->ms, fl->ms_ln, "S + T = 1 (identity)",
