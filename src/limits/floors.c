@@ -307,9 +307,8 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
      * ps_ms_single and ps_mt_single return 1 when there is no point, so they
      * are used only with one. */
     bool s_one = s_forced_one(an, nz), t_one = np > 0 || an->n_axis_poles > 0;
-    big ms_single = nz ? big_pair(ps_ms_single(z, nz, p, np), ps_ms_single_ln(z, nz, p, np)) : big_val(s_one ? 1.0 : 0.0);
-    big mt_single = np ? big_pair(ps_mt_single(z, nz, p, np, theta), ps_mt_single_ln(z, nz, p, np, theta))
-                       : big_val(t_one ? 1.0 : 0.0);
+    big ms_single = nz ? big_exp(ps_ms_single_ln(z, nz, p, np)) : big_val(s_one ? 1.0 : 0.0);
+    big mt_single = np ? big_exp(ps_mt_single_ln(z, nz, p, np, theta)) : big_val(t_one ? 1.0 : 0.0);
     /* Infinite only for an exact cancellation (a zero divisor in a product);
      * a product too large for a double has a finite logarithm. */
     out->infinite = ms_single.ln == INFINITY || mt_single.ln == INFINITY;

@@ -110,36 +110,15 @@ double ps_band_floor(double F, double wb, double eps, double wh, double delta, d
     return exp((F + band - ps_rolloff_tail(wh, delta, k)) / (wh - wb));
 }
 
+/* The products through their logarithms (one loop for both forms). */
 double ps_ms_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np)
 {
-    double best = 1.0;
-    for (size_t j = 0; j < nz; j++) {
-        double prod = 1.0;
-        for (size_t i = 0; i < np; i++) {
-            double den = cabs(cx(z[j]) - cx(p[i]));
-            if (den == 0)
-                return INFINITY;
-            prod *= cabs(cx(z[j]) + conj(cx(p[i]))) / den;
-        }
-        best = fmax(best, prod);
-    }
-    return best;
+    return exp(ps_ms_single_ln(z, nz, p, np));
 }
 
 double ps_mt_single(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np, double theta)
 {
-    double best = 1.0;
-    for (size_t i = 0; i < np; i++) {
-        double prod = exp(p[i].re * theta);
-        for (size_t j = 0; j < nz; j++) {
-            double den = cabs(cx(z[j]) - cx(p[i]));
-            if (den == 0)
-                return INFINITY;
-            prod *= cabs(conj(cx(z[j])) + cx(p[i])) / den;
-        }
-        best = fmax(best, prod);
-    }
-    return best;
+    return exp(ps_mt_single_ln(z, nz, p, np, theta));
 }
 
 double ps_ms_single_ln(const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np)
