@@ -13,6 +13,9 @@
  * multiplicity for the interpolation floors (confluent Pick). */
 #define PS_MERGE_RTOL 1e-6
 
+/* Roots of the digital loop kept in ps_floors for reports. */
+enum { PS_ZMAP = 16 };
+
 /* How an interpolation floor was computed (for the audit trail). */
 typedef enum ps_route {
     PS_ROUTE_NONE = 0,   /* no RHP point to interpolate at: the value is what S or T is forced to (0 or 1) */
@@ -39,7 +42,7 @@ typedef struct ps_floors {
                                 delta = 0 */
     double ms, mt;           /* overall, with ||S|| >= ||T|| - 1 and the converse; a roll-off requirement
                                 adds ||S|| >= 1 (the loop is then strictly proper) */
-    const char *limiting;    /* which result sets ms: "interpolation", "band", "poisson", "complementary",
+    const char *limiting;    /* which result sets ms: "interpolation", "band", "nyquist", "poisson", "complementary",
                                 "none" (ms <= 1); or why no controller stabilizes: "hidden-mode" (a hidden
                                 unstable mode), "cancellation" (an RHP zero on an RHP pole, not flagged as
                                 a hidden mode: e.g. a search moved one onto the other) */
@@ -61,6 +64,22 @@ typedef struct ps_floors {
     int bode_controller_rd;  /* smallest controller relative degree for which the loop has relative degree
                                 >= 2, so the Bode area floor holds with no correction term */
     ps_route ms_route, mt_route; /* how ms_interpolation and mt_interpolation were computed */
+    /* The digital loop (an->h > 0; README "Digital loops"). The
+     * interpolation, effort and Poisson floors are those of the held plant
+     * (or the plant given in z) mapped by w = (z - 1)/(z + 1) onto the right
+     * half plane, where they are computed as for a continuous plant without
+     * delay; bode_area is then (pi/h) sum ln|p_d| over the poles outside the
+     * unit circle (rad/s; pi sum Re p for a held plant). All zero/empty for a
+     * continuous loop (h == 0). */
+    double h, nyquist;                 /* sample period s, pi/h rad/s */
+    double ms_nyquist, ms_nyquist_ln;  /* floor on ||S|| over [wb, pi/h] from the discrete Bode area
+                                          (wb = 0 without a band); NAN when L(inf) may be non-zero
+                                          (the plant in z has direct feedthrough) */
+    int z_rel_degree;                  /* relative degree in z: zeros at z = infinity (mapped to w = 1) */
+    size_t n_zpoles, n_zzeros;         /* true counts of the plant's poles and finite zeros in z */
+    ps_cplx zpoles[PS_ZMAP], zzeros[PS_ZMAP]; /* the first PS_ZMAP of each */
+    bool zzero_sampling[PS_ZMAP];      /* a zero the hold created (not the image of a plant zero) */
+    size_t n_sampling_zeros, n_zzeros_outside; /* sampling zeros; finite zeros outside the unit circle */
     char note[160];          /* a fallback taken, why a value is missing, or an assumption a value rests on */
     size_t note_plant;       /* length of the plant half's note; the requirement half writes after it */
 } ps_floors;

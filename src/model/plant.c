@@ -16,6 +16,8 @@ static const char *const field_names[PS_F_COUNT] = {
     [PS_F_BAND_EDGE] = "band_edge",           [PS_F_BAND_ATTENUATION] = "band_attenuation",
     [PS_F_ROLLOFF_START] = "rolloff_start",   [PS_F_ROLLOFF_GAIN] = "rolloff_gain",
     [PS_F_ROLLOFF_SLOPE] = "rolloff_slope",   [PS_F_EFFORT_ALLOWED] = "effort_allowed",
+    [PS_F_SAMPLE_RATE] = "sample_rate",       [PS_F_COMPUTE_DELAY] = "compute_delay",
+    [PS_F_DOMAIN] = "domain",
 };
 
 ps_field_kind ps_field_kind_of(ps_field f)
@@ -125,6 +127,10 @@ void ps_plant_copy(ps_plant *dst, const ps_plant *src)
     dst->d = src->d;
     dst->delay = src->delay;
     dst->req = src->req;
+    dst->sample_period = src->sample_period;
+    dst->compute_delay = src->compute_delay;
+    dst->compute_delay_samples = src->compute_delay_samples;
+    dst->in_z = src->in_z;
     dst->n_warn = src->n_warn;
     for (size_t i = 0; i < capped(src->n_warn, PS_MAX_WARN); i++)
         copy_text(dst->warn[i], src->warn[i], sizeof dst->warn[i]);
@@ -145,6 +151,10 @@ void ps_plant_reset(ps_plant *p)
     p->d = 0.0;
     p->delay = 0.0;
     p->req = (ps_requirements){.ms_allowed = 2.0, .mt_allowed = 1.25, .delta = 0.5, .k = 1.0};
+    p->sample_period = 0.0;
+    p->compute_delay = 0.0;
+    p->compute_delay_samples = NAN;
+    p->in_z = false;
     p->n_warn = 0;
 }
 

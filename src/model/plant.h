@@ -26,6 +26,8 @@ typedef enum ps_field {
     /* requirements (catalog defaults, overridable per plant) */
     PS_F_MS_ALLOWED, PS_F_MT_ALLOWED, PS_F_BAND_EDGE, PS_F_BAND_ATTENUATION,
     PS_F_ROLLOFF_START, PS_F_ROLLOFF_GAIN, PS_F_ROLLOFF_SLOPE, PS_F_EFFORT_ALLOWED,
+    /* the digital loop (README "Digital loops") */
+    PS_F_SAMPLE_RATE, PS_F_COMPUTE_DELAY, PS_F_DOMAIN,
     PS_F_COUNT
 } ps_field;
 
@@ -80,6 +82,18 @@ typedef struct ps_plant {
 
     double delay;                      /* seconds, input/output delay; 0 if absent */
     ps_requirements req;
+
+    /* The digital loop. sample_period 0: a continuous loop. in_z: the model
+     * fields (num/den, zeros/poles, a/b/c/d) are in z at sample_period (a
+     * plant given in z needs a sample rate; its delay field is refused).
+     * compute_delay: seconds from sampling to the output applied, set by
+     * ps_plant_check from compute_delay_samples (samples, NAN when given in
+     * seconds) or from the default of one sample; for a plant in z a whole
+     * number of samples. */
+    double sample_period;
+    double compute_delay;
+    double compute_delay_samples;
+    bool in_z;
 
     size_t n_warn;
     char warn[PS_MAX_WARN][PS_WARN_TEXT];

@@ -6,6 +6,10 @@
 #include <stdio.h>
 #include <string.h>
 
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
 const char ps_caution_text[] =
     "Caution: these floors are necessary conditions only. A variant that passes is not shown to be "
     "controllable with adequate robustness; one that fails cannot meet the stated requirements with any "
@@ -48,6 +52,8 @@ const char *ps_target_label(ps_target_kind k)
     case PS_TARGET_ROLLOFF: return "available bandwidth (roll-off start)";
     case PS_TARGET_BAND: return "band edge";
     case PS_TARGET_EFFORT: return "allowed peak |C S|";
+    case PS_TARGET_SAMPLE_RATE: return "sample rate";
+    case PS_TARGET_COMPUTE_DELAY: return "computation delay";
     case PS_TARGET_COUNT: break;
     }
     return "?";
@@ -96,6 +102,10 @@ void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n)
         return;
     if (t->state == PS_TARGET_NONE) {
         snprintf(buf, n, "%s: no value passes (%s)", ps_target_label(k), t->why);
+        return;
+    }
+    if (t->state == PS_TARGET_NOT_MONOTONE) {
+        snprintf(buf, n, "%s: no single boundary (%s)", ps_target_label(k), t->why);
         return;
     }
     char now[48], lim[48], ttd[48], thumb[120];
@@ -152,6 +162,28 @@ void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n)
         break;
     case PS_TARGET_EFFORT:
         snprintf(buf, n, "allowed peak |C S| must reach %.4g (the effort floor); now %.4g", t->limit, t->now);
+        break;
+    case PS_TARGET_SAMPLE_RATE:
+        if (t->state == PS_TARGET_UNBOUNDED)
+            snprintf(buf, n, "sample rate: every value down to %.4g Hz passes (the searched range); now %.4g Hz",
+                     t->searched, t->now);
+        else
+            snprintf(buf, n, "sample rate must reach %.4g Hz (Nyquist frequency %.4g rad/s); now %.4g Hz", t->limit,
+                     M_PI * t->limit, t->now);
+        break;
+    case PS_TARGET_COMPUTE_DELAY:
+        time_text(t->now, now, sizeof now);
+        if (t->state == PS_TARGET_UNBOUNDED) {
+            time_text(t->searched, lim, sizeof lim);
+            snprintf(buf, n, "computation delay: every value up to %s passes (the searched range); now %s", lim, now);
+        } else {
+            time_text(t->limit, lim, sizeof lim);
+            if (s->h > 0)
+                snprintf(buf, n, "computation delay must stay below %s (%.3g samples); now %s (%.3g samples)", lim,
+                         t->limit / s->h, now, t->now / s->h);
+            else
+                snprintf(buf, n, "computation delay must stay below %s; now %s", lim, now);
+        }
         break;
     case PS_TARGET_COUNT: break;
     }

@@ -550,6 +550,10 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
     out->hidden_unstable = false;
     out->minimal = true;
     out->delay = p->delay;
+    out->h = p->sample_period;
+    out->compute_delay = p->compute_delay;
+    out->compute_delay_samples = p->compute_delay_samples;
+    out->in_z = p->in_z;
     ps_status st = PS_OK;
     switch (p->form) {
     case PS_FORM_POLY: {

@@ -33,6 +33,13 @@ typedef struct ps_analysis {
     double gain;          /* k in k*prod(s-z)/prod(s-p): leading coefficient ratio */
     int rel_degree;       /* n_poles - n_zeros of the transfer function */
     double delay;
+    /* The digital loop (from the plant): h the sample period in s, 0 for a
+     * continuous loop; compute_delay in s (added to delay when the plant is
+     * held; it scales with h when given in samples); in_z: the roots are in z, classified against the unit circle
+     * (region PS_RHP outside, PS_AXIS on it, tol on | |z| - 1 |), delay 0. */
+    double h, compute_delay;
+    double compute_delay_samples; /* NAN when the computation delay was given in seconds */
+    bool in_z;
     bool hidden_unstable; /* an RHP mode no controller can reach or see */
     bool minimal;         /* state space: every mode controllable and observable (RHP only checked) */
     size_t n_rhp_poles, n_rhp_zeros, n_axis_poles;

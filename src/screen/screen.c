@@ -59,7 +59,8 @@ const char *ps_verdict_name(ps_verdict v)
 const char *ps_target_key(ps_target_kind k)
 {
     static const char *const keys[PS_TARGET_COUNT] = {"unstable_pole", "rhp_zero", "delay", "rolloff_start",
-                                                      "band_edge", "effort_allowed"};
+                                                      "band_edge", "effort_allowed", "sample_rate",
+                                                      "compute_delay"};
     return (unsigned)k < PS_TARGET_COUNT ? keys[k] : "?";
 }
 
@@ -70,6 +71,7 @@ const char *ps_target_state_name(ps_target_state s)
     case PS_TARGET_FOUND: return "found";
     case PS_TARGET_NONE: return "no-value-passes";
     case PS_TARGET_UNBOUNDED: return "unbounded";
+    case PS_TARGET_NOT_MONOTONE: return "not-monotone";
     }
     return "?";
 }
@@ -236,6 +238,16 @@ static double probe_margin(probe *pr, double x)
             }
         break;
     case PS_TARGET_DELAY: w->delay = x; break;
+    case PS_TARGET_SAMPLE_RATE:
+        /* The Nyquist frequency must stay above the band edge and the
+         * roll-off start (they are frequencies of the sampled loop). */
+        if (!(M_PI * x > q.wb && M_PI * x > q.wh))
+            return INFINITY;
+        w->h = 1.0 / x;
+        if (isfinite(w->compute_delay_samples))
+            w->compute_delay = w->compute_delay_samples * w->h;
+        break;
+    case PS_TARGET_COMPUTE_DELAY: w->compute_delay = x; break;
     case PS_TARGET_ROLLOFF:
     case PS_TARGET_BAND:
     case PS_TARGET_EFFORT:
@@ -305,6 +317,8 @@ static void failing_words(const probe *pr, double x, char *buf, size_t n)
     char at[64];
     switch (pr->kind) {
     case PS_TARGET_DELAY: snprintf(at, sizeof at, "even with no delay"); break;
+    case PS_TARGET_COMPUTE_DELAY: snprintf(at, sizeof at, "even with no computation delay"); break;
+    case PS_TARGET_SAMPLE_RATE: snprintf(at, sizeof at, "even at %.4g Hz", x); break;
     case PS_TARGET_BAND: snprintf(at, sizeof at, "even with a band edge of only %.3g rad/s", x); break;
     case PS_TARGET_POLE:
     case PS_TARGET_ZERO: snprintf(at, sizeof at, "even at %.3g times its present size", x); break;
@@ -384,6 +398,25 @@ static void search(probe *pr, ps_target *t, double x0, double lo, double hi, boo
     t->state = PS_TARGET_FOUND;
 }
 
+/* The sample-rate search takes the verdict as monotone in the rate. The
+ * hold can break that (at a rate where two poles e^{p h} meet, the held
+ * plant loses a mode; sampling zeros move with h): rates from the limit
+ * up to hi on a log grid are checked, and the first that fails again
+ * turns the target into PS_TARGET_NOT_MONOTONE instead of a boundary. */
+enum { MONOTONE_CHECKS = 48 };
+static void check_monotone(probe *pr, ps_target *t, double hi)
+{
+    double lo = t->limit, span = log(hi / lo);
+    for (int i = 1; i <= MONOTONE_CHECKS; i++) {
+        double x = lo * exp(span * i / MONOTONE_CHECKS);
+        if (probe_margin(pr, x) > 0) {
+            t->state = PS_TARGET_NOT_MONOTONE;
+            snprintf(t->why, sizeof t->why, "passes at %.4g Hz but fails again at %.4g Hz", lo, x);
+            return;
+        }
+    }
+}
+
 /* Reference frequency of the plant: sets the searched ranges. */
 static double plant_scale(const ps_analysis *an, const ps_requirements *q)
 {
@@ -392,6 +425,8 @@ static double plant_scale(const ps_analysis *an, const ps_requirements *q)
     s = fmax(s, q->wb);
     if (an->delay > 0)
         s = fmax(s, 1.0 / an->delay);
+    if (an->h > 0 && !(s > 0))
+        s = 0.1 * M_PI / an->h;
     return s > 0 ? s : 1.0;
 }
 
@@ -410,6 +445,13 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
         memset(t, 0, sizeof *t);
         t->limit = NAN;
         pr.kind = (ps_target_kind)k;
+        if (an->in_z && (k == PS_TARGET_POLE || k == PS_TARGET_ZERO || k == PS_TARGET_DELAY)) {
+            t->now = NAN;
+            snprintf(t->why, sizeof t->why, "the plant is given in z: %s",
+                     k == PS_TARGET_DELAY ? "its delay is part of the model (see the computation-delay target)"
+                                          : "pole and zero targets are stated for plants in s");
+            continue;
+        }
         switch ((ps_target_kind)k) {
         case PS_TARGET_POLE: {
             double p = dominant_pole(an);
@@ -490,6 +532,36 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
                 t->state = PS_TARGET_FOUND;
                 t->limit = e;
             }
+            break;
+        }
+        case PS_TARGET_SAMPLE_RATE: {
+            t->now = an->h > 0 ? 1.0 / an->h : NAN;
+            if (!(an->h > 0)) {
+                snprintf(t->why, sizeof t->why, "a continuous loop: no sample_rate given");
+                break;
+            }
+            if (an->in_z) {
+                snprintf(t->why, sizeof t->why, "the plant is given in z: it holds only at its own sample rate");
+                break;
+            }
+            /* Rates at which the Nyquist frequency clears the band edge and
+             * the roll-off start, up to four decades past the plant's scale. */
+            double lo = fmax(fmax(q->wb, q->wh) / M_PI * (1 + 1e-9), scale * 1e-4);
+            double hi = fmax(scale * 1e4, t->now * 1e2);
+            search(&pr, t, t->now, fmin(lo, t->now), hi, false);
+            if (t->state == PS_TARGET_FOUND)
+                check_monotone(&pr, t, hi);
+            break;
+        }
+        case PS_TARGET_COMPUTE_DELAY: {
+            t->now = an->h > 0 ? an->compute_delay : NAN;
+            if (!(an->h > 0)) {
+                snprintf(t->why, sizeof t->why, "a continuous loop: no sample_rate given");
+                break;
+            }
+            search(&pr, t, an->compute_delay, 0.0, fmax(1e3 * an->h, 1e3 / scale), true);
+            if (an->in_z && t->state == PS_TARGET_FOUND) /* a plant in z takes whole samples only */
+                t->limit = floor(t->limit / an->h * (1 + 1e-9)) * an->h;
             break;
         }
         case PS_TARGET_COUNT: break;
@@ -743,12 +815,15 @@ typedef struct span {
 #define LIST(f, n) {offsetof(ps_summary, f), sizeof SUMMARY_FIELD(f), offsetof(ps_summary, n), sizeof SUMMARY_FIELD(f)[0]}
 
 static const span spans[] = {
-    TEXT(id),           TEXT(cause),          TEXT(fl.note),        TEXT(target[0].why),  TEXT(target[1].why),
-    TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  TEXT(target[5].why),
+    TEXT(id),           TEXT(cause),
+    LIST(fl.zpoles, fl.n_zpoles), LIST(fl.zzeros, fl.n_zzeros), LIST(fl.zzero_sampling, fl.n_zzeros),
+    TEXT(fl.note),        TEXT(target[0].why),  TEXT(target[1].why),
+    TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  TEXT(target[5].why), TEXT(target[6].why),
+    TEXT(target[7].why),
     LIST(curve_wb, n_curve), LIST(curve_ms, n_curve),
     LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(growth, n_growth), TEXT(err_field), TEXT(err_text),
 };
-_Static_assert(PS_TARGET_COUNT == 6, "one text span per target");
+_Static_assert(PS_TARGET_COUNT == 8, "one text span per target");
 
 /* Bytes of span sp in use: a text at field (room bytes readable) up to and
  * with its NUL, a list up to the count that summary holds. */

@@ -41,18 +41,22 @@ typedef enum ps_target_kind {
     PS_TARGET_ROLLOFF,  /* smallest roll-off start w_h (available bandwidth) that passes */
     PS_TARGET_BAND,     /* widest band edge w_b with which every floor passes */
     PS_TARGET_EFFORT,   /* smallest allowed peak |C S| that passes (the effort floor), when effort is counted */
+    PS_TARGET_SAMPLE_RATE,   /* lowest sample rate (Hz) at which the plant passes (digital loops) */
+    PS_TARGET_COMPUTE_DELAY, /* largest computation delay (s) that passes (digital loops) */
     PS_TARGET_COUNT
 } ps_target_kind;
 
 /* Stable key of a target ("unstable_pole", "rhp_zero", "delay", "rolloff_start", "band_edge",
- * "effort_allowed"). */
+ * "effort_allowed", "sample_rate", "compute_delay"). */
 const char *ps_target_key(ps_target_kind k);
 
 typedef enum ps_target_state {
     PS_TARGET_NA = 0,    /* does not apply (e.g. no RHP zero); why says so */
     PS_TARGET_FOUND,     /* limit holds the boundary value */
     PS_TARGET_NONE,      /* no value in the searched range passes */
-    PS_TARGET_UNBOUNDED  /* every value in the searched range passes */
+    PS_TARGET_UNBOUNDED, /* every value in the searched range passes */
+    PS_TARGET_NOT_MONOTONE /* passes at limit but fails again at a value beyond it (why says where):
+                              no single boundary is claimed */
 } ps_target_state;
 
 const char *ps_target_state_name(ps_target_state s);
@@ -95,6 +99,9 @@ typedef struct ps_summary {
     ps_cplx growth[PS_MAP_MAX];
     double delay, gain;
     int rel_degree;
+    /* the digital loop (h 0 for a continuous loop); the roots in z are in fl */
+    double h, compute_delay;
+    bool in_z;
     bool hidden_unstable;
     /* input errors */
     size_t err_line, err_col;
