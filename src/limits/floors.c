@@ -6,6 +6,11 @@
 #include <string.h>
 
 #include "core/complex_make.h"
+#include "limits/sampled.h"
+
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
 
 enum { NP = PS_MAX_ORDER };
 
@@ -290,8 +295,14 @@ static void note_fallback(ps_floors *out, const char *what, const char *why, int
 _Static_assert(sizeof LONGEST_PLANT_NOTE_WITHOUT_ROOM - 1 + 2 + sizeof ROLLOFF_NOTE <= sizeof((ps_floors *)0)->note,
                "the roll-off sentence fits after every plant note written without room");
 
+static void sampled_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out);
+
 void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
 {
+    if (an->h > 0) {
+        sampled_plant(ws, an, out);
+        return;
+    }
     ps_cplx p[NP], z[NP], w[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
     double theta = an->delay;
@@ -481,6 +492,14 @@ static void overall(const ps_analysis *an, bool rolloff, ps_floors *out)
         s_ln = out->ms_band_ln;
         s_src = "band";
     }
+    /* The bare Nyquist floor equals the interpolation floor at z = infinity
+     * in exact arithmetic (one unstable pole, relative degree 1): a tie,
+     * to rounding, is left to the interpolation floor. */
+    if (above(out->ms_nyquist * (1 - 1e-12), out->ms_nyquist_ln - 1e-12, s_only, s_ln)) {
+        s_only = out->ms_nyquist;
+        s_ln = out->ms_nyquist_ln;
+        s_src = "nyquist";
+    }
     if (above(out->ms_poisson, out->ms_poisson_ln, s_only, s_ln)) {
         s_only = out->ms_poisson;
         s_ln = out->ms_poisson_ln;
@@ -518,8 +537,15 @@ static void overall(const ps_analysis *an, bool rolloff, ps_floors *out)
                  out->note_plant ? "; " : "");
 }
 
+static void sampled_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
+
 void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
 {
+    if (an->h > 0) {
+        sampled_apply(ws, an, req, out);
+        return;
+    }
+    out->ms_nyquist = out->ms_nyquist_ln = NAN;
     ps_cplx p[NP], z[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
     double theta = an->delay;
@@ -554,6 +580,10 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
 
 void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
 {
+    if (an->h > 0) { /* the whole requirement half: the same result, and cheap beside the hold */
+        sampled_apply(ws, an, req, out);
+        return;
+    }
     ps_cplx p[NP], z[NP];
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
     band_floors(ws, z, nz, p, np, req, out);
@@ -564,4 +594,165 @@ void ps_floors_compute(ps_limits_ws *ws, const ps_analysis *an, const ps_require
 {
     ps_floors_plant(ws, an, out);
     ps_floors_apply(ws, an, req, out);
+}
+
+/* ---- the digital loop (README "Digital loops") ---- */
+
+/* The floors when the plant of a digital loop could not be formed: every
+ * value NAN, the reason in the note. */
+static void sampled_unknown(const ps_analysis *an, const char *why, ps_floors *out)
+{
+    memset(out, 0, sizeof *out);
+    out->h = an->h;
+    out->nyquist = M_PI / an->h;
+    out->ms = out->mt = out->ms_interpolation = out->mt_interpolation = out->effort = NAN;
+    out->ms_ln = out->mt_ln = out->ms_interpolation_ln = out->mt_interpolation_ln = out->effort_ln = NAN;
+    out->ms_band = out->ms_band_ln = out->ms_poisson = out->ms_poisson_ln = NAN;
+    out->mt_poisson = out->mt_poisson_ln = out->ms_nyquist = out->ms_nyquist_ln = NAN;
+    out->bode_area = out->crossover_min = out->crossover_max = NAN;
+    out->limiting = "none";
+    snprintf(out->note, sizeof out->note, "held plant not formed: %.120s", why);
+    out->note_plant = strlen(out->note);
+}
+
+static const ps_sampled_view *view(ps_limits_ws *ws, const ps_analysis *an, ps_diag *d)
+{
+    ps_sampled_ws *sws = ps_limits_sampled(ws);
+    if (!sws) {
+        ps_diag_set(d, PS_ERR_NOMEM, 0, 0, "", "no memory for the held plant");
+        return NULL;
+    }
+    return ps_sampled_view_of(sws, an, d);
+}
+
+/* The plant half of a digital loop: the floors of the plant in w (a
+ * continuous plant without delay), with the Bode area of the discrete
+ * integral and the roots in z for the reports. */
+static void sampled_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
+{
+    ps_diag d = {0};
+    const ps_sampled_view *v = view(ws, an, &d);
+    if (!v) {
+        sampled_unknown(an, d.text, out);
+        return;
+    }
+    ps_floors_plant(ws, &v->w, out);
+    out->h = v->h;
+    out->nyquist = M_PI / v->h;
+    /* (1/pi) int_0^pi ln|S(e^{jW})| dW = sum ln|p_d| - ln|1 + L(inf)| (Sung &
+     * Hara, Int. J. Control 48(6), 1988): over [0, pi/h] rad/s the area is
+     * (pi/h) sum ln|p_d|, pi sum Re p for a held plant; it holds for every
+     * proper controller when P(inf) = 0, for strictly proper ones otherwise. */
+    out->bode_area = M_PI * v->sum_ln_out / v->h;
+    out->bode_controller_rd = v->feedthrough ? 1 : 0;
+    out->z_rel_degree = v->z_rel_degree;
+    out->n_zpoles = v->n_zp;
+    out->n_zzeros = v->n_zz;
+    for (size_t i = 0; i < v->n_zp && i < PS_ZMAP; i++)
+        out->zpoles[i] = v->zp[i];
+    for (size_t j = 0; j < v->n_zz && j < PS_ZMAP; j++) {
+        out->zzeros[j] = v->zz[j];
+        out->zzero_sampling[j] = v->zz_sampling[j];
+    }
+    out->n_sampling_zeros = v->n_sampling;
+    out->n_zzeros_outside = v->n_zz_outside;
+}
+
+/* int_{wh}^{W} -ln(1 - delta (wh/w)^(1+k)) dw, the roll-off bound's share of
+ * the band up to the Nyquist frequency W: the series of ps_rolloff_tail with
+ * each term cut at W, wh sum delta^n / (n (m - 1)) [1 - (wh/W)^(m - 1)], m = n (1 + k). */
+static double rolloff_part(double wh, double W, double delta, double k)
+{
+    if (delta <= 0 || !(W > wh))
+        return 0.0;
+    double sum = 0, dn = 1, q = wh / W;
+    for (int n = 1; n < 100000; n++) {
+        dn *= delta;
+        double m = n * (1 + k), term = dn / (n * (m - 1)) * (1 - pow(q, m - 1));
+        sum += term;
+        if (term < 1e-17 * sum)
+            break;
+    }
+    return wh * sum;
+}
+
+/* Continuous-time equivalent of a root in z, ln(z)/h (principal branch), for the rules of thumb. */
+static double complex s_equivalent(ps_cplx z, double h) { return clog(cx(z)) / h; }
+
+static void sampled_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out)
+{
+    ps_diag d = {0};
+    const ps_sampled_view *v = view(ws, an, &d);
+    if (!v) {
+        sampled_unknown(an, d.text, out);
+        return;
+    }
+    const ps_analysis *wa = &v->w;
+    ps_cplx p[NP], z[NP];
+    size_t np = rhp(wa->poles, wa->n_poles, p), nz = rhp(wa->zeros, wa->n_zeros, z);
+    double h = v->h, W = M_PI / h;
+    bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
+    double wb = band ? req->wb : 0.0, eps = band ? req->eps : 1.0;
+    out->ms_band = out->ms_band_ln = out->ms_poisson = out->ms_poisson_ln = NAN;
+    out->mt_poisson = out->mt_poisson_ln = out->ms_nyquist = out->ms_nyquist_ln = NAN;
+    double lead = out->bode_area + (band ? wb * log(1.0 / eps) : 0.0);
+    if (!v->feedthrough) {
+        /* |S| <= eps on [0, wb] leaves the area pi sum Re p + wb ln(1/eps) to
+         * [wb, pi/h]: ln sup |S| there >= that / (pi/h - wb). With a roll-off
+         * start, [wh, pi/h] can hold at most the roll-off bound's part of it. */
+        out->ms_nyquist_ln = wb < W ? lead / (W - wb) : INFINITY;
+        out->ms_nyquist = exp(out->ms_nyquist_ln);
+        if (rolloff && req->wh > wb) {
+            out->ms_band_ln = (lead - rolloff_part(req->wh, W, req->delta, req->k)) / (req->wh - wb);
+            out->ms_band = exp(out->ms_band_ln);
+        }
+    }
+    if (band) { /* Poisson in w: the band [0, wb] rad/s is [0, tan(wb h / 2)] on the w axis */
+        out->ms_poisson_ln = out->infinite ? INFINITY
+                             : wb < W     ? ps_poisson_s_floor_ln(z, nz, p, np, eps, tan(0.5 * wb * h))
+                                          : INFINITY;
+        out->ms_poisson = exp(out->ms_poisson_ln);
+    }
+    if (rolloff && req->delta > 0 && req->wh < W) {
+        out->mt_poisson_ln = out->infinite ? INFINITY
+                                           : ps_poisson_t_floor_ln(z, nz, p, np, 0.0, req->delta / (1 - req->delta),
+                                                                   tan(0.5 * req->wh * h));
+        out->mt_poisson = exp(out->mt_poisson_ln);
+    }
+    overall(an, rolloff, out);
+
+    /* Crossover window, rules of thumb: those of the continuous plant (S&P
+     * 2nd ed. ch. 5) with the hold counted as half a sample of delay, and a
+     * sample rate at least ten times the crossover frequency (common
+     * practice: 10 to 30 times). A plant in z is read through ln(z)/h. */
+    out->crossover_min = 0.0;
+    out->crossover_max = 2 * M_PI / h / 10;
+    double theta_eq = v->theta + 0.5 * h;
+    if (an->in_z) {
+        for (size_t i = 0; i < v->n_zp; i++)
+            if (cabs(cx(v->zp[i])) > 1.0 + PS_CIRCLE_RTOL) {
+                double complex q = s_equivalent(v->zp[i], h);
+                out->crossover_min = fmax(out->crossover_min, cimag(q) == 0 ? 2 * creal(q) : cabs(q));
+            }
+        for (size_t j = 0; j < v->n_zz; j++)
+            if (v->zz_region[j] == PS_RHP) {
+                double complex q = s_equivalent(v->zz[j], h);
+                out->crossover_max = fmin(out->crossover_max, cimag(q) == 0 ? creal(q) / 2 : cabs(q));
+            }
+    } else {
+        for (size_t i = 0; i < an->n_poles; i++)
+            if (an->poles[i].region == PS_RHP) {
+                ps_cplx q = an->poles[i].v;
+                out->crossover_min = fmax(out->crossover_min, q.im == 0 ? 2 * q.re : cabs(cx(q)));
+            }
+        for (size_t j = 0; j < an->n_zeros; j++)
+            if (an->zeros[j].region == PS_RHP) {
+                ps_cplx q = an->zeros[j].v;
+                out->crossover_max = fmin(out->crossover_max, q.im == 0 ? q.re / 2 : cabs(cx(q)));
+            }
+    }
+    out->crossover_max = fmin(out->crossover_max, 1 / theta_eq);
+    if (rolloff)
+        out->crossover_max = fmin(out->crossover_max, req->wh);
+    out->window_open = out->crossover_min < out->crossover_max;
 }

@@ -2,6 +2,7 @@
  * Complex linear algebra uses GSL (Cholesky, triangular solves, Hermitian
  * eigenvalues) on views of workspace buffers: no allocation per plant. */
 #include "limits/limits.h"
+#include "limits/sampled.h"
 
 #include <float.h>
 #include <gsl/gsl_blas.h>
@@ -26,7 +27,16 @@ struct ps_limits_ws {
     double log_eps_at, log_inv_eps;      /* last band attenuation and ln(1/eps) */
     bool tail_valid;
     bool skip_effort; /* probes that do not count effort skip its Pick problem */
+    ps_sampled_ws *sampled; /* made on the first plant of a digital loop */
+    bool sampled_failed;    /* ... and could not be */
 };
+
+ps_sampled_ws *ps_limits_sampled(ps_limits_ws *ws)
+{
+    if (!ws->sampled && !ws->sampled_failed)
+        ws->sampled_failed = !(ws->sampled = ps_sampled_ws_new());
+    return ws->sampled;
+}
 
 void ps_limits_skip_effort(ps_limits_ws *ws, bool skip) { ws->skip_effort = skip; }
 bool ps_limits_effort_skipped(const ps_limits_ws *ws) { return ws->skip_effort; }
@@ -53,6 +63,7 @@ void ps_limits_ws_free(ps_limits_ws *ws)
     for (size_t i = 0; i <= NP; i++)
         if (ws->herm[i])
             gsl_eigen_herm_free(ws->herm[i]);
+    ps_sampled_ws_free(ws->sampled);
     free(ws);
 }
 
