@@ -154,6 +154,11 @@ static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
         return 0;
     }
     ps_floors_compute(b->lws, &b->an, &p->req, &b->fl);
+    if (ps_floors_formed(&b->an, &b->fl, p->field_line[PS_F_SAMPLE_RATE] ? p->field_line[PS_F_SAMPLE_RATE] : p->line,
+                         &d) != PS_OK) {
+        deliver_error(b, p, &d);
+        return 0;
+    }
     b->counts.models++;
     ps_outcome o = {b->file, p, &b->an, &b->fl, NULL};
     b->fn(b->ctx, &o);

@@ -615,6 +615,13 @@ static void sampled_unknown(const ps_analysis *an, const char *why, ps_floors *o
     out->note_plant = strlen(out->note);
 }
 
+ps_status ps_floors_formed(const ps_analysis *an, const ps_floors *fl, size_t line, ps_diag *d)
+{
+    if (!(an->h > 0) || !isnan(fl->ms))
+        return PS_OK;
+    return ps_diag_set(d, PS_ERR_INPUT, line, 0, "sample_rate", "%s", fl->note);
+}
+
 static const ps_sampled_view *view(ps_limits_ws *ws, const ps_analysis *an, ps_diag *d)
 {
     ps_sampled_ws *sws = ps_limits_sampled(ws);

@@ -108,4 +108,11 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
  * Equal, bit for bit, to ps_floors_apply under those conditions. */
 void ps_floors_apply_band(ps_limits_ws *ws, const ps_analysis *an, const ps_requirements *req, ps_floors *out);
 
+/* A digital loop whose held plant could not be formed (the hold's order
+ * above PS_MAX_ORDER with the delay states, e^{A h} not finite) has every
+ * floor NAN and the reason in fl->note: the plant cannot be screened.
+ * Returns PS_OK otherwise (and for a continuous loop), else PS_ERR_INPUT
+ * with d naming line and the sample_rate field. */
+ps_status ps_floors_formed(const ps_analysis *an, const ps_floors *fl, size_t line, ps_diag *d);
+
 #endif

@@ -185,6 +185,15 @@ static ps_status view_held(ps_sampled_ws *ws, const ps_analysis *an, ps_diag *d)
         v->n_zz_outside += v->zz_region[j] == PS_RHP;
     }
     mark_sampling(v, an);
+    if (an->relax_sampling_zeros) /* |z - a| = |a| |z - 1/conj(a)| on the circle */
+        for (size_t j = 0; j < v->n_zz; j++)
+            if (v->zz_sampling[j] && v->zz_region[j] == PS_RHP) {
+                double complex a = cx(v->zz[j]);
+                v->z_gain *= cabs(a);
+                v->zz[j] = pc(1.0 / conj(a));
+                v->zz_region[j] = PS_LHP;
+                v->n_zz_outside--;
+            }
     map_to_w(v, pr, pw, an);
     return PS_OK;
 }

@@ -43,9 +43,9 @@ static const char *const head_cols[] = {
     "ms_poisson",    "mt_poisson",   "limiting",         "rhp_poles",        "rhp_zeros",
     "delay",         "hidden_unstable_mode", "crossover_min", "crossover_max", "window_open",
     "binding_floor", "first_factor", "without_delay", "without_rhp_zeros", "without_rolloff_start",
-    "without_band",
+    "without_band",  "without_compute_delay", "without_sample_rate", "without_sampling_zeros",
 };
-_Static_assert(PS_FACTOR_COUNT == 4, "one without_ column per factor");
+_Static_assert(PS_FACTOR_COUNT == 7, "one without_ column per factor");
 /* Columns after the per-target groups. */
 static const char *const tail_cols[] = {"error_line", "error_column", "error_field", "error"};
 

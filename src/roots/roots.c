@@ -554,6 +554,7 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
     out->compute_delay = p->compute_delay;
     out->compute_delay_samples = p->compute_delay_samples;
     out->in_z = p->in_z;
+    out->relax_sampling_zeros = false;
     ps_status st = PS_OK;
     switch (p->form) {
     case PS_FORM_POLY: {

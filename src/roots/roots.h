@@ -40,6 +40,8 @@ typedef struct ps_analysis {
     double h, compute_delay;
     double compute_delay_samples; /* NAN when the computation delay was given in seconds */
     bool in_z;
+    bool relax_sampling_zeros; /* a counterfactual (screen/attribution.c): the hold's zeros outside the circle
+                                  are mirrored inside; false from ps_roots_analyse */
     bool hidden_unstable; /* an RHP mode no controller can reach or see */
     bool minimal;         /* state space: every mode controllable and observable (RHP only checked) */
     size_t n_rhp_poles, n_rhp_zeros, n_axis_poles;

@@ -8,6 +8,10 @@
 
 #include "core/text.h"
 
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
 const char *ps_peak_name(ps_peak p)
 {
     switch (p) {
@@ -21,14 +25,16 @@ const char *ps_peak_name(ps_peak p)
 
 const char *ps_factor_key(ps_factor f)
 {
-    static const char *const keys[PS_FACTOR_COUNT] = {"delay", "rhp_zeros", "rolloff_start", "band"};
+    static const char *const keys[PS_FACTOR_COUNT] = {"delay",         "rhp_zeros",   "rolloff_start", "band",
+                                                      "compute_delay", "sample_rate", "sampling_zeros"};
     return (unsigned)f < PS_FACTOR_COUNT ? keys[f] : "?";
 }
 
 const char *ps_factor_relaxed_words(ps_factor f)
 {
-    static const char *const words[PS_FACTOR_COUNT] = {"without the delay", "without the RHP zeros",
-                                                       "with unlimited bandwidth", "without the band requirement"};
+    static const char *const words[PS_FACTOR_COUNT] = {
+        "without the delay", "without the RHP zeros", "with unlimited bandwidth", "without the band requirement",
+        "without the computation delay", "at 4 times the sample rate", "without the sampling zeros outside the circle"};
     return (unsigned)f < PS_FACTOR_COUNT ? words[f] : "?";
 }
 
@@ -88,6 +94,15 @@ static double allowed_of(const ps_requirements *q, ps_peak b)
     return NAN;
 }
 
+/* Sampling zeros outside the unit circle, among the roots fl keeps. */
+static size_t sampling_outside(const ps_floors *fl)
+{
+    size_t k = 0;
+    for (size_t j = 0; j < fl->n_zzeros && j < PS_ZMAP; j++)
+        k += fl->zzero_sampling[j] && hypot(fl->zzeros[j].re, fl->zzeros[j].im) > 1.0;
+    return k;
+}
+
 /* Relax the factors in mask on copies of the plant and requirements. */
 static void relax(unsigned mask, ps_analysis *w, ps_requirements *q)
 {
@@ -106,6 +121,15 @@ static void relax(unsigned mask, ps_analysis *w, ps_requirements *q)
         q->wh = 0.0;
     if (mask & 1u << PS_FACTOR_BAND)
         q->wb = 0.0;
+    if (mask & 1u << PS_FACTOR_COMPUTE)
+        w->compute_delay = 0.0;
+    if (mask & 1u << PS_FACTOR_RATE) {
+        w->h /= PS_ATTR_RATE_UP;
+        if (isfinite(w->compute_delay_samples) && !(mask & 1u << PS_FACTOR_COMPUTE))
+            w->compute_delay = w->compute_delay_samples * w->h;
+    }
+    if (mask & 1u << PS_FACTOR_SAMPLING_ZEROS)
+        w->relax_sampling_zeros = true;
 }
 
 /* The binding floor with the factors in mask relaxed; OUT: *ln its logarithm. */
@@ -134,6 +158,9 @@ void ps_attribution_compute(ps_limits_ws *lws, ps_analysis *scratch, const ps_an
     out->present[PS_FACTOR_ZEROS] = an->n_rhp_zeros > 0;
     out->present[PS_FACTOR_ROLLOFF] = q->wh > 0;
     out->present[PS_FACTOR_BAND] = q->wb > 0;
+    out->present[PS_FACTOR_COMPUTE] = an->h > 0 && an->compute_delay > 0;
+    out->present[PS_FACTOR_RATE] = an->h > 0 && !an->in_z;
+    out->present[PS_FACTOR_SAMPLING_ZEROS] = an->h > 0 && !an->in_z && sampling_outside(fl) > 0;
     for (int f = 0; f < PS_FACTOR_COUNT; f++)
         out->without[f] = out->without_ln[f] = NAN;
     /* An infinite floor (an exact cancellation) has nothing to take apart;
@@ -180,6 +207,15 @@ static void put_time(ps_text *t, double s)
         ps_text_put(t, "%.3g ms", s * 1e3);
     else
         ps_text_put(t, "%.3g s", s);
+}
+
+/* A rate in Hz or kHz. */
+static void put_rate(ps_text *t, double hz)
+{
+    if (hz >= 1e3)
+        ps_text_put(t, "%.3g kHz", hz * 1e-3);
+    else
+        ps_text_put(t, "%.3g Hz", hz);
 }
 
 /* The RHP pole of largest magnitude (first of a pair: im >= 0). */
@@ -279,6 +315,17 @@ static bool put_factor(ps_text *t, ps_factor f, const ps_analysis *an, const ps_
     }
     case PS_FACTOR_ROLLOFF: ps_text_put(t, "available bandwidth %.3g rad/s", q->wh); return false;
     case PS_FACTOR_BAND: ps_text_put(t, "required band |S| <= %.3g up to %.3g rad/s", q->eps, q->wb); return false;
+    case PS_FACTOR_COMPUTE:
+        ps_text_put(t, "computation delay ");
+        put_time(t, an->compute_delay);
+        ps_text_put(t, " (%.3g sample%s)", an->compute_delay / an->h, an->compute_delay == an->h ? "" : "s");
+        return false;
+    case PS_FACTOR_RATE:
+        ps_text_put(t, "sample rate ");
+        put_rate(t, 1.0 / an->h);
+        ps_text_put(t, " (the hold's delay and the Nyquist frequency %.3g rad/s)", M_PI / an->h);
+        return false;
+    case PS_FACTOR_SAMPLING_ZEROS: ps_text_put(t, "sampling zero outside the unit circle"); return false;
     case PS_FACTOR_COUNT: break;
     }
     return false;
@@ -287,6 +334,13 @@ static bool put_factor(ps_text *t, ps_factor f, const ps_analysis *an, const ps_
 /* The relaxation in words, "zero" singular for one real zero or one pair. */
 static const char *relaxed_words(ps_factor f, const ps_analysis *an)
 {
+    if (f == PS_FACTOR_RATE) { /* "at 4 kHz" */
+        static _Thread_local char at[48];
+        ps_text r = ps_text_on(at, sizeof at);
+        ps_text_put(&r, "at ");
+        put_rate(&r, PS_ATTR_RATE_UP / an->h);
+        return at;
+    }
     if (f == PS_FACTOR_ZEROS && an->n_rhp_zeros <= 2) {
         const ps_root *z, *p;
         nearest_zero(an, &z, &p);

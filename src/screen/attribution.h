@@ -24,10 +24,17 @@ typedef enum ps_factor {
     PS_FACTOR_ZEROS,     /* every RHP zero mirrored into the left half plane (same gain curve) */
     PS_FACTOR_ROLLOFF,   /* roll-off start -> unlimited (no roll-off requirement) */
     PS_FACTOR_BAND,      /* band requirement removed */
+    /* the digital loop */
+    PS_FACTOR_COMPUTE,   /* computation delay -> 0 */
+    PS_FACTOR_RATE,      /* sample rate x PS_ATTR_RATE_UP (the hold's delay and the Nyquist limit shrink; a
+                            computation delay given in samples shrinks with them) */
+    PS_FACTOR_SAMPLING_ZEROS, /* the zeros the hold made outside the unit circle mirrored inside (same |P|
+                                 on the circle) */
     PS_FACTOR_COUNT
 } ps_factor;
 
-/* Stable keys ("delay", "rhp_zeros", "rolloff_start", "band") used in JSON and CSV. */
+/* Stable keys ("delay", "rhp_zeros", "rolloff_start", "band", "compute_delay", "sample_rate",
+ * "sampling_zeros") used in JSON and CSV. */
 const char *ps_factor_key(ps_factor f);
 /* The relaxation in words ("without the delay", "with unlimited bandwidth", ...). */
 const char *ps_factor_relaxed_words(ps_factor f);
@@ -35,6 +42,9 @@ const char *ps_factor_relaxed_words(ps_factor f);
 /* A relaxation counts as lowering the floor when it takes it below
  * floor * (1 - PS_ATTR_RTOL): finer changes are rounding. */
 #define PS_ATTR_RTOL 1e-6
+
+/* The sample-rate factor's counterfactual: the rate this many times higher. */
+#define PS_ATTR_RATE_UP 4.0
 
 typedef struct ps_attribution {
     ps_peak binding;                 /* PS_PEAK_NONE: no floor uses any of its allowed peak */

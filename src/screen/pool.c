@@ -77,8 +77,12 @@ static void run_job(ps_pool *p, lane *ln, job *jb)
         memset(&jb->err, 0, sizeof jb->err);
         if (ps_roots_analyse(ln->rws, &jb->p, &ln->an, &jb->err) == PS_OK) {
             ps_floors_compute(ln->lws, &ln->an, &jb->p.req, &ln->fl);
-            o.an = &ln->an;
-            o.fl = &ln->fl;
+            size_t at = jb->p.field_line[PS_F_SAMPLE_RATE] ? jb->p.field_line[PS_F_SAMPLE_RATE] : jb->p.line;
+            if (ps_floors_formed(&ln->an, &ln->fl, at, &jb->err) == PS_OK) {
+                o.an = &ln->an;
+                o.fl = &ln->fl;
+            } else
+                jb->has_err = jb->analysis_err = true;
         } else
             jb->has_err = jb->analysis_err = true;
     }
