@@ -2,6 +2,7 @@
  * the ranked run (see screen.h; definitions in README "Verdicts"). */
 #include "screen/screen.h"
 
+#include <complex.h>
 #include <float.h>
 #include <math.h>
 #include <stddef.h>
@@ -12,6 +13,7 @@
 #include <sys/types.h>
 #include <unistd.h>
 
+#include "core/complex_make.h"
 #include "core/text.h"
 #include "limits/limits.h"
 
@@ -198,7 +200,7 @@ static double probe_margin(probe *pr, double x)
     ps_requirements q = pr->req;
     ps_floors *fl = &pr->ws->fl;
     if (pr->kind == PS_TARGET_ROLLOFF) { /* a requirement moves: the plant half is kept */
-        if (!(x > q.wb))
+        if (!(x > q.wb) || (pr->base->h > 0 && !(x < M_PI / pr->base->h)))
             return INFINITY;
         q.wh = x;
         *fl = pr->plant_fl;
@@ -417,10 +419,31 @@ static void check_monotone(probe *pr, ps_target *t, double hi)
     }
 }
 
+/* The longest delay a digital loop's plant can be held with: the samples
+ * of delay are states, at most PS_MAX_ORDER in all (INFINITY for a
+ * continuous loop). The delay searches end there, so that no probe fails
+ * for want of room instead of by its floors. */
+static double held_delay_room(const ps_analysis *an)
+{
+    if (!(an->h > 0))
+        return INFINITY;
+    double states = (double)PS_MAX_ORDER - (double)an->n_poles - 1.0;
+    return states > 0 ? states * an->h : 0.0;
+}
+
 /* Reference frequency of the plant: sets the searched ranges. */
 static double plant_scale(const ps_analysis *an, const ps_requirements *q)
 {
-    double s = fmax(dominant_pole(an), isfinite(smallest_zero(an)) ? smallest_zero(an) : 0.0);
+    double s = 0.0;
+    if (an->in_z) { /* roots in z: their continuous-time sizes |ln z| / h */
+        for (size_t i = 0; i < an->n_poles; i++)
+            if (an->poles[i].region == PS_RHP)
+                s = fmax(s, cabs(clog(ps_complex_make(an->poles[i].v.re, an->poles[i].v.im))) / an->h);
+        for (size_t j = 0; j < an->n_zeros; j++)
+            if (an->zeros[j].region == PS_RHP)
+                s = fmax(s, cabs(clog(ps_complex_make(an->zeros[j].v.re, an->zeros[j].v.im))) / an->h);
+    } else
+        s = fmax(dominant_pole(an), isfinite(smallest_zero(an)) ? smallest_zero(an) : 0.0);
     s = fmax(s, q->wh);
     s = fmax(s, q->wb);
     if (an->delay > 0)
@@ -491,7 +514,8 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
                 }
                 break;
             }
-            search(&pr, t, an->delay, 0.0, 1e3 / dominant_pole(an), true);
+            search(&pr, t, an->delay, 0.0, fmin(1e3 / dominant_pole(an), held_delay_room(an) - an->compute_delay),
+                   true);
             break;
         case PS_TARGET_ROLLOFF:
             t->now = q->wh;
@@ -499,7 +523,8 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
                 snprintf(t->why, sizeof t->why, "no rolloff_start given");
                 break;
             }
-            search(&pr, t, q->wh, q->wb > 0 ? q->wb * (1 + 1e-9) : scale * 1e-6, scale * 1e6, false);
+            search(&pr, t, q->wh, q->wb > 0 ? q->wb * (1 + 1e-9) : scale * 1e-6,
+                   an->h > 0 ? M_PI / an->h * (1 - 1e-9) : scale * 1e6, false);
             break;
         case PS_TARGET_BAND: {
             t->now = q->wb > 0 ? q->wb : NAN;
@@ -507,7 +532,7 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
              * and starts six decades below the plant's scale or below w_h,
              * whichever is lower (a plant far faster than w_h would
              * otherwise get a range that starts above its end). */
-            double hi = q->wh > 0 ? q->wh * (1 - 1e-9) : scale * 1e6;
+            double hi = q->wh > 0 ? q->wh * (1 - 1e-9) : an->h > 0 ? M_PI / an->h * (1 - 1e-9) : scale * 1e6;
             double lo = fmin(scale, hi) * 1e-6;
             search(&pr, t, q->wb > 0 ? q->wb : lo, lo, hi, true);
             if (!(q->wb > 0))
@@ -559,7 +584,8 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
                 snprintf(t->why, sizeof t->why, "a continuous loop: no sample_rate given");
                 break;
             }
-            search(&pr, t, an->compute_delay, 0.0, fmax(1e3 * an->h, 1e3 / scale), true);
+            search(&pr, t, an->compute_delay, 0.0, fmin(fmax(1e3 * an->h, 1e3 / scale), held_delay_room(an) - an->delay),
+                   true);
             if (an->in_z && t->state == PS_TARGET_FOUND) /* a plant in z takes whole samples only */
                 t->limit = floor(t->limit / an->h * (1 + 1e-9)) * an->h;
             break;
@@ -574,7 +600,8 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
 static void band_curve(ps_screen_ws *ws, const ps_analysis *an, const ps_requirements *q, ps_summary *s)
 {
     double scale = plant_scale(an, q);
-    double hi = q->wh > 0 ? q->wh * 0.999 : scale * 1e2, lo = fmin(scale, hi) * 1e-3;
+    double hi = q->wh > 0 ? q->wh * 0.999 : an->h > 0 ? M_PI / an->h * 0.999 : scale * 1e2;
+    double lo = fmin(scale, hi) * 1e-3;
     ps_requirements r = *q;
     r.eps = s->band_eps;
     s->n_curve = PS_CURVE_N;
@@ -652,7 +679,7 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
      * bandwidth-free floor already fails it: with unlimited bandwidth the
      * Bode area costs no peak and the passing floors may all be 1. */
     bool passes = s->verdict == PS_VERDICT_CLEAR || s->verdict == PS_VERDICT_MARGINAL;
-    if (passes && an->n_rhp_poles > 0 && !(q->wh > 0)) {
+    if (passes && an->n_rhp_poles > 0 && !(q->wh > 0) && !(an->h > 0)) { /* a digital loop has the Nyquist limit */
         s->verdict = PS_VERDICT_NEEDS_BANDWIDTH;
         text_needs_bandwidth(an, o->fl, s->cause, sizeof s->cause);
     }
@@ -666,6 +693,9 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     s->delay = an->delay;
     s->gain = an->gain;
     s->rel_degree = an->rel_degree;
+    s->h = an->h;
+    s->compute_delay = an->compute_delay;
+    s->in_z = an->in_z;
     s->hidden_unstable = an->hidden_unstable;
     /* The band target and curve use the plant's attenuation, or the -3 dB
      * level that defines the sensitivity bandwidth (S&P 2nd ed. sec. 2.4.5, from memory). */
