@@ -395,7 +395,7 @@ Test(roots, z_roots_on_the_circle_are_the_axis_class)
         axis += an.poles[i].region == PS_AXIS;
     cr_assert_eq(axis, 3);
     /* just outside the tolerance: 1 + 1e-9 is outside the circle */
-    factored(&p, NULL, 0, (ps_cplx[]){{1.0 + 1e-9, 0}, {-0.3, 0}}, 2);
+    factored(&p, (ps_cplx[]){{0, 0}}, 0, (ps_cplx[]){{1.0 + 1e-9, 0}, {-0.3, 0}}, 2);
     make_z(&p, 0.002);
     cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
     cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
