@@ -301,9 +301,8 @@ static void data_field(csv_reader *r, char *s, size_t len, size_t col, size_t li
     case PS_F_A: parse_matrix(r, s, line, col); break;
     case PS_F_B: parse_real_list(r, f, s, line, col, p->b, PS_MAX_ORDER, &p->n_b); break;
     case PS_F_C: parse_real_list(r, f, s, line, col, p->c, PS_MAX_ORDER, &p->n_c); break;
-    default:
-        if (ps_plant_scalar(p, f))
-            parse_scalar(r, f, s, line, col, p);
+    default: /* single values: numbers, frequencies, ratios, the digital-loop fields */
+        parse_scalar(r, f, s, line, col, p);
         break;
     }
 }

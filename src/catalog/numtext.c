@@ -216,8 +216,135 @@ int ps_text_complex_list(const char *s, ps_cplx *out, size_t cap, size_t *bad_in
     return (int)n;
 }
 
+typedef struct unit_word {
+    const char *word;
+    ps_text_unit unit;
+    double scale;
+} unit_word;
+
+static const unit_word rate_units[] = {
+    {"Hz", PS_UNIT_HZ, 1.0}, {"kHz", PS_UNIT_HZ, 1e3}, {"MHz", PS_UNIT_HZ, 1e6},
+    {"s", PS_UNIT_SECONDS, 1.0}, {"ms", PS_UNIT_SECONDS, 1e-3}, {"us", PS_UNIT_SECONDS, 1e-6},
+};
+static const unit_word delay_units[] = {
+    {"sample", PS_UNIT_SAMPLES, 1.0}, {"samples", PS_UNIT_SAMPLES, 1.0},
+    {"s", PS_UNIT_SECONDS, 1.0}, {"ms", PS_UNIT_SECONDS, 1e-3}, {"us", PS_UNIT_SECONDS, 1e-6},
+};
+
+static const char *unit_expectation(ps_field f)
+{
+    return f == PS_F_SAMPLE_RATE
+               ? "a sample rate needs its unit: a rate in Hz, kHz or MHz, or a period in s, ms or us "
+                 "(\"1 kHz\", \"2 ms\"; a bare number could mean Hz or rad/s)"
+               : "a computation delay needs its unit: samples (\"1 sample\", \"0.5 samples\") or "
+                 "seconds in s, ms or us (\"300 us\"; a bare number could mean either)";
+}
+
+/* The unit word (whole, as listed) of field f, or NULL. */
+static const unit_word *find_unit(ps_field f, const char *w, size_t n)
+{
+    const unit_word *u = f == PS_F_SAMPLE_RATE ? rate_units : delay_units;
+    size_t count = f == PS_F_SAMPLE_RATE ? sizeof rate_units / sizeof *rate_units
+                                         : sizeof delay_units / sizeof *delay_units;
+    for (size_t i = 0; i < count; i++)
+        if (strlen(u[i].word) == n && memcmp(u[i].word, w, n) == 0)
+            return &u[i];
+    return NULL;
+}
+
+int ps_text_unit_split(ps_field f, const char *s, size_t *len, ps_text_unit *unit, double *scale,
+                       const char **why)
+{
+    if (f != PS_F_SAMPLE_RATE && f != PS_F_COMPUTE_DELAY) {
+        *why = "not a field with a unit";
+        return -1;
+    }
+    size_t end = strlen(s);
+    while (end > 0 && (s[end - 1] == ' ' || s[end - 1] == '\t'))
+        end--;
+    size_t start = end;
+    while (start > 0 && s[start - 1] != ' ' && s[start - 1] != '\t')
+        start--;
+    size_t before = start;
+    while (before > 0 && (s[before - 1] == ' ' || s[before - 1] == '\t'))
+        before--;
+    const unit_word *u = start > 0 && before > 0 ? find_unit(f, s + start, end - start) : NULL;
+    if (!u) {
+        *why = unit_expectation(f);
+        return -1;
+    }
+    *len = before;
+    *unit = u->unit;
+    *scale = u->scale;
+    return 0;
+}
+
+void ps_text_unit_store(ps_plant *p, ps_field f, double v, ps_text_unit unit, double scale)
+{
+    if (f == PS_F_SAMPLE_RATE) {
+        p->sample_period = unit == PS_UNIT_HZ ? 1.0 / (v * scale) : v * scale;
+    } else if (f == PS_F_COMPUTE_DELAY) {
+        if (unit == PS_UNIT_SAMPLES) {
+            p->compute_delay_samples = v;
+            p->compute_delay = 0.0;
+        } else {
+            p->compute_delay = v * scale;
+            p->compute_delay_samples = NAN;
+        }
+    }
+}
+
+/* sample_rate, compute_delay: a number, blanks or not, then its unit. */
+static int unit_field(ps_plant *p, ps_field f, const char *s, const char **why)
+{
+    double v;
+    const char *e;
+    s = skip_blank(s);
+    if (real_prefix(s, &v, &e, why))
+        return -1;
+    e = skip_blank(e);
+    size_t n = strlen(e);
+    while (n > 0 && (e[n - 1] == ' ' || e[n - 1] == '\t'))
+        n--;
+    const unit_word *u = find_unit(f, e, n);
+    if (!u) {
+        *why = unit_expectation(f);
+        return -1;
+    }
+    if (f == PS_F_SAMPLE_RATE) {
+        double x = v * u->scale, h = u->unit == PS_UNIT_HZ ? 1.0 / x : x;
+        if (!(v > 0) || !isfinite(x) || !(h > 0) || !isfinite(h)) {
+            *why = "a sample rate (or period) must be above 0 and finite in Hz and in seconds";
+            return -1;
+        }
+    } else if (v < 0 || !isfinite(v * u->scale)) {
+        *why = "a computation delay must be 0 or more";
+        return -1;
+    }
+    ps_text_unit_store(p, f, v, u->unit, u->scale);
+    return 0;
+}
+
+static int domain_field(ps_plant *p, const char *s, const char **why)
+{
+    s = skip_blank(s);
+    size_t n = strlen(s);
+    while (n > 0 && (s[n - 1] == ' ' || s[n - 1] == '\t'))
+        n--;
+    if (n == 1 && (s[0] == 's' || s[0] == 'z')) {
+        p->in_z = s[0] == 'z';
+        return 0;
+    }
+    *why = "expected s (a continuous-time model, the default) or z (a discrete-time model at sample_rate)";
+    return -1;
+}
+
 int ps_text_scalar_field(ps_plant *p, ps_field f, const char *s, const char **why)
 {
+    if (f == PS_F_SAMPLE_RATE || f == PS_F_COMPUTE_DELAY)
+        return unit_field(p, f, s, why);
+    if (f == PS_F_DOMAIN)
+        return domain_field(p, s, why);
     double *dst = ps_plant_scalar(p, f), v;
     ps_field_kind kind = ps_field_kind_of(f);
     if (!dst) {

@@ -247,7 +247,10 @@ static bool list_field(ps_field f)
     return f == PS_F_NUM || f == PS_F_DEN || f == PS_F_ZEROS || f == PS_F_POLES || f == PS_F_B || f == PS_F_C;
 }
 
-static ps_status add_expr(ps_family *fam, const ps_ynode *n, ps_field f, size_t index, ps_diag *d)
+/* The expression is the first len bytes of n's text (all of it for a model
+ * field; before the unit for sample_rate and compute_delay). */
+static ps_status add_expr_text(ps_family *fam, const ps_ynode *n, ps_field f, size_t index, size_t len,
+                               ps_diag *d)
 {
     const char *name = ps_field_name(f);
     if (!is_scalar(n))
@@ -256,7 +259,7 @@ static ps_status add_expr(ps_family *fam, const ps_ynode *n, ps_field f, size_t 
         return fail(d, n, name, "%s: more than 512 expressions in one family", name);
     ps_fam_expr *e = &fam->expr[fam->n_expr];
     *e = (ps_fam_expr){.field = f, .index = index, .line = n->line, .col = n->col};
-    if (!(e->text = strdup(n->text)))
+    if (!(e->text = strndup(n->text, len)))
         return ps_diag_set(d, PS_ERR_NOMEM, n->line, n->col, name, "out of memory");
     fam->n_expr++;
     /* Parsed now, at the nominal values: a syntax error or an unknown name
@@ -268,6 +271,55 @@ static ps_status add_expr(ps_family *fam, const ps_ynode *n, ps_field f, size_t 
         size_t col = ed.col ? n->col + ed.col - 1 + (n->plain ? 0 : 1) : n->col;
         return ps_diag_set(d, st, n->line, col, name, "%s: %.400s", name, ed.text);
     }
+    return PS_OK;
+}
+
+static ps_status add_expr(ps_family *fam, const ps_ynode *n, ps_field f, size_t index, ps_diag *d)
+{
+    return add_expr_text(fam, n, f, index, is_scalar(n) ? strlen(n->text) : 0, d);
+}
+
+/* The first len bytes of s are one plain number. */
+static bool number_text(const char *s, size_t len)
+{
+    char head[128];
+    double x;
+    const char *why = "";
+    if (len >= sizeof head)
+        return false; /* longer than any number written by hand: an expression */
+    memcpy(head, s, len);
+    head[len] = '\0';
+    return ps_text_real(head, &x, &why) == 0;
+}
+
+/* sample_rate, compute_delay in a family: a value with its unit as for a
+ * plant ("2 kHz"), or an expression followed by its unit ("rate kHz",
+ * "1/T s", "d samples"), so the rate or the delay can be swept or
+ * toleranced. The unit is required either way (numtext.h). */
+static ps_status parse_unit_field(ps_family *fam, ps_field f, const ps_ynode *v, ps_diag *d)
+{
+    const char *name = ps_field_name(f), *why = "";
+    if (!is_scalar(v))
+        return fail(d, v, name, "%s: expected a single value", name);
+    size_t len;
+    ps_text_unit unit;
+    double scale;
+    if (ps_text_unit_split(f, v->text, &len, &unit, &scale, &why) != 0) {
+        const char *why_literal = ""; /* "500Hz": a literal without the blank */
+        return ps_text_scalar_field(fam->tmpl, f, v->text, &why_literal) == 0
+                   ? PS_OK
+                   : fail(d, v, name, "%s: %s", name, why);
+    }
+    /* A plain number before the unit: a literal, read (and refused) as for a plant. */
+    if (number_text(v->text, len)) {
+        if (ps_text_scalar_field(fam->tmpl, f, v->text, &why) != 0)
+            return fail(d, v, name, "%s: %s", name, why);
+        return PS_OK;
+    }
+    if (add_expr_text(fam, v, f, 0, len, d) != PS_OK)
+        return PS_ERR_INPUT;
+    fam->expr[fam->n_expr - 1].unit = unit;
+    fam->expr[fam->n_expr - 1].unit_scale = scale;
     return PS_OK;
 }
 
@@ -371,6 +423,9 @@ ps_status ps_family_parse(ps_family *fam, const ps_ynode *node, const ps_plant *
                 return fail(d, v, key, "note: expected a text");
             snprintf(fam->note, sizeof fam->note, "%s", v->text);
             snprintf(fam->tmpl->note, sizeof fam->tmpl->note, "%s", v->text);
+        } else if (f == PS_F_SAMPLE_RATE || f == PS_F_COMPUTE_DELAY) {
+            if (parse_unit_field(fam, f, v, d) != PS_OK)
+                return PS_ERR_INPUT;
         } else if (model_field(f)) {
             model = true;
             if (parse_model(fam, f, v, d) != PS_OK)
@@ -467,6 +522,9 @@ ps_status ps_family_eval(ps_family *fam, const double *values, bool all_names, p
         case PS_F_A: out->a[e->index] = v; break;
         case PS_F_B: out->b[e->index] = v; break;
         case PS_F_C: out->c[e->index] = v; break;
+        case PS_F_SAMPLE_RATE: case PS_F_COMPUTE_DELAY:
+            ps_text_unit_store(out, e->field, v, e->unit, e->unit_scale); /* ranges: ps_plant_check */
+            break;
         default: *ps_plant_scalar(out, e->field) = v; break;
         }
     }

@@ -10,6 +10,7 @@
 #include <stddef.h>
 
 #include "catalog/catalog.h"
+#include "catalog/numtext.h"
 #include "core/diag.h"
 #include "family/expr.h"
 #include "model/plant.h"
@@ -50,6 +51,10 @@ typedef struct ps_fam_expr {
     size_t index;              /* list item, or row-major element of a */
     size_t line, col;
     ps_expr compiled;          /* in the family's expression context */
+    /* sample_rate, compute_delay: the unit written after the expression
+     * ("rate kHz", "d samples"); PS_UNIT_NONE for every other field */
+    ps_text_unit unit;
+    double unit_scale;
 } ps_fam_expr;
 
 typedef struct ps_family {

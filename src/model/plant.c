@@ -131,6 +131,7 @@ void ps_plant_copy(ps_plant *dst, const ps_plant *src)
     dst->compute_delay = src->compute_delay;
     dst->compute_delay_samples = src->compute_delay_samples;
     dst->in_z = src->in_z;
+    dst->defaults_sample_period = src->defaults_sample_period;
     dst->n_warn = src->n_warn;
     for (size_t i = 0; i < capped(src->n_warn, PS_MAX_WARN); i++)
         copy_text(dst->warn[i], src->warn[i], sizeof dst->warn[i]);
@@ -155,6 +156,7 @@ void ps_plant_reset(ps_plant *p)
     p->compute_delay = 0.0;
     p->compute_delay_samples = NAN;
     p->in_z = false;
+    p->defaults_sample_period = 0.0;
     p->n_warn = 0;
 }
 
@@ -177,6 +179,7 @@ void ps_plant_warn(ps_plant *p, const char *fmt, ...)
 
 void ps_plant_apply_defaults(ps_plant *p, const ps_plant *df)
 {
+    p->defaults_sample_period = ps_plant_has(df, PS_F_SAMPLE_RATE) ? df->sample_period : 0.0;
     for (int f = 0; f < PS_F_COUNT; f++) {
         if (f == PS_F_ID || !ps_plant_has(df, (ps_field)f) || ps_plant_has(p, (ps_field)f))
             continue;
@@ -219,6 +222,12 @@ void ps_plant_apply_defaults(ps_plant *p, const ps_plant *df)
             break;
         case PS_F_D: p->d = df->d; break;
         case PS_F_DELAY: p->delay = df->delay; break;
+        case PS_F_SAMPLE_RATE: p->sample_period = df->sample_period; break;
+        case PS_F_COMPUTE_DELAY:
+            p->compute_delay = df->compute_delay;
+            p->compute_delay_samples = df->compute_delay_samples;
+            break;
+        case PS_F_DOMAIN: p->in_z = df->in_z; break;
         default: break;
         }
         ps_plant_mark(p, (ps_field)f, df->field_line[f], df->field_col[f]);
@@ -251,8 +260,8 @@ static bool all_finite(const double *x, size_t n)
 static ps_status normalise_poly(ps_plant *p, ps_field f, double *c, size_t *n, ps_diag *d)
 {
     if (*n == 0)
-        return field_error(p, d, f, "%s is empty: give coefficients in descending powers of s",
-                           ps_field_name(f));
+        return field_error(p, d, f, "%s is empty: give coefficients in descending powers of %s",
+                           ps_field_name(f), p->in_z ? "z" : "s");
     if (!all_finite(c, *n))
         return field_error(p, d, f, "%s has a non-finite coefficient", ps_field_name(f));
     size_t lead = 0;
@@ -318,7 +327,9 @@ static ps_status check_poly(ps_plant *p, ps_diag *d)
                            ps_field_name(PS_F_DEN));
     if (p->n_num > p->n_den)
         return field_error(p, d, PS_F_NUM,
-                           "improper plant: %s degree is above the denominator degree %g",
+                           p->in_z ? "improper plant in z (not causal: the output would lead the input): "
+                                     "%s degree is above the denominator degree %g"
+                                   : "improper plant: %s degree is above the denominator degree %g",
                            ps_field_name(PS_F_NUM), (double)(p->n_den - 1));
     return PS_OK;
 }
@@ -340,7 +351,10 @@ static ps_status check_factored(ps_plant *p, ps_diag *d)
     if (st != PS_OK)
         return st;
     if (p->n_zeros > p->n_poles)
-        return field_error(p, d, PS_F_ZEROS, "improper plant: more %s than poles (%g)",
+        return field_error(p, d, PS_F_ZEROS,
+                           p->in_z ? "improper plant in z (not causal: the output would lead the input): "
+                                     "more %s than poles (%g)"
+                                   : "improper plant: more %s than poles (%g)",
                            ps_field_name(PS_F_ZEROS), (double)p->n_poles);
     if (!isfinite(p->gain))
         return field_error(p, d, PS_F_GAIN, "%s is not finite", ps_field_name(PS_F_GAIN));
@@ -414,6 +428,89 @@ static ps_status check_requirements(const ps_plant *p, ps_diag *d)
     return PS_OK;
 }
 
+/* Two values equal within 1e-9 relative (the sample periods of a plant in z
+ * and of the defaults; a computation delay and a whole number of periods). */
+static bool close_rel(double a, double b, double scale)
+{
+    return fabs(a - b) <= 1e-9 * scale;
+}
+
+/* The digital loop (README "Digital loops"). The readers already refuse
+ * non-positive rates and negative delays; a family's expression can give
+ * any value, so the ranges are checked again here. With a sample rate and
+ * no compute_delay the delay is one sample: the output computed from the
+ * sample taken at tick k is applied at tick k + 1 (common practice). */
+static ps_status check_digital(ps_plant *p, ps_diag *d)
+{
+    bool rate = ps_plant_has(p, PS_F_SAMPLE_RATE), given = ps_plant_has(p, PS_F_COMPUTE_DELAY);
+    double h = p->sample_period;
+    if (rate && !(h > 0 && isfinite(h) && isfinite(1.0 / h)))
+        return field_error(p, d, PS_F_SAMPLE_RATE,
+                           "%s must give a rate and a period above 0 and finite (got a period of %g s)",
+                           ps_field_name(PS_F_SAMPLE_RATE), h);
+    if (p->in_z && !rate)
+        return field_error(p, d, PS_F_DOMAIN,
+                           "%s z needs sample_rate: a model in z holds only at its own sample period",
+                           ps_field_name(PS_F_DOMAIN));
+    if (p->in_z && ps_plant_has(p, PS_F_DELAY))
+        return field_error(p, d, PS_F_DELAY,
+                           "%s is not taken by a model in z (domain z): give the delay as poles at z = 0, "
+                           "or as compute_delay in whole samples",
+                           ps_field_name(PS_F_DELAY));
+    if (given && !rate)
+        return field_error(p, d, PS_F_COMPUTE_DELAY,
+                           "%s needs sample_rate: a computation delay belongs to a sampled loop",
+                           ps_field_name(PS_F_COMPUTE_DELAY));
+    if (!rate) {
+        p->compute_delay = 0.0;
+        p->compute_delay_samples = NAN;
+        return PS_OK;
+    }
+    double hd = p->defaults_sample_period;
+    if (p->in_z && hd > 0 && !close_rel(h, hd, fmax(h, hd)))
+        return field_error(p, d, PS_F_SAMPLE_RATE,
+                           "%s %.9g Hz differs from the %.9g Hz of the catalog defaults: a model in z holds "
+                           "only at its own period (give it the defaults' rate, or discretise it again)",
+                           ps_field_name(PS_F_SAMPLE_RATE), 1.0 / h, 1.0 / hd);
+    if (!given) {
+        p->compute_delay_samples = 1.0;
+    }
+    double k = p->compute_delay_samples;
+    if (isnan(k)) {
+        double c = p->compute_delay;
+        if (!(c >= 0 && isfinite(c)))
+            return field_error(p, d, PS_F_COMPUTE_DELAY, "%s must be 0 or more and finite (got %g s)",
+                               ps_field_name(PS_F_COMPUTE_DELAY), c);
+        double m = round(c / h);
+        if (p->in_z && !close_rel(c, m * h, fmax(c, h)))
+            return field_error(p, d, PS_F_COMPUTE_DELAY,
+                               "%s %g s is %.6g sample periods: a model in z takes only a whole number of "
+                               "samples (within 1e-9 relative)",
+                               ps_field_name(PS_F_COMPUTE_DELAY), c, c / h);
+    } else {
+        if (!(k >= 0 && isfinite(k)))
+            return field_error(p, d, PS_F_COMPUTE_DELAY, "%s must be 0 or more samples and finite (got %g)",
+                               ps_field_name(PS_F_COMPUTE_DELAY), k);
+        if (p->in_z && !close_rel(k, round(k), fmax(k, 1.0)))
+            return field_error(p, d, PS_F_COMPUTE_DELAY,
+                               "%s %g samples: a model in z takes only a whole number of samples",
+                               ps_field_name(PS_F_COMPUTE_DELAY), k);
+        p->compute_delay = k * h;
+    }
+    double nyq = 3.14159265358979323846 / h;
+    if (ps_plant_has(p, PS_F_BAND_EDGE) && !(p->req.wb < nyq))
+        return field_error(p, d, PS_F_BAND_EDGE,
+                           "%s %g rad/s must lie below the Nyquist frequency pi/h = %.6g rad/s (%.6g Hz) of "
+                           "sample_rate",
+                           ps_field_name(PS_F_BAND_EDGE), p->req.wb, nyq, 0.5 / h);
+    if (ps_plant_has(p, PS_F_ROLLOFF_START) && !(p->req.wh < nyq))
+        return field_error(p, d, PS_F_ROLLOFF_START,
+                           "%s %g rad/s must lie below the Nyquist frequency pi/h = %.6g rad/s (%.6g Hz) of "
+                           "sample_rate",
+                           ps_field_name(PS_F_ROLLOFF_START), p->req.wh, nyq, 0.5 / h);
+    return PS_OK;
+}
+
 ps_status ps_plant_check(ps_plant *p, ps_diag *d)
 {
     if (!ps_plant_has(p, PS_F_ID) || p->id[0] == '\0')
@@ -437,6 +534,8 @@ ps_status ps_plant_check(ps_plant *p, ps_diag *d)
                            ps_field_name(PS_F_DELAY));
 
     ps_status st = check_requirements(p, d);
+    if (st == PS_OK)
+        st = check_digital(p, d);
     if (st != PS_OK)
         return st;
     if (poly) {

@@ -94,6 +94,10 @@ typedef struct ps_plant {
     double compute_delay;
     double compute_delay_samples;
     bool in_z;
+    /* The sample period the catalog defaults give (0: none), set by
+     * ps_plant_apply_defaults even when the plant gives its own: a plant in
+     * z must match it (ps_plant_check), a plant in s overrides it. */
+    double defaults_sample_period;
 
     size_t n_warn;
     char warn[PS_MAX_WARN][PS_WARN_TEXT];
@@ -125,8 +129,14 @@ void ps_plant_apply_defaults(ps_plant *p, const ps_plant *defaults);
 
 /* Validate and normalise an entry as read: exactly one model form, finite
  * numbers, non-empty non-zero polynomials (leading zeros stripped with a
- * warning), proper (deg num <= deg den), conjugate-closed roots, square A with
- * matching B/C, non-negative delay, order <= PS_MAX_ORDER. Sets p->form.
+ * warning), proper (deg num <= deg den; in z: causal), conjugate-closed roots,
+ * square A with matching B/C, non-negative delay, order <= PS_MAX_ORDER, and
+ * the digital loop (README "Digital loops": a positive sample period; a
+ * computation delay and a model in z only with a sample rate; in z no delay
+ * field, a whole number of samples of computation delay and the defaults'
+ * sample period if they give one; band_edge and rolloff_start below the
+ * Nyquist frequency pi/h). Sets p->form, and with a sample rate
+ * p->compute_delay in seconds (default one sample).
  * On failure returns PS_ERR_INPUT with d naming the line and field. */
 ps_status ps_plant_check(ps_plant *p, ps_diag *d);
 

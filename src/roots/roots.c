@@ -468,8 +468,38 @@ static void count_regions(ps_analysis *out)
         out->n_rhp_zeros += out->zeros[i].region == PS_RHP;
 }
 
+/* A plant in z: each root classified against the unit circle, outside
+ * (PS_RHP, unstable), on it within tol (PS_AXIS) or inside (PS_LHP), with tol
+ * = max(the root's error estimate, 64 eps |z|) and kept as the root's tol.
+ * Runs before the cancellation and PBH checks, which then judge "unstable"
+ * by the circle. */
+static void circle_roots(ps_root *r, size_t n)
+{
+    for (size_t i = 0; i < n; i++) {
+        double m = hypot(r[i].v.re, r[i].v.im);
+        double tol = fmax(r[i].tol, 64 * DBL_EPSILON * m);
+        r[i].tol = tol;
+        r[i].region = m > 1.0 + tol ? PS_RHP : fabs(m - 1.0) <= tol ? PS_AXIS : PS_LHP;
+    }
+}
+
+static void classify_unit_circle(ps_analysis *an)
+{
+    circle_roots(an->poles, an->n_poles);
+    circle_roots(an->zeros, an->n_zeros);
+}
+
+/* The class of a root in words, for warnings: half plane or unit circle. */
+static const char *region_words(const ps_analysis *out, ps_region r)
+{
+    if (!out->in_z)
+        return ps_region_name(r);
+    return r == PS_RHP ? "outside the unit circle" : r == PS_AXIS ? "on the unit circle" : "inside the unit circle";
+}
+
 /* Shared RHP/axis roots of numerator and denominator are hidden modes;
- * close but distinct RHP pairs are reported as near cancellations. */
+ * close but distinct RHP pairs are reported as near cancellations. In z
+ * the regions are those of the unit circle (classify_unit_circle ran). */
 static void check_cancellations(ps_plant *p, ps_analysis *out, bool flag_hidden)
 {
     for (size_t i = 0; i < out->n_zeros; i++) {
@@ -487,14 +517,23 @@ static void check_cancellations(ps_plant *p, ps_analysis *out, bool flag_hidden)
                     out->hidden_unstable = true;
                     ps_plant_warn(p, "hidden unstable mode: numerator and denominator share the root "
                                      "%.6g%+.6gj (%s); no controller can move it",
-                                  q->v.re, q->v.im, ps_region_name(q->region));
+                                  q->v.re, q->v.im, region_words(out, q->region));
                 }
                 break;
             }
-            if (z->region == PS_RHP && q->region == PS_RHP && dist <= PS_NEAR_CANCEL_RTOL * mag) {
+            if (!(z->region == PS_RHP && q->region == PS_RHP && dist <= PS_NEAR_CANCEL_RTOL * mag))
+                continue;
+            if (!out->in_z) {
                 double bound = hypot(z->v.re + q->v.re, z->v.im - q->v.im) / dist;
                 ps_plant_warn(p, "near cancellation: RHP zero %.6g%+.6gj is %.3g%% from RHP pole "
                                  "%.6g%+.6gj (|z+conj(p)|/|z-p| = %.4g)",
+                              z->v.re, z->v.im, 100 * dist / mag, q->v.re, q->v.im, bound);
+            } else {
+                /* the disc's counterpart of |z + conj(p)|: |1 - z conj(p)| */
+                double bound = hypot(1.0 - (z->v.re * q->v.re + z->v.im * q->v.im),
+                                     -(z->v.im * q->v.re - z->v.re * q->v.im)) / dist;
+                ps_plant_warn(p, "near cancellation: zero %.6g%+.6gj outside the unit circle is %.3g%% from "
+                                 "pole %.6g%+.6gj outside it (|1-z conj(p)|/|z-p| = %.4g)",
                               z->v.re, z->v.im, 100 * dist / mag, q->v.re, q->v.im, bound);
             }
         }
@@ -525,7 +564,7 @@ static void hidden_modes_ss(ps_roots_ws *ws, ps_plant *p, ps_analysis *out)
             out->minimal = false;
             ps_plant_warn(p, "hidden unstable mode: eigenvalue %.6g%+.6gj (%s) is %s%s%s "
                              "(PBH test, smallest/largest singular value %.2g)",
-                          r->v.re, r->v.im, ps_region_name(r->region), unc ? "uncontrollable" : "",
+                          r->v.re, r->v.im, region_words(out, r->region), unc ? "uncontrollable" : "",
                           unc && uno ? " and " : "", uno ? "unobservable" : "", unc ? rc : ro);
         }
     }
@@ -555,6 +594,8 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
     out->compute_delay_samples = p->compute_delay_samples;
     out->in_z = p->in_z;
     out->relax_sampling_zeros = false;
+    if (p->in_z)
+        out->delay = 0.0; /* refused by ps_plant_check; a model in z holds its delay as poles at 0 */
     ps_status st = PS_OK;
     switch (p->form) {
     case PS_FORM_POLY: {
@@ -571,6 +612,8 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
         if (np > 15)
             ps_plant_warn(p, "order %d from expanded coefficients: roots may be inaccurate; "
                              "prefer factored or state-space input", np);
+        if (p->in_z)
+            classify_unit_circle(out);
         check_cancellations(p, out, true);
         break;
     }
@@ -586,6 +629,8 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
         finish_roots(out->zeros, out->n_zeros, 0.0);
         out->gain = p->gain;
         out->rel_degree = (int)(p->n_poles - p->n_zeros);
+        if (p->in_z)
+            classify_unit_circle(out);
         check_cancellations(p, out, true);
         break;
     }
@@ -600,6 +645,8 @@ ps_status ps_roots_analyse(ps_roots_ws *ws, ps_plant *p, ps_analysis *out, ps_di
                              "the largest (|z| >= %.3g) are taken as infinite (rounding of the eigenvalues "
                              "at infinity)",
                           dropped, out->rel_degree, from);
+        if (p->in_z)
+            classify_unit_circle(out);
         hidden_modes_ss(ws, p, out);
         if ((int)(out->n_poles - out->n_zeros) != out->rel_degree)
             ps_plant_warn(p, "pencil gives %zu finite zeros but the Markov parameters give relative "

@@ -1,6 +1,7 @@
 /* test_csv_reader.c - the CSV catalog reader: the three model forms, physical
  * line numbers, BOM/CRLF, and every entry and file error path. */
 #include <criterion/criterion.h>
+#include <math.h>
 #include <errno.h>
 #include <stdbool.h>
 #include <stdio.h>
@@ -622,7 +623,8 @@ Test(csv_reader, unknown_column)
     cr_expect(strstr(fd.text, "unknown column 'foo' (expected one of id, note, numerator, "
                               "denominator, zeros, poles, gain, a, b, c, d, delay, peak_s_allowed, "
                               "peak_t_allowed, band_edge, band_attenuation, rolloff_start, "
-                              "rolloff_gain, rolloff_slope, effort_allowed)") != NULL,
+                              "rolloff_gain, rolloff_slope, effort_allowed, sample_rate, "
+                              "compute_delay, domain)") != NULL,
               "%s", fd.text);
 }
 
@@ -712,4 +714,48 @@ Test(csv_reader, every_data_row_gives_exactly_one_call)
     cr_assert_eq(read_text(text), PS_OK, "%s", fd.text);
     cr_expect_eq(col.calls, 9);
     cr_expect_eq(col.errors, 6, "r2, r3, r4, r7, r8 and the short r9 fail");
+}
+
+/* ---- the digital loop (README "Digital loops") ---------------------------- */
+
+Test(csv_reader, digital_columns)
+{
+    ps_status st = ps_csv_read(PS_TEST_DATA "/csv/digital.csv", scratch, collect, &col, &fd);
+    cr_assert_eq(st, PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 4);
+    cr_assert_eq(col.errors, 0, "%s", col.diag[0].text);
+    cr_expect_float_eq(kept(0)->sample_period, 1.0 / 4000.0, 1e-18);
+    cr_expect_float_eq(kept(0)->compute_delay, 300e-6, 1e-18);
+    cr_expect(isnan(kept(0)->compute_delay_samples));
+    cr_expect_not(ps_plant_has(kept(0), PS_F_DOMAIN));
+    cr_expect_float_eq(kept(1)->sample_period, 0.01, 0);
+    cr_expect_float_eq(kept(1)->compute_delay_samples, 2.0, 0);
+    cr_expect_not(kept(1)->in_z);
+    cr_expect(kept(2)->in_z);
+    cr_expect_float_eq(kept(2)->sample_period, 0.002, 1e-18);
+    cr_expect_eq(kept(2)->field_col[PS_F_DOMAIN], 8);
+    ps_form want[4] = {PS_FORM_FACTORED, PS_FORM_FACTORED, PS_FORM_POLY, PS_FORM_FACTORED};
+    double delay[4] = {300e-6, 0.02, 0.002, 0.02};
+    for (size_t i = 0; i < 4; i++) {
+        ps_plant copy = *kept(i);
+        ps_diag d = {0};
+        cr_expect_eq(ps_plant_check(&copy, &d), PS_OK, "row %zu: %s", i, d.text);
+        cr_expect_eq(copy.form, want[i]);
+        cr_expect_float_eq(copy.compute_delay, delay[i], 1e-15, "row %zu", i);
+    }
+}
+
+Test(csv_reader, digital_cells_need_units)
+{
+    cr_assert_eq(read_text("id,poles,sample_rate,compute_delay,domain\n"
+                           "a,-41.3,1000,,\n"
+                           "b,-41.3,1 kHz,2,\n"
+                           "c,-41.3,1 kHz,,zz\n"
+                           "d,-41.3,-5 Hz,,\n"),
+                 PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 4);
+    expect_entry_error(0, 2, 3, "sample_rate", "a bare number could mean Hz or rad/s");
+    expect_entry_error(1, 3, 4, "compute_delay", "needs its unit");
+    expect_entry_error(2, 4, 5, "domain", "expected s");
+    expect_entry_error(3, 5, 3, "sample_rate", "above 0");
 }

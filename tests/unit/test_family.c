@@ -460,3 +460,110 @@ Test(family, range_errors_name_line_field_and_expectation)
     cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
     cr_assert_float_eq(fam.param[0].range_mass, 0.5, 1e-15);
 }
+
+/* ---- the digital loop: the sample rate and the computation delay as parameters ---- */
+
+Test(family, sample_rate_and_compute_delay_as_expressions)
+{
+    read_family("families:\n"
+                "  - id: loop-rate\n"
+                "    parameters:\n"
+                "      rate: {nominal: 2.4, sweep: [0.8, 2.4, 9.6], tolerance: {normal: 0.05}}\n"
+                "      lag: 0.37\n"
+                "    poles: [3.17, -41.3]\n"
+                "    gain: 2.385\n"
+                "    sample_rate: rate kHz\n"
+                "    compute_delay: \"lag + 0.25 samples\"\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    cr_assert_eq(ps_family_grid_size(&fam), 3);
+    double kHz[3] = {0.8, 2.4, 9.6};
+    for (size_t k = 0; k < 3; k++) {
+        double v[PS_FAM_PARAMS];
+        ps_family_grid_point(&fam, k, v);
+        ps_diag d = {0};
+        cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_OK, "%s", d.text);
+        cr_assert(ps_plant_has(&evaluated, PS_F_SAMPLE_RATE));
+        cr_assert_float_eq(evaluated.sample_period, 1.0 / (kHz[k] * 1e3), 1e-18);
+        cr_assert_float_eq(evaluated.compute_delay_samples, 0.62, 1e-15);
+        cr_assert_eq(ps_plant_check(&evaluated, &d), PS_OK, "%s", d.text);
+        cr_assert_float_eq(evaluated.compute_delay, 0.62 / (kHz[k] * 1e3), 1e-18);
+    }
+
+    /* a period parameter in ms and a computation delay in us */
+    read_family("families:\n"
+                "  - id: loop-period\n"
+                "    parameters: {T: {nominal: 2.5, sweep: {from: 1, to: 4, count: 4}}}\n"
+                "    poles: [-41.3]\n"
+                "    sample_rate: \"T ms\"\n"
+                "    compute_delay: \"T*200 us\"\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    double v[PS_FAM_PARAMS];
+    ps_family_grid_point(&fam, 2, v);
+    ps_diag d = {0};
+    cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(evaluated.sample_period, 3e-3, 1e-18);
+    cr_assert_float_eq(evaluated.compute_delay, 600e-6, 1e-18);
+    cr_assert(isnan(evaluated.compute_delay_samples));
+}
+
+Test(family, sample_rate_literal_default_and_errors)
+{
+    /* a literal with its unit, and the catalog default for the delay */
+    read_family("defaults:\n"
+                "  compute_delay: 0.5 samples\n"
+                "families:\n"
+                "  - id: fixed-rate\n"
+                "    parameters: {p: {nominal: 3.17, sweep: [1.2, 3.17]}}\n"
+                "    poles: [p, -41.3]\n"
+                "    sample_rate: 500 Hz\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    double v[PS_FAM_PARAMS];
+    ps_family_grid_point(&fam, 0, v);
+    ps_diag d = {0};
+    cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_plant_check(&evaluated, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(evaluated.sample_period, 0.002, 1e-18);
+    cr_assert_float_eq(evaluated.compute_delay, 0.001, 1e-18);
+
+    /* an expression without its unit is refused as a bare number is */
+    read_family("families:\n"
+                "  - id: no-unit\n"
+                "    parameters: {rate: 2.4}\n"
+                "    poles: [-41.3]\n"
+                "    sample_rate: \"rate*1000\"\n",
+                false);
+    cr_assert_eq(fam_status, PS_ERR_INPUT);
+    cr_assert_eq(fam_diag.line, 5);
+    cr_assert_str_eq(fam_diag.field, "sample_rate");
+    cr_assert(strstr(fam_diag.text, "needs its unit") != NULL, "%s", fam_diag.text);
+
+    /* an unknown name in the expression: its position */
+    read_family("families:\n"
+                "  - id: typo\n"
+                "    parameters: {rate: 2.4}\n"
+                "    poles: [-41.3]\n"
+                "    sample_rate: rte kHz\n",
+                false);
+    cr_assert_eq(fam_status, PS_ERR_INPUT);
+    cr_assert_eq(fam_diag.line, 5);
+    cr_assert_str_eq(fam_diag.field, "sample_rate");
+    cr_assert(strstr(fam_diag.text, "rte") != NULL, "%s", fam_diag.text);
+
+    /* a swept value that makes the rate negative: an error of that grid point */
+    read_family("families:\n"
+                "  - id: through-zero\n"
+                "    parameters: {rate: {nominal: 1.5, sweep: [-0.5, 1.5]}}\n"
+                "    poles: [-41.3]\n"
+                "    sample_rate: rate kHz\n",
+                false);
+    cr_assert_eq(fam_status, PS_OK, "%s", fam_diag.text);
+    ps_family_grid_point(&fam, 0, v);
+    cr_assert_eq(ps_family_eval(&fam, v, false, &evaluated, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_plant_check(&evaluated, &d), PS_ERR_INPUT);
+    cr_assert_str_eq(d.field, "sample_rate");
+    cr_assert_eq(d.line, 5);
+    cr_assert(strstr(d.text, "above 0") != NULL, "%s", d.text);
+}

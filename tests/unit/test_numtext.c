@@ -1,6 +1,7 @@
 /* test_numtext.c - strict parsing of catalog numbers: reals, complex values
  * and pairs, and blank-separated lists. */
 #include <criterion/criterion.h>
+#include <math.h>
 #include <float.h>
 #include <string.h>
 
@@ -215,4 +216,48 @@ Test(numtext, requirement_units)
     cr_assert_eq(ps_text_scalar_field(&p, PS_F_BAND_ATTENUATION, "-6 dBm", &why), -1);
     cr_assert_eq(ps_text_scalar_field(&p, PS_F_MS_ALLOWED, "2 Hz", &why), -1);
     cr_assert_eq(ps_text_scalar_field(&p, PS_F_POLES, "2", &why), -1);
+}
+
+/* Every unit of the digital-loop fields (README "Digital loops"). */
+Test(numtext, digital_loop_units)
+{
+    static ps_plant p;
+    ps_plant_reset(&p);
+    const char *why = "";
+    struct { const char *text; double period; } rates[] = {
+        {"1 kHz", 1e-3}, {"500 Hz", 2e-3}, {"2.5 MHz", 4e-7}, {"2 ms", 2e-3}, {"250 us", 250e-6},
+        {"0.01 s", 0.01}, {"730Hz", 1.0 / 730}, {" 4.17 kHz ", 1.0 / 4170},
+    };
+    for (size_t i = 0; i < sizeof rates / sizeof *rates; i++) {
+        cr_assert_eq(ps_text_scalar_field(&p, PS_F_SAMPLE_RATE, rates[i].text, &why), 0, "%s: %s", rates[i].text, why);
+        cr_assert_float_eq(p.sample_period, rates[i].period, 1e-15 * rates[i].period, "%s", rates[i].text);
+    }
+    struct { const char *text; double samples, seconds; } delays[] = {
+        {"1 sample", 1, 0}, {"0.5 samples", 0.5, 0}, {"2 samples", 2, 0}, {"0 samples", 0, 0},
+        {"300 us", NAN, 300e-6}, {"0.4 ms", NAN, 0.4e-3}, {"0.001 s", NAN, 0.001},
+    };
+    for (size_t i = 0; i < sizeof delays / sizeof *delays; i++) {
+        cr_assert_eq(ps_text_scalar_field(&p, PS_F_COMPUTE_DELAY, delays[i].text, &why), 0, "%s: %s", delays[i].text, why);
+        if (isnan(delays[i].samples)) {
+            cr_assert(isnan(p.compute_delay_samples), "%s", delays[i].text);
+            cr_assert_float_eq(p.compute_delay, delays[i].seconds, 1e-18, "%s", delays[i].text);
+        } else
+            cr_assert_float_eq(p.compute_delay_samples, delays[i].samples, 0, "%s", delays[i].text);
+    }
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_DOMAIN, "z", &why), 0);
+    cr_assert(p.in_z);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_DOMAIN, " s ", &why), 0);
+    cr_assert_not(p.in_z);
+
+    const char *bad_rates[] = {"1000", "6283 rad/s", "0 Hz", "-2 ms", "1e306 MHz", "1 khz", "kHz", "1 kHz 2"};
+    for (size_t i = 0; i < sizeof bad_rates / sizeof *bad_rates; i++)
+        cr_assert_eq(ps_text_scalar_field(&p, PS_F_SAMPLE_RATE, bad_rates[i], &why), -1, "%s", bad_rates[i]);
+    cr_assert_eq(ps_text_scalar_field(&p, PS_F_SAMPLE_RATE, "1000", &why), -1);
+    cr_assert(strstr(why, "Hz or rad/s") != NULL, "%s", why);
+    const char *bad_delays[] = {"0.5", "-1 sample", "3 Hz", "2 samp", "1e309 s"};
+    for (size_t i = 0; i < sizeof bad_delays / sizeof *bad_delays; i++)
+        cr_assert_eq(ps_text_scalar_field(&p, PS_F_COMPUTE_DELAY, bad_delays[i], &why), -1, "%s", bad_delays[i]);
+    const char *bad_domains[] = {"Z", "w", "", "s z", "continuous"};
+    for (size_t i = 0; i < sizeof bad_domains / sizeof *bad_domains; i++)
+        cr_assert_eq(ps_text_scalar_field(&p, PS_F_DOMAIN, bad_domains[i], &why), -1, "%s", bad_domains[i]);
 }

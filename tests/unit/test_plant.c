@@ -279,6 +279,11 @@ Test(plant, copy_carries_every_counted_item)
     p.d = 0.25;
     p.delay = 0.01;
     p.req.wb = 12;
+    p.sample_period = 0.00125;
+    p.compute_delay = 0.000413;
+    p.compute_delay_samples = 0.33;
+    p.in_z = true;
+    p.defaults_sample_period = 0.0005;
     ps_plant_warn(&p, "first %d", 1);
     ps_plant_warn(&p, "second");
     memset(&dst, 0xa5, sizeof dst);
@@ -310,6 +315,12 @@ Test(plant, copy_carries_every_counted_item)
     cr_assert_eq(dst.d, 0.25);
     cr_assert_eq(dst.delay, 0.01);
     cr_assert_eq(memcmp(&dst.req, &p.req, sizeof p.req), 0);
+    cr_assert_eq(dst.sample_period, 0.00125);
+    cr_assert_eq(dst.compute_delay, 0.000413);
+    cr_assert_eq(dst.compute_delay_samples, 0.33);
+    cr_assert(dst.in_z);
+    cr_assert_eq(dst.defaults_sample_period, 0.0005);
+    p.in_z = false;
     cr_assert_eq(dst.n_warn, 2);
     cr_assert_str_eq(dst.warn[0], "first 1");
     cr_assert_str_eq(dst.warn[1], "second");
@@ -320,4 +331,233 @@ Test(plant, copy_carries_every_counted_item)
     cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
     cr_assert_eq(ps_plant_check(&dst, &d), PS_OK, "%s", d.text);
     cr_assert_eq(dst.form, p.form);
+}
+
+/* ---- the digital loop (README "Digital loops") --------------------------- */
+
+static void rate(double h, size_t line)
+{
+    p.sample_period = h;
+    ps_plant_mark(&p, PS_F_SAMPLE_RATE, line, 3);
+}
+
+static void delay_samples(double k, size_t line)
+{
+    p.compute_delay_samples = k;
+    p.compute_delay = 0.0;
+    ps_plant_mark(&p, PS_F_COMPUTE_DELAY, line, 3);
+}
+
+static void delay_seconds(double c, size_t line)
+{
+    p.compute_delay = c;
+    p.compute_delay_samples = NAN;
+    ps_plant_mark(&p, PS_F_COMPUTE_DELAY, line, 3);
+}
+
+static void in_z(size_t line)
+{
+    p.in_z = true;
+    ps_plant_mark(&p, PS_F_DOMAIN, line, 3);
+}
+
+Test(plant, compute_delay_defaults_to_one_sample_and_scales_with_h)
+{
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(1.0 / 2650.0, 11);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.compute_delay_samples, 1.0, 0);
+    cr_assert_float_eq(p.compute_delay, 1.0 / 2650.0, 1e-18);
+
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.00125, 11);
+    delay_samples(0.37, 12);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.compute_delay, 0.37 * 0.00125, 1e-18);
+
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.00125, 11);
+    delay_seconds(0.000413, 12);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.compute_delay, 0.000413, 0);
+    cr_assert(isnan(p.compute_delay_samples));
+
+    /* a continuous loop: no computation delay */
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.compute_delay, 0.0, 0);
+    cr_assert_float_eq(p.sample_period, 0.0, 0);
+}
+
+Test(plant, compute_delay_needs_a_sample_rate)
+{
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    delay_samples(1.5, 12);
+    expect_error("compute_delay", 12, "needs sample_rate");
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    delay_seconds(0.0003, 13);
+    expect_error("compute_delay", 13, "needs sample_rate");
+}
+
+Test(plant, sample_rate_and_compute_delay_ranges)
+{
+    /* what a family's expression can give; the readers refuse these earlier */
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(-0.002, 11);
+    expect_error("sample_rate", 11, "above 0");
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(INFINITY, 11);
+    expect_error("sample_rate", 11, "above 0");
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.002, 11);
+    delay_samples(-0.25, 12);
+    expect_error("compute_delay", 12, "0 or more");
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.002, 11);
+    delay_seconds(-0.0004, 12);
+    expect_error("compute_delay", 12, "0 or more");
+}
+
+Test(plant, domain_z_needs_a_sample_rate)
+{
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    expect_error("domain", 14, "needs sample_rate");
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.001, 11);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+}
+
+Test(plant, domain_z_refuses_a_delay_field)
+{
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.001, 11);
+    p.delay = 0.003;
+    ps_plant_mark(&p, PS_F_DELAY, 15, 3);
+    expect_error("delay", 15, "poles at z = 0");
+}
+
+Test(plant, domain_z_takes_whole_samples_only)
+{
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.001, 11);
+    delay_samples(1.5, 12);
+    expect_error("compute_delay", 12, "whole number");
+
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.001, 11);
+    delay_seconds(0.0023, 12);
+    expect_error("compute_delay", 12, "whole number");
+
+    /* whole numbers, in samples or in seconds (3 periods, with rounding) */
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.001, 11);
+    delay_samples(2, 12);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.compute_delay, 0.002, 1e-18);
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(1.0 / 3000.0, 11);
+    delay_seconds(0.001, 12);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+}
+
+Test(plant, band_edge_and_rolloff_start_below_nyquist)
+{
+    /* h = 2 ms: Nyquist pi/h = 1570.8 rad/s = 250 Hz */
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.002, 11);
+    p.req.wb = 1600.0;
+    p.req.eps = 0.1;
+    ps_plant_mark(&p, PS_F_BAND_EDGE, 16, 3);
+    ps_plant_mark(&p, PS_F_BAND_ATTENUATION, 17, 3);
+    expect_error("band_edge", 16, "Nyquist frequency pi/h = 1570.8 rad/s (250 Hz)");
+
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.002, 11);
+    p.req.wh = 1575.0;
+    ps_plant_mark(&p, PS_F_ROLLOFF_START, 18, 3);
+    expect_error("rolloff_start", 18, "below the Nyquist frequency");
+
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.002, 11);
+    p.req.wh = 1565.0;
+    ps_plant_mark(&p, PS_F_ROLLOFF_START, 18, 3);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+}
+
+Test(plant, sample_rate_from_defaults_and_a_plant_in_z)
+{
+    static ps_plant df;
+    ps_plant_reset(&df);
+    df.sample_period = 0.0005;
+    ps_plant_mark(&df, PS_F_SAMPLE_RATE, 3, 16);
+    df.compute_delay_samples = 0.6;
+    ps_plant_mark(&df, PS_F_COMPUTE_DELAY, 4, 18);
+
+    /* in s: inherits both, or overrides the rate with its own */
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    ps_plant_apply_defaults(&p, &df);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.sample_period, 0.0005, 0);
+    cr_assert_float_eq(p.compute_delay, 0.6 * 0.0005, 1e-18);
+    cr_assert_eq(p.field_line[PS_F_SAMPLE_RATE], 3);
+    poly((double[]){2.385}, 1, (double[]){1, -3.17}, 2);
+    rate(0.00125, 11);
+    ps_plant_apply_defaults(&p, &df);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_float_eq(p.sample_period, 0.00125, 0);
+    cr_assert_float_eq(p.compute_delay, 0.6 * 0.00125, 1e-18);
+
+    /* in z: its own rate must be the defaults' */
+    df.compute_delay_samples = 1;
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.00125, 11);
+    ps_plant_apply_defaults(&p, &df);
+    expect_error("sample_rate", 11, "a model in z holds only at its own period");
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    rate(0.0005 * (1 + 3e-10), 11);
+    ps_plant_apply_defaults(&p, &df);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    in_z(14);
+    ps_plant_apply_defaults(&p, &df);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert(p.in_z);
+}
+
+Test(plant, domain_and_delay_in_seconds_inherited)
+{
+    static ps_plant df;
+    ps_plant_reset(&df);
+    df.in_z = true;
+    ps_plant_mark(&df, PS_F_DOMAIN, 5, 11);
+    df.compute_delay = 0.004;
+    ps_plant_mark(&df, PS_F_COMPUTE_DELAY, 6, 18);
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    rate(0.002, 11);
+    ps_plant_apply_defaults(&p, &df);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert(p.in_z);
+    cr_assert_float_eq(p.compute_delay, 0.004, 0);
+    cr_assert(isnan(p.compute_delay_samples));
+    /* the inherited domain without a rate: named at the defaults' line */
+    poly((double[]){0.4173}, 1, (double[]){1, -1.2}, 2);
+    ps_plant_apply_defaults(&p, &df);
+    expect_error("domain", 5, "needs sample_rate");
+}
+
+Test(plant, improper_in_z_is_not_causal)
+{
+    poly((double[]){1, 2.5, 0.3}, 3, (double[]){1, -0.4}, 2);
+    in_z(14);
+    rate(0.001, 11);
+    expect_error("numerator", 8, "not causal");
 }

@@ -335,3 +335,127 @@ Test(roots, relative_degree_from_markov_parameters)
     cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_ERR_INPUT);
     cr_assert(strstr(d.text, "identically zero") != NULL, "%s", d.text);
 }
+
+/* ---- plants in z: classified against the unit circle ------------------------ */
+
+static void make_z(ps_plant *p, double h)
+{
+    p->in_z = true;
+    p->sample_period = h;
+    p->present |= (1u << PS_F_DOMAIN) | (1u << PS_F_SAMPLE_RATE);
+}
+
+Test(roots, z_polynomial_outside_inside_the_circle)
+{
+    static ps_plant p;
+    static ps_analysis an;
+    ps_diag d = {0};
+    /* 0.4173 (z + 3.73) / ((z - 1.2)(z - 0.5)): pole 1.2 and zero -3.73 outside
+     * the circle (unstable, non-minimum-phase), pole 0.5 inside; in s the
+     * classes would be the other way round for 0.5 and -3.73. */
+    ps_plant_reset(&p);
+    snprintf(p.id, sizeof p.id, "zpoly");
+    double num[2] = {0.4173, 0.4173 * 3.73}, den[3] = {1.0, -1.7, 0.6};
+    memcpy(p.num, num, sizeof num);
+    memcpy(p.den, den, sizeof den);
+    p.n_num = 2;
+    p.n_den = 3;
+    p.present = (1u << PS_F_ID) | (1u << PS_F_NUM) | (1u << PS_F_DEN);
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert(an.in_z);
+    cr_assert_eq(an.delay, 0.0);
+    cr_assert_eq(an.n_rhp_poles, 1);
+    cr_assert_eq(an.n_rhp_zeros, 1);
+    cr_assert_eq(an.n_axis_poles, 0);
+    for (size_t i = 0; i < an.n_poles; i++)
+        cr_assert_eq(an.poles[i].region, an.poles[i].v.re > 1 ? PS_RHP : PS_LHP, "pole %g", an.poles[i].v.re);
+    cr_assert_eq(an.zeros[0].region, PS_RHP);
+    cr_assert(an.zeros[0].tol >= 64 * 2.220446049250313e-16 * 3.73);
+    cr_assert_not(an.hidden_unstable);
+}
+
+Test(roots, z_roots_on_the_circle_are_the_axis_class)
+{
+    static ps_plant p;
+    static ps_analysis an;
+    ps_diag d = {0};
+    /* e^{+-0.7j} typed to 17 digits, an integrator at z = 1, and -0.3 */
+    double c = cos(0.7), s = sin(0.7);
+    factored(&p, (ps_cplx[]){{-0.62, 0}}, 1, (ps_cplx[]){{c, s}, {c, -s}, {1.0, 0}, {-0.3, 0}}, 4);
+    make_z(&p, 0.002);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(an.n_axis_poles, 3);
+    cr_assert_eq(an.n_rhp_poles, 0);
+    cr_assert_eq(an.n_rhp_zeros, 0);
+    size_t axis = 0;
+    for (size_t i = 0; i < an.n_poles; i++)
+        axis += an.poles[i].region == PS_AXIS;
+    cr_assert_eq(axis, 3);
+    /* just outside the tolerance: 1 + 1e-9 is outside the circle */
+    factored(&p, (ps_cplx[]){{0, 0}}, 0, (ps_cplx[]){{1.0 + 1e-9, 0}, {-0.3, 0}}, 2);
+    make_z(&p, 0.002);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(an.n_rhp_poles, 1);
+    cr_assert_eq(an.n_axis_poles, 0);
+}
+
+Test(roots, z_state_space_hidden_modes_by_the_circle)
+{
+    static ps_plant p;
+    static ps_analysis an;
+    ps_diag d = {0};
+    /* unreachable mode at 1.5: outside the circle, hidden and unstable */
+    diag2(&p, 1.5, 0.35, (double[]){0.0, 1.0}, (double[]){1.0, 1.0});
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert(an.hidden_unstable);
+    cr_assert(strstr(p.warn[0], "outside the unit circle") != NULL, "%s", p.warn[0]);
+    /* unreachable mode at -1.5: in the left half plane, but outside the circle */
+    diag2(&p, -1.5, 0.35, (double[]){0.0, 1.0}, (double[]){1.0, 1.0});
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert(an.hidden_unstable);
+    cr_assert(strstr(p.warn[0], "uncontrollable") != NULL, "%s", p.warn[0]);
+    cr_assert_eq(an.n_rhp_poles, 1);
+    /* unobservable mode at 0.5: right half plane, but inside the circle: stable */
+    diag2(&p, 0.5, -0.35, (double[]){1.0, 1.0}, (double[]){0.0, 1.0});
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert_not(an.hidden_unstable);
+    cr_assert_eq(an.n_rhp_poles, 0);
+}
+
+Test(roots, z_shared_and_near_roots_by_the_circle)
+{
+    static ps_plant p;
+    static ps_analysis an;
+    ps_diag d = {0};
+    /* a shared root at -1.5 (outside the circle) is a hidden unstable mode */
+    factored(&p, (ps_cplx[]){{-1.5, 0}}, 1, (ps_cplx[]){{-1.5, 0}, {0.2, 0}}, 2);
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert(an.hidden_unstable);
+    cr_assert(strstr(p.warn[0], "outside the unit circle") != NULL, "%s", p.warn[0]);
+    /* a shared root at 0.6 (inside) is not */
+    factored(&p, (ps_cplx[]){{0.6, 0}}, 1, (ps_cplx[]){{0.6, 0}, {0.2, 0}}, 2);
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert_not(an.hidden_unstable);
+    /* zero 1.26 within 5 % of pole 1.2: |1 - z p| / |z - p| = 0.512 / 0.06 = 8.533 */
+    factored(&p, (ps_cplx[]){{1.26, 0}}, 1, (ps_cplx[]){{1.2, 0}, {0.2, 0}}, 2);
+    make_z(&p, 0.001);
+    cr_assert_eq(ps_plant_check(&p, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(ps_roots_analyse(ws, &p, &an, &d), PS_OK, "%s", d.text);
+    cr_assert_eq(p.n_warn, 1);
+    cr_assert(strstr(p.warn[0], "near cancellation") != NULL, "%s", p.warn[0]);
+    cr_assert(strstr(p.warn[0], "= 8.533") != NULL, "%s", p.warn[0]);
+}

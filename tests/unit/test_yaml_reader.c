@@ -2,6 +2,7 @@
  * and matrix notations, defaults, aliases, every entry and file error path,
  * and the budgets that keep hostile files cheap. */
 #include <criterion/criterion.h>
+#include <math.h>
 #include <stdbool.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -782,4 +783,106 @@ Test(yaml_reader, giant_token_refused, .timeout = 20)
     cr_expect(strstr(fd.text, "spans more than") != NULL, "%s", fd.text);
     cr_expect_eq(col.calls, 1);
     cr_expect_eq(col.errors, 1);
+}
+
+/* ---- the digital loop (README "Digital loops") ---------------------------- */
+
+Test(yaml_reader, digital_fixture_units_and_defaults)
+{
+    ps_status st = ps_yaml_read(PS_TEST_DATA "/yaml/digital.yaml", scratch, collect, &col, &fd);
+    cr_assert_eq(st, PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 4);
+    for (size_t i = 0; i < 4; i++)
+        expect_ok(i);
+    /* inherits "2.5 kHz" and "0.5 samples" from the defaults */
+    cr_expect_float_eq(kept(0)->sample_period, 1.0 / 2500.0, 1e-18);
+    cr_expect_float_eq(kept(0)->compute_delay_samples, 0.5, 0);
+    cr_expect_eq(kept(0)->field_line[PS_F_SAMPLE_RATE], 3, "a default keeps its own position");
+    cr_expect_float_eq(kept(0)->defaults_sample_period, 1.0 / 2500.0, 1e-18);
+    cr_expect_not(kept(0)->in_z);
+    /* its own period "250 us" and delay "0.4 ms" win */
+    cr_expect_float_eq(kept(1)->sample_period, 250e-6, 1e-18);
+    cr_expect_float_eq(kept(1)->compute_delay, 0.4e-3, 1e-18);
+    cr_expect(isnan(kept(1)->compute_delay_samples));
+    cr_expect_eq(kept(1)->field_line[PS_F_SAMPLE_RATE], 12);
+    /* in z at the defaults' rate, two samples */
+    cr_expect(kept(2)->in_z);
+    cr_expect_float_eq(kept(2)->compute_delay_samples, 2.0, 0);
+    cr_expect_float_eq(kept(3)->sample_period, 1.0 / 1.25e6, 1e-21);
+    cr_expect_float_eq(kept(3)->compute_delay_samples, 1.0, 0);
+    for (size_t i = 0; i < 4; i++)
+        check_copy(i, NULL);
+    ps_plant copy = *kept(1);
+    ps_diag d = {0};
+    cr_assert_eq(ps_plant_check(&copy, &d), PS_OK, "%s", d.text);
+    cr_expect_float_eq(copy.compute_delay, 0.4e-3, 1e-18);
+    copy = *kept(0);
+    cr_assert_eq(ps_plant_check(&copy, &d), PS_OK, "%s", d.text);
+    cr_expect_float_eq(copy.compute_delay, 0.5 / 2500.0, 1e-18);
+}
+
+Test(yaml_reader, digital_fields_refused_without_units_or_out_of_range)
+{
+    cr_assert_eq(read_text("plants:\n"
+                           "  - id: bare-rate\n"
+                           "    poles: [-41.3]\n"
+                           "    sample_rate: 1000\n"
+                           "  - id: radians\n"
+                           "    poles: [-41.3]\n"
+                           "    sample_rate: 6283 rad/s\n"
+                           "  - id: zero-rate\n"
+                           "    poles: [-41.3]\n"
+                           "    sample_rate: 0 kHz\n"
+                           "  - id: bare-delay\n"
+                           "    poles: [-41.3]\n"
+                           "    sample_rate: 1 kHz\n"
+                           "    compute_delay: 0.5\n"
+                           "  - id: negative-delay\n"
+                           "    poles: [-41.3]\n"
+                           "    sample_rate: 1 kHz\n"
+                           "    compute_delay: -1 sample\n"
+                           "  - id: bad-domain\n"
+                           "    poles: [-41.3]\n"
+                           "    domain: w\n"
+                           "  - id: negative-period\n"
+                           "    poles: [-41.3]\n"
+                           "    sample_rate: -2 ms\n"),
+                 PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 7);
+    expect_entry_error(0, 4, 18, "sample_rate", "Hz or rad/s");
+    expect_entry_error(1, 7, 18, "sample_rate", "needs its unit");
+    expect_entry_error(2, 10, 18, "sample_rate", "above 0");
+    expect_entry_error(3, 14, 20, "compute_delay", "needs its unit: samples");
+    expect_entry_error(4, 18, 20, "compute_delay", "0 or more");
+    expect_entry_error(5, 21, 13, "domain", "expected s");
+    expect_entry_error(6, 24, 18, "sample_rate", "above 0");
+}
+
+Test(yaml_reader, digital_checks_name_the_line)
+{
+    cr_assert_eq(read_text("defaults:\n"
+                           "  sample_rate: 1 kHz\n"
+                           "plants:\n"
+                           "  - id: z-other-rate\n"
+                           "    domain: z\n"
+                           "    poles: [0.5]\n"
+                           "    sample_rate: 2 kHz\n"
+                           "  - id: past-nyquist\n"
+                           "    poles: [-41.3]\n"
+                           "    rolloff_start: 600 Hz\n"),
+                 PS_OK, "%s", fd.text);
+    cr_assert_eq(col.calls, 2);
+    expect_ok(0);
+    expect_ok(1);
+    ps_diag d = {0};
+    ps_plant copy = *kept(0);
+    cr_assert_eq(ps_plant_check(&copy, &d), PS_ERR_INPUT);
+    cr_expect_eq(d.line, 7);
+    cr_expect_str_eq(d.field, "sample_rate");
+    cr_expect(strstr(d.text, "differs from the 1000 Hz of the catalog defaults") != NULL, "%s", d.text);
+    copy = *kept(1);
+    cr_assert_eq(ps_plant_check(&copy, &d), PS_ERR_INPUT);
+    cr_expect_eq(d.line, 10);
+    cr_expect_str_eq(d.field, "rolloff_start");
+    cr_expect(strstr(d.text, "Nyquist frequency pi/h = 3141.59 rad/s (500 Hz)") != NULL, "%s", d.text);
 }
