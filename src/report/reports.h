@@ -13,7 +13,7 @@
 #include "screen/screen.h"
 
 /* Version of the screening JSON layout. */
-#define PS_SCREEN_SCHEMA_VERSION 2
+#define PS_SCREEN_SCHEMA_VERSION 3
 
 /* The caution every report carries (one paragraph, plain text). */
 extern const char ps_caution_text[];
