@@ -292,7 +292,9 @@ static json_t *plant_json(const ps_outcome *o)
     return j;
 }
 
-static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n)
+/* in_z: the roots are in z, classified against the unit circle (an RHP root
+ * lies outside it, an axis root on it). */
+static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n, bool in_z)
 {
     fprintf(f, "  %-6s", label);
     if (n == 0)
@@ -310,7 +312,7 @@ static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n)
         else
             fprintf(f, " %.6g", r[i].v.re);
         if (r[i].region != PS_LHP)
-            fprintf(f, "[%s]", ps_region_name(r[i].region));
+            fprintf(f, "[%s]", in_z ? (r[i].region == PS_RHP ? "outside" : "circle") : ps_region_name(r[i].region));
         if (r[i].mult > 1)
             fprintf(f, "(x%u)", r[i].mult);
     }
@@ -329,10 +331,11 @@ static void plant_text(FILE *f, const ps_outcome *o)
     }
     const ps_analysis *an = o->an;
     fprintf(f, "%s  %s  order %zu  %s:%zu\n", p->id, ps_form_name(p->form), an->n_poles, o->file, p->line);
-    text_roots(f, "poles", an->poles, an->n_poles);
-    text_roots(f, "zeros", an->zeros, an->n_zeros);
-    fprintf(f, "  gain %.6g   relative degree %d   delay %.6g s   RHP poles %zu   RHP zeros %zu%s\n",
-            an->gain, an->rel_degree, an->delay, an->n_rhp_poles, an->n_rhp_zeros,
+    text_roots(f, an->in_z ? "poles in z" : "poles", an->poles, an->n_poles, an->in_z);
+    text_roots(f, an->in_z ? "zeros in z" : "zeros", an->zeros, an->n_zeros, an->in_z);
+    fprintf(f, "  gain %.6g   relative degree %d   delay %.6g s   %s %zu   %s %zu%s\n",
+            an->gain, an->rel_degree, an->delay, an->in_z ? "poles outside the unit circle" : "RHP poles",
+            an->n_rhp_poles, an->in_z ? "zeros outside" : "RHP zeros", an->n_rhp_zeros,
             an->hidden_unstable ? "   HIDDEN UNSTABLE MODE" : "");
     const ps_floors *fl = o->fl;
     if (fl->infinite)

@@ -414,8 +414,11 @@ Test(reports_digital, survey_listing_text_and_json)
     p.line = 3;
     an.n_poles = 1;
     an.poles[0] = (ps_root){.v = {2.385, 0}, .region = PS_RHP, .mult = 1};
+    an.poles[0].v.re = 1.5207; /* the model is in z: this pole lies outside the unit circle */
+    an.n_rhp_poles = 1;
     an.h = H;
     an.compute_delay = CDELAY;
+    an.in_z = true;
     ps_outcome o = {.file = "x.yaml", .p = &p, .an = &an, .fl = &s.fl};
     ps_batch_counts counts = {.entries = 1, .models = 1};
     for (int json = 0; json < 2; json++) {
@@ -429,8 +432,13 @@ Test(reports_digital, survey_listing_text_and_json)
         fclose(f);
         if (!json) {
             has(buf, "sample rate 800 Hz", "survey text");
-            has(buf, "-3.732 (sampling zero, outside the unit circle)", "survey text");
+            has(buf, "plant given in z", "survey text");
+            lacks(buf, "(sampling zero", "survey text of a plant in z");
+            has(buf, "-3.732 (outside the unit circle)", "survey text");
             has(buf, "from the discrete Bode area", "survey text");
+            lacks(buf, "[rhp]", "survey text of a plant in z");
+            has(buf, "poles in z 1.5207[outside]", "survey text of a plant in z");
+            has(buf, "poles outside the unit circle 1", "survey text of a plant in z");
         } else {
             json_t *doc = json_loads(buf, 0, NULL);
             cr_assert_not_null(doc);
