@@ -8,6 +8,10 @@
 #include <stdbool.h>
 #include <string.h>
 
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
 /* Cell conventions (README "CSV report"):
  *  - numbers are printed with "%.9g" (C locale), booleans as true/false;
  *  - an EMPTY cell means "no finite value": not applicable (no band, no
@@ -44,6 +48,8 @@ static const char *const head_cols[] = {
     "delay",         "hidden_unstable_mode", "crossover_min", "crossover_max", "window_open",
     "binding_floor", "first_factor", "without_delay", "without_rhp_zeros", "without_rolloff_start",
     "without_band",  "without_compute_delay", "without_sample_rate", "without_sampling_zeros",
+    "sample_rate_hz", "nyquist_rad_s", "compute_delay_s", "compute_delay_samples",
+    "domain",        "z_rel_degree", "sampling_zeros", "zeros_outside_circle", "ms_nyquist_floor",
 };
 _Static_assert(PS_FACTOR_COUNT == 7, "one without_ column per factor");
 /* Columns after the per-target groups. */
@@ -83,6 +89,41 @@ static void header(csv_out *o)
     for (size_t i = 0; i < N_TAIL; i++)
         cell_text(o, tail_cols[i]);
     row_end(o);
+}
+
+/* The digital loop: every cell empty for a continuous loop (h == 0).
+ * sampling_zeros lists the sampling zeros among the first PS_ZMAP zeros in z,
+ * space-separated, complex ones as re+imj (none for a plant given in z). */
+static void sampling_cells(csv_out *o, const ps_summary *s)
+{
+    const ps_floors *fl = &s->fl;
+    if (!(s->h > 0)) {
+        for (int i = 0; i < 9; i++)
+            cell_text(o, NULL);
+        return;
+    }
+    cell_num(o, 1.0 / s->h);
+    cell_num(o, M_PI / s->h);
+    cell_num(o, s->compute_delay);
+    cell_num(o, s->compute_delay / s->h);
+    cell_text(o, s->in_z ? "z" : "s");
+    cell_num(o, fl->z_rel_degree);
+    char list[PS_ZMAP * 40] = "";
+    size_t len = 0;
+    for (size_t i = 0; i < fl->n_zzeros && i < PS_ZMAP; i++) {
+        if (!ps_zzero_is_sampling(fl, s->in_z, i))
+            continue;
+        int w = fl->zzeros[i].im != 0
+                    ? snprintf(list + len, sizeof list - len, "%s%.9g%+.9gj", len ? " " : "", fl->zzeros[i].re,
+                               fl->zzeros[i].im)
+                    : snprintf(list + len, sizeof list - len, "%s%.9g", len ? " " : "", fl->zzeros[i].re);
+        if (w < 0 || (size_t)w >= sizeof list - len)
+            break;
+        len += (size_t)w;
+    }
+    cell_text(o, list[0] ? list : NULL);
+    cell_size(o, fl->n_zzeros_outside);
+    cell_num(o, fl->ms_nyquist);
 }
 
 static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t rank)
@@ -145,6 +186,7 @@ static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t r
     cell_text(o, a->n_lowering ? ps_factor_key((ps_factor)a->order[0]) : NULL);
     for (int f = 0; f < PS_FACTOR_COUNT; f++)
         cell_num(o, a->without[f]);
+    sampling_cells(o, s);
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         const ps_target *t = &s->target[k];
         cell_text(o, ps_target_state_name(t->state));

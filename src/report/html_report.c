@@ -544,7 +544,9 @@ static void changes(FILE *f, const ps_run *r)
         if (!any_target)
             fprintf(f, "<li>no single change of pole, zero, delay or bandwidth applies</li>\n");
         fprintf(f, "</ul>\n");
-        if (maps++ < PS_HTML_FIGURES)
+        if (s->in_z)
+            fprintf(f, "<p>(the plant is given in z: its roots are listed under Digital loops, not drawn in the s-plane)</p>\n");
+        else if (maps++ < PS_HTML_FIGURES)
             pz_map(f, s);
         else
             fprintf(f, "<p>(pole/zero map drawn for the %d worst flagged plants only)</p>\n", PS_HTML_FIGURES);
@@ -1240,6 +1242,41 @@ static void band_figures(FILE *f, const ps_run *r)
         fprintf(f, "</div>\n</section>\n");
 }
 
+/* ---- digital loops ---- */
+
+/* The sampled plants (section absent when every loop is continuous). */
+static void digital_loops(FILE *f, const ps_run *r)
+{
+    bool any = false;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = ps_run_row(r, i);
+        if (s->verdict == PS_VERDICT_UNREAD || !(s->h > 0))
+            continue;
+        if (!any)
+            fprintf(f, "<section id=\"digital\">\n<h2>Digital loops</h2>\n<table class=\"digital\">\n<thead><tr>"
+                       "<th>Plant</th><th>Sampling</th><th>Roots in z</th><th>Nyquist floor</th></tr></thead>\n"
+                       "<tbody>\n");
+        any = true;
+        char text[1200];
+        fprintf(f, "<tr data-id=\"");
+        h_text(f, s->id);
+        fprintf(f, "\"><td class=\"id\">");
+        h_text(f, s->id);
+        fprintf(f, "</td><td>");
+        ps_sampling_text(s->h, s->compute_delay, s->in_z, text, sizeof text);
+        h_text(f, text);
+        fprintf(f, "</td><td>");
+        ps_zroots_text(&s->fl, s->in_z, text, sizeof text);
+        h_text(f, text);
+        fprintf(f, "</td><td>");
+        ps_nyquist_floor_text(&s->fl, s->req.wb, text, sizeof text);
+        h_text(f, text);
+        fprintf(f, "</td></tr>\n");
+    }
+    if (any)
+        fprintf(f, "</tbody>\n</table>\n</section>\n");
+}
+
 /* ---- requirements, errors, meanings ---- */
 
 static void requirements(FILE *f, const ps_run *r)
@@ -1305,6 +1342,7 @@ ps_status ps_write_html(FILE *f, const ps_run *r)
     ranking(f, r);
     severity_figure(f, r);
     changes(f, r);
+    digital_loops(f, r);
     families(f, r);
     band_figures(f, r);
     requirements(f, r);

@@ -29,6 +29,11 @@ const char *ps_bode_coverage_text(int controller_rd);
  * grows at Re p). */
 void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements *q, const ps_cplx *growth,
                           size_t n_growth);
+/* The `sampling` object of a plant (schema $defs/sampling): rate, period,
+ * Nyquist frequency, computation delay, domain and the roots in z with the
+ * sampling zeros and the zeros outside the unit circle flagged; JSON null
+ * for a continuous loop (h == 0). */
+json_t *ps_json_sampling(const ps_floors *fl, double h, double compute_delay, bool in_z);
 /* The `requirements` object. */
 json_t *ps_json_requirements(const ps_requirements *q);
 

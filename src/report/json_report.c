@@ -21,7 +21,7 @@ static json_t *jtarget(const ps_summary *s, ps_target_kind k)
     char text[320];
     ps_target_text(s, k, text, sizeof text);
     return json_pack("{s:s,s:o,s:o,s:o,s:b,s:o,s:o}", "state", ps_target_state_name(t->state), "now",
-                     ps_json_num(t->now), "limit", ps_json_num(t->limit), "searched_to",
+                     ps_json_num(t->now), "limit", t->state == PS_TARGET_FOUND ? ps_json_num(t->limit) : json_null(), "searched_to",
                      t->state == PS_TARGET_UNBOUNDED || t->state == PS_TARGET_NONE ? ps_json_num(t->searched)
                                                                                    : json_null(),
                      "passes_now", t->passes_now, "text", ps_json_str(text), "why", ps_json_str(t->why));
@@ -83,6 +83,7 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
         json_object_set_new(j, "plant", json_null());
         json_object_set_new(j, "requirements", json_null());
         json_object_set_new(j, "floors", json_null());
+        json_object_set_new(j, "sampling", json_null());
         json_object_set_new(j, "targets", json_null());
         json_object_set_new(j, "band_curve", json_null());
         json_object_set_new(j, "error", json_pack("{s:o,s:I,s:I,s:o}", "message", ps_json_str(s->err_text), "line",
@@ -104,6 +105,7 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
     json_t *fj = ps_json_floors(&s->fl);
     ps_json_floor_extras(fj, &s->fl, &s->req, s->growth, s->n_growth);
     json_object_set_new(j, "floors", fj);
+    json_object_set_new(j, "sampling", ps_json_sampling(&s->fl, s->h, s->compute_delay, s->in_z));
     json_object_set_new(j, "attribution", jattribution(&s->attr));
     json_t *t = json_object();
     for (int k = 0; k < PS_TARGET_COUNT; k++)

@@ -13,6 +13,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
 struct ps_listing {
     FILE *out;
     bool json;
@@ -142,6 +146,15 @@ json_t *ps_json_floors(const ps_floors *fl)
             jfloor(f, why, req_floors[i].key, req_floors[i].v, req_floors[i].ln, fl->note);
     }
     jfloor(f, why, "effort", fl->effort, fl->effort_ln, fl->note);
+    if (!(fl->h > 0)) {
+        json_object_set_new(f, "ms_nyquist", json_null());
+        json_object_set_new(why, "ms_nyquist", json_string("a continuous loop: no sample rate"));
+    } else if (isnan(fl->ms_nyquist)) {
+        json_object_set_new(f, "ms_nyquist", json_null());
+        json_object_set_new(why, "ms_nyquist", json_string("the plant in z has direct feedthrough: L(inf) may be "
+                                                           "non-zero, so the discrete Bode area gives no floor"));
+    } else
+        jfloor(f, why, "ms_nyquist", fl->ms_nyquist, fl->ms_nyquist_ln, fl->note);
     json_object_set_new(f, "limiting", json_string(fl->limiting));
     json_object_set_new(f, "infinite", json_boolean(fl->infinite));
     json_object_set_new(f, "condition_estimate", ps_json_num(fl->cond));
@@ -188,6 +201,28 @@ void ps_json_floor_extras(json_t *fj, const ps_floors *fl, const ps_requirements
     json_object_set_new(fj, "time_to_double", ttd);
 }
 
+json_t *ps_json_sampling(const ps_floors *fl, double h, double compute_delay, bool in_z)
+{
+    if (!(h > 0))
+        return json_null();
+    json_t *pz = json_array(), *zz = json_array();
+    for (size_t i = 0; i < fl->n_zpoles && i < PS_ZMAP; i++)
+        json_array_append_new(pz, json_pack("{s:o,s:o}", "re", ps_json_num(fl->zpoles[i].re), "im",
+                                            ps_json_num(fl->zpoles[i].im)));
+    for (size_t i = 0; i < fl->n_zzeros && i < PS_ZMAP; i++)
+        json_array_append_new(zz, json_pack("{s:o,s:o,s:b,s:b}", "re", ps_json_num(fl->zzeros[i].re), "im",
+                                            ps_json_num(fl->zzeros[i].im), "sampling",
+                                            ps_zzero_is_sampling(fl, in_z, i), "outside",
+                                            ps_zroot_outside(fl->zzeros[i])));
+    return json_pack("{s:o,s:o,s:o,s:o,s:o,s:s,s:i,s:o,s:o,s:I,s:I,s:I,s:I}", "rate_hz", ps_json_num(1.0 / h),
+                     "period_s", ps_json_num(h), "nyquist_rad_s", ps_json_num(M_PI / h), "compute_delay_s",
+                     ps_json_num(compute_delay), "compute_delay_samples", ps_json_num(compute_delay / h), "domain",
+                     in_z ? "z" : "s", "z_rel_degree", fl->z_rel_degree, "poles_z", pz, "zeros_z", zz, "n_poles_z",
+                     (json_int_t)fl->n_zpoles, "n_zeros_z", (json_int_t)fl->n_zzeros, "n_sampling_zeros",
+                     (json_int_t)(in_z ? 0 : fl->n_sampling_zeros), "n_zeros_outside",
+                     (json_int_t)fl->n_zzeros_outside);
+}
+
 json_t *ps_json_requirements(const ps_requirements *q)
 {
     return json_pack("{s:o,s:o,s:o,s:o,s:o,s:o,s:o,s:o}", "peak_s_allowed", ps_json_num(q->ms_allowed),
@@ -219,6 +254,7 @@ static json_t *plant_json(const ps_outcome *o)
         json_object_set_new(j, "hidden_unstable_mode", json_null());
         json_object_set_new(j, "requirements", json_null());
         json_object_set_new(j, "floors", json_null());
+        json_object_set_new(j, "sampling", json_null());
         json_object_set_new(j, "warnings", jwarnings(p));
         json_object_set_new(j, "error", json_pack("{s:o,s:o,s:I,s:I,s:o}", "message", ps_json_str(e->text),
                                                   "file", ps_json_str(o->file), "line", (json_int_t)e->line,
@@ -250,12 +286,15 @@ static json_t *plant_json(const ps_outcome *o)
     ps_json_floor_extras(fj, o->fl, q, growth, n_growth);
     json_object_set_new(j, "requirements", ps_json_requirements(q));
     json_object_set_new(j, "floors", fj);
+    json_object_set_new(j, "sampling", ps_json_sampling(o->fl, an->h, an->compute_delay, an->in_z));
     json_object_set_new(j, "warnings", jwarnings(p));
     json_object_set_new(j, "error", json_null());
     return j;
 }
 
-static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n)
+/* in_z: the roots are in z, classified against the unit circle (an RHP root
+ * lies outside it, an axis root on it). */
+static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n, bool in_z)
 {
     fprintf(f, "  %-6s", label);
     if (n == 0)
@@ -273,7 +312,7 @@ static void text_roots(FILE *f, const char *label, const ps_root *r, size_t n)
         else
             fprintf(f, " %.6g", r[i].v.re);
         if (r[i].region != PS_LHP)
-            fprintf(f, "[%s]", ps_region_name(r[i].region));
+            fprintf(f, "[%s]", in_z ? (r[i].region == PS_RHP ? "outside" : "circle") : ps_region_name(r[i].region));
         if (r[i].mult > 1)
             fprintf(f, "(x%u)", r[i].mult);
     }
@@ -292,10 +331,11 @@ static void plant_text(FILE *f, const ps_outcome *o)
     }
     const ps_analysis *an = o->an;
     fprintf(f, "%s  %s  order %zu  %s:%zu\n", p->id, ps_form_name(p->form), an->n_poles, o->file, p->line);
-    text_roots(f, "poles", an->poles, an->n_poles);
-    text_roots(f, "zeros", an->zeros, an->n_zeros);
-    fprintf(f, "  gain %.6g   relative degree %d   delay %.6g s   RHP poles %zu   RHP zeros %zu%s\n",
-            an->gain, an->rel_degree, an->delay, an->n_rhp_poles, an->n_rhp_zeros,
+    text_roots(f, an->in_z ? "poles in z" : "poles", an->poles, an->n_poles, an->in_z);
+    text_roots(f, an->in_z ? "zeros in z" : "zeros", an->zeros, an->n_zeros, an->in_z);
+    fprintf(f, "  gain %.6g   relative degree %d   delay %.6g s   %s %zu   %s %zu%s\n",
+            an->gain, an->rel_degree, an->delay, an->in_z ? "poles outside the unit circle" : "RHP poles",
+            an->n_rhp_poles, an->in_z ? "zeros outside" : "RHP zeros", an->n_rhp_zeros,
             an->hidden_unstable ? "   HIDDEN UNSTABLE MODE" : "");
     const ps_floors *fl = o->fl;
     if (fl->infinite)
@@ -310,6 +350,15 @@ static void plant_text(FILE *f, const ps_outcome *o)
                 fl->parity_interlacing ? "a stable controller can stabilize (parity interlacing holds)"
                                        : "EVERY STABILIZING CONTROLLER IS UNSTABLE (parity interlacing fails)",
                 ps_bode_coverage_text(fl->bode_controller_rd));
+    if (fl->h > 0) {
+        char text[1200];
+        ps_sampling_text(fl->h, an->compute_delay, an->in_z, text, sizeof text);
+        fprintf(f, "  digital loop  %s\n", text);
+        ps_zroots_text(fl, an->in_z, text, sizeof text);
+        fprintf(f, "  roots in z  %s\n", text);
+        ps_nyquist_floor_text(fl, p->req.wb, text, sizeof text);
+        fprintf(f, "  Nyquist floor  %s\n", text);
+    }
     if (fl->note[0] && !fl->infinite)
         fprintf(f, "  note  %s\n", fl->note);
     for (size_t i = 0; i < p->n_warn; i++)

@@ -166,6 +166,35 @@ static void redesign_list(FILE *f, const ps_run *r)
         fprintf(f, "No plant needs a hardware change.\n\n");
 }
 
+/* The sampled plants (section absent when every loop is continuous). */
+static void digital_loops(FILE *f, const ps_run *r)
+{
+    bool any = false;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        const ps_summary *s = ps_run_row(r, i);
+        if (s->verdict == PS_VERDICT_UNREAD || !(s->h > 0))
+            continue;
+        if (!any)
+            fprintf(f, "## Digital loops\n\n");
+        any = true;
+        char text[1200];
+        fprintf(f, "- ");
+        md_text(f, s->id);
+        fprintf(f, ": ");
+        ps_sampling_text(s->h, s->compute_delay, s->in_z, text, sizeof text);
+        md_text(f, text);
+        fprintf(f, "\n  - ");
+        ps_zroots_text(&s->fl, s->in_z, text, sizeof text);
+        md_text(f, text);
+        fprintf(f, "\n  - ");
+        ps_nyquist_floor_text(&s->fl, s->req.wb, text, sizeof text);
+        md_text(f, text);
+        fprintf(f, "\n");
+    }
+    if (any)
+        fprintf(f, "\n");
+}
+
 static void requirements(FILE *f, const ps_run *r)
 {
     fprintf(f, "## Requirements screened against\n\n");
@@ -224,6 +253,7 @@ ps_status ps_write_markdown(FILE *f, const ps_run *r)
     header(f, r);
     ranked_table(f, r);
     redesign_list(f, r);
+    digital_loops(f, r);
     ps_md_families(f, r, md_cell);
     requirements(f, r);
     meanings(f);

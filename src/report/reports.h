@@ -13,7 +13,7 @@
 #include "screen/screen.h"
 
 /* Version of the screening JSON layout. */
-#define PS_SCREEN_SCHEMA_VERSION 2
+#define PS_SCREEN_SCHEMA_VERSION 3
 
 /* The caution every report carries (one paragraph, plain text). */
 extern const char ps_caution_text[];
@@ -32,6 +32,22 @@ const char *ps_target_label(ps_target_kind k);
 /* Requirements of one plant in one line, marking which were given in the
  * catalog and which are built-in defaults. */
 void ps_requirements_text(const ps_summary *s, char *buf, size_t n);
+
+
+/* The digital loop in words (sampling_words.c); each writes "" for a
+ * continuous loop (h == 0). A root in z is flagged as outside the unit circle
+ * only when |z| > 1 + PS_CIRCLE_TOL; a zero is called a sampling zero only for
+ * a held plant (never for a plant given in z, whose zeros are the model's). */
+#define PS_CIRCLE_TOL 1e-9
+bool ps_zroot_outside(ps_cplx z);
+bool ps_zzero_is_sampling(const ps_floors *fl, bool in_z, size_t i);
+/* "sample rate 1000 Hz (period 1 ms), Nyquist frequency 3142 rad/s (500 Hz),
+ * computation delay 1 ms (1 sample); continuous plant behind a zero-order hold". */
+void ps_sampling_text(double h, double compute_delay, bool in_z, char *buf, size_t n);
+/* "poles in z: ...; zeros in z: -3.732 (sampling zero, outside the unit circle), ...; relative degree in z 1". */
+void ps_zroots_text(const ps_floors *fl, bool in_z, char *buf, size_t n);
+/* The Ms floor over [wb, pi/h] from the discrete Bode area, with its source. */
+void ps_nyquist_floor_text(const ps_floors *fl, double wb, char *buf, size_t n);
 
 /* Writers. Each returns PS_OK or PS_ERR_IO (PS_ERR_NOMEM for JSON). */
 /* The terminal listing: at most `show` rows per section (0: all); a cut

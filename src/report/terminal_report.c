@@ -68,6 +68,21 @@ static void wrap(FILE *f, const char *text, const char *indent, size_t width)
     fputc('\n', f);
 }
 
+/* The digital loop of a sampled plant (nothing for a continuous loop). */
+static void digital(FILE *f, const ps_summary *s)
+{
+    if (!(s->h > 0))
+        return;
+    char text[1200], line[1240];
+    ps_sampling_text(s->h, s->compute_delay, s->in_z, text, sizeof text);
+    snprintf(line, sizeof line, "digital loop: %s", text);
+    wrap(f, line, "    ", 96);
+    ps_zroots_text(&s->fl, s->in_z, text, sizeof text);
+    wrap(f, text, "    ", 96);
+    ps_nyquist_floor_text(&s->fl, s->req.wb, text, sizeof text);
+    wrap(f, text, "    ", 96);
+}
+
 static bool flagged(ps_verdict v)
 {
     return v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE;
@@ -135,6 +150,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
         fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
         snprintf(line, sizeof line, "cause: %s", s->cause);
         wrap(f, line, "    ", 96);
+        digital(f, s);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             ps_target_text(s, (ps_target_kind)k, line, sizeof line);
             if (line[0])
@@ -155,6 +171,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
         const ps_summary *s = ps_run_row(r, i);
         n_pass++;
         fprintf(f, "\n  %s  [%s]  largest share: %s\n", s->id, ps_verdict_name(s->verdict), s->cause);
+        digital(f, s);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             ps_target_text(s, (ps_target_kind)k, line, sizeof line);
             if (line[0])
@@ -178,6 +195,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
             fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
             snprintf(line, sizeof line, "cause: %s", s->cause);
             wrap(f, line, "    ", 96);
+            digital(f, s);
         }
         more(f, n_nb - told, full);
     }
