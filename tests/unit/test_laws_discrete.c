@@ -13,6 +13,7 @@
 
 #include <complex.h>
 
+#include "core/complex_make.h"
 #include "limits/floors.h"
 #include "limits/limits.h"
 #include "model/discrete.h"
@@ -113,7 +114,7 @@ static size_t poly_roots(const poly *a, double complex *out)
     gsl_poly_complex_workspace_free(w);
     cr_assert_eq(rc, GSL_SUCCESS, "companion solver failed");
     for (size_t i = 0; i + 1 < n; i++)
-        out[i] = z[2 * i] + I * z[2 * i + 1];
+        out[i] = ps_complex_make(z[2 * i], z[2 * i + 1]);
     return n - 1;
 }
 
@@ -258,7 +259,7 @@ typedef struct zplant {
 static bool far_from(const ps_cplx *r, size_t n, double complex x, double d)
 {
     for (size_t i = 0; i < n; i++)
-        if (cabs(r[i].re + I * r[i].im - x) < d)
+        if (cabs(ps_complex_make(r[i].re, r[i].im) - x) < d)
             return false;
     return true;
 }
@@ -823,7 +824,7 @@ Test(laws_discrete, one_unstable_pole_floors_in_closed_form)
                 pd = P.p[i].re;
         double expect = pow(cabs(pd), (double)(P.np + P.cd_samples - P.nz));
         for (size_t j = 0; j < P.nz; j++) {
-            double complex a = P.z[j].re + I * P.z[j].im;
+            double complex a = ps_complex_make(P.z[j].re, P.z[j].im);
             if (cabs(a) > 1)
                 expect *= cabs(1 - conj(a) * pd) / cabs(pd - a);
         }
