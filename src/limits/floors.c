@@ -346,8 +346,22 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
         if (st == PS_OK) {
             mt_i = big_max(g, mt_single);
             ms_i = theta > 0 ? mt_i : ms_single;
-            if (theta == 0 && nz > 0 && (st = confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &g, &c2, &d)) == PS_OK)
-                ms_i = big_max(g, ms_single);
+            big gz;
+            if (theta == 0 && nz > 0) {
+                /* Without delay both problems give the one joint floor (Chen's
+                 * equality); they differ by rounding only, and a zero close to
+                 * a repeated one (a zero near z = infinity in a sampled loop)
+                 * makes the problem at the zeros the worse conditioned: the
+                 * better one is taken for both. */
+                if (confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &gz, &c2, &d) == PS_OK && c2 <= 10 * c1) {
+                    ms_i = big_max(gz, ms_single);
+                    mt_i = big_max(gz, mt_single);
+                } else {
+                    ms_i = big_max(g, ms_single);
+                    out->ms_route = PS_ROUTE_JOINT_POLES;
+                    c2 = 1.0;
+                }
+            }
         }
         if (st == PS_OK)
             snprintf(out->note, sizeof out->note, "repeated RHP root: confluent interpolation (derivative conditions)");
@@ -390,12 +404,16 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
                  * no matrix is needed. */
                 ms_i = big_max(g, ms_single);
             else if (theta == 0 && nz > 0) {
+                /* Chen's formula and the Pick value at the poles are the one
+                 * joint floor: the better conditioned is taken for both. */
                 double chen, c2 = 1.0;
-                if (ps_chen_floor(ws, z, nz, p, np, &chen, &c2, &d) == PS_OK)
+                if (ps_chen_floor(ws, z, nz, p, np, &chen, &c2, &d) == PS_OK && c2 <= 10 * cond) {
                     ms_i = big_max(big_val(chen), ms_single);
-                else
-                    out->ms_route = PS_ROUTE_SINGLE;
-                cond = fmax(cond, c2);
+                    cond = fmax(cond, c2);
+                } else {
+                    ms_i = big_max(g, ms_single);
+                    out->ms_route = PS_ROUTE_JOINT_POLES;
+                }
             }
         } else {
             out->ms_route = out->mt_route = PS_ROUTE_SINGLE;

@@ -25,7 +25,9 @@ typedef enum ps_route {
     PS_ROUTE_CHEN,       /* Chen's joint formula (Ms, no delay, several RHP poles and RHP zeros) */
     PS_ROUTE_CONFLUENT,  /* repeated RHP roots: confluent Pick */
     PS_ROUTE_SINGLE,     /* fallback: the single-point products */
-    PS_ROUTE_EQUAL_MT    /* Ms with delay: equal to the Mt floor */
+    PS_ROUTE_EQUAL_MT,   /* Ms with delay: equal to the Mt floor */
+    PS_ROUTE_JOINT_POLES /* Ms without delay: the joint floor (Chen's equality Ms_min = Mt_min) taken from the
+                            Pick problem at the poles, better conditioned than the one at the zeros */
 } ps_route;
 
 typedef struct ps_floors {

@@ -98,7 +98,8 @@ static void mt_item(ps_audit *a, const ps_analysis *an, const ps_floors *fl)
                         "joint floor could not be computed: %s)", fl->note);
         it->source = SRC_SP5;
         break;
-    case PS_ROUTE_EQUAL_MT: break;
+    case PS_ROUTE_EQUAL_MT:
+    case PS_ROUTE_JOINT_POLES: break;
     }
 }
 
@@ -136,6 +137,11 @@ static void ms_item(ps_audit *a, const ps_analysis *an, const ps_floors *fl)
         set_formula(it, "equal to the Mt interpolation floor: with a delay the floor on ||S|| equals the one on "
                         "||T|| (commutant-lifting equality; held in every numerical check, not proven here)");
         it->source = "Astrom, European J. Control 2000 (single pole, from memory); equality checked numerically";
+        break;
+    case PS_ROUTE_JOINT_POLES:
+        set_formula(it, "equal to the Mt interpolation floor: without delay the floors on ||S|| and ||T|| are one "
+                        "joint floor (Chen's equality Ms_min = Mt_min), here from the Pick problem at the poles, "
+                        "the better conditioned of the two");
         break;
     case PS_ROUTE_CONFLUENT:
         set_formula(it, "confluent Nevanlinna-Pick at the RHP zeros: S(z) = 1 with S', S'', ... = 0 at a "
