@@ -662,6 +662,13 @@ static void sampled_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *ou
         return;
     }
     ps_floors_plant(ws, &v->w, out);
+    if (strncmp(out->note, "repeated RHP root:", 18) == 0) { /* in z words: w = 1 is z = infinity */
+        snprintf(out->note, sizeof out->note,
+                 "repeated root outside the unit circle or at z = infinity (relative degree %d in z): confluent "
+                 "interpolation (derivative conditions)",
+                 v->z_rel_degree);
+        out->note_plant = strlen(out->note);
+    }
     out->h = v->h;
     out->nyquist = M_PI / v->h;
     /* (1/pi) int_0^pi ln|S(e^{jW})| dW = sum ln|p_d| - ln|1 + L(inf)| (Sung &

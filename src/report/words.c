@@ -178,9 +178,13 @@ void ps_target_text(const ps_summary *s, ps_target_kind k, char *buf, size_t n)
             snprintf(buf, n, "computation delay: every value up to %s passes (the searched range); now %s", lim, now);
         } else {
             time_text(t->limit, lim, sizeof lim);
-            if (s->h > 0)
-                snprintf(buf, n, "computation delay must stay below %s (%.3g samples); now %s (%.3g samples)", lim,
-                         t->limit / s->h, now, t->now / s->h);
+            if (s->in_z)
+                snprintf(buf, n, "computation delay: at most %.0f whole sample%s (%s) pass%s; now %.0f", t->limit / s->h,
+                         t->limit == s->h ? "" : "s", lim, t->limit == s->h ? "es" : "", t->now / s->h);
+            else if (s->h > 0)
+                snprintf(buf, n, "computation delay must stay below %s (%.3g sample%s); now %s (%.3g sample%s)", lim,
+                         t->limit / s->h, t->limit == s->h ? "" : "s", now, t->now / s->h,
+                         t->now == s->h ? "" : "s");
             else
                 snprintf(buf, n, "computation delay must stay below %s; now %s", lim, now);
         }

@@ -34,7 +34,7 @@ const char *ps_factor_relaxed_words(ps_factor f)
 {
     static const char *const words[PS_FACTOR_COUNT] = {
         "without the delay", "without the RHP zeros", "with unlimited bandwidth", "without the band requirement",
-        "without the computation delay", "at 4 times the sample rate", "without the sampling zeros outside the circle"};
+        "without the computation delay", "at 4 times the sample rate", "with the sampling zeros mirrored inside"};
     return (unsigned)f < PS_FACTOR_COUNT ? words[f] : "?";
 }
 
@@ -109,10 +109,18 @@ static void relax(unsigned mask, ps_analysis *w, ps_requirements *q)
     if (mask & 1u << PS_FACTOR_DELAY)
         w->delay = 0.0;
     if (mask & 1u << PS_FACTOR_ZEROS) {
-        /* The minimum-phase mirror: same |P(jw)|, no RHP zero. */
+        /* The minimum-phase mirror: same |P(jw)|, no RHP zero; in z the
+         * mirror 1/conj(a) in the unit circle, the gain times |a| (on the
+         * circle |z - a| = |a| |z - 1/conj(a)|). */
         for (size_t j = 0; j < w->n_zeros; j++)
             if (w->zeros[j].region == PS_RHP) {
-                w->zeros[j].v.re = -w->zeros[j].v.re;
+                if (w->in_z) {
+                    double m2 = w->zeros[j].v.re * w->zeros[j].v.re + w->zeros[j].v.im * w->zeros[j].v.im;
+                    w->gain *= sqrt(m2);
+                    w->zeros[j].v.re /= m2;
+                    w->zeros[j].v.im /= m2;
+                } else
+                    w->zeros[j].v.re = -w->zeros[j].v.re;
                 w->zeros[j].region = PS_LHP;
             }
         w->n_rhp_zeros = 0;
@@ -241,6 +249,15 @@ static void put_poles(ps_text *t, const ps_analysis *an)
         return;
     bool pair = d->v.im > 0;
     bool more = an->n_rhp_poles > (pair ? 2u : 1u);
+    if (an->in_z) {
+        ps_text_put(t, "%s", more ? "the poles outside the unit circle, largest z = "
+                                  : pair ? "the pole pair outside the unit circle z = " : "the pole outside the unit circle z = ");
+        if (pair)
+            ps_text_put(t, "%.4g+-%.4gj", d->v.re, d->v.im);
+        else
+            ps_text_put(t, "%.4g", d->v.re);
+        return;
+    }
     ps_text_put(t, "%s", more ? "the unstable poles, dominant " : pair ? "the unstable pole pair " : "the unstable pole ");
     if (pair)
         ps_text_put(t, "%.3g+-%.3gj rad/s", d->v.re, d->v.im);
@@ -301,6 +318,19 @@ static bool put_factor(ps_text *t, ps_factor f, const ps_analysis *an, const ps_
         return false;
     case PS_FACTOR_ZEROS: {
         const ps_root *z, *p;
+        if (an->in_z) { /* in z the words of the s plane do not apply */
+            z = NULL;
+            for (size_t j = 0; j < an->n_zeros && !z; j++)
+                if (an->zeros[j].region == PS_RHP && an->zeros[j].v.im >= 0)
+                    z = &an->zeros[j];
+            ps_text_put(t, "%s z = ", an->n_rhp_zeros > 1 ? "zeros outside the unit circle, among them"
+                                                          : "the zero outside the unit circle");
+            if (z && z->v.im != 0)
+                ps_text_put(t, "%.4g+-%.4gj", z->v.re, z->v.im);
+            else if (z)
+                ps_text_put(t, "%.4g", z->v.re);
+            return false;
+        }
         double rel = nearest_zero(an, &z, &p);
         bool one = an->n_rhp_zeros == (z->v.im != 0 ? 2u : 1u);
         ps_text_put(t, "%s", one ? (z->v.im != 0 ? "RHP zero pair " : "RHP zero ") : "RHP zeros, among them ");
@@ -323,9 +353,8 @@ static bool put_factor(ps_text *t, ps_factor f, const ps_analysis *an, const ps_
     case PS_FACTOR_RATE:
         ps_text_put(t, "sample rate ");
         put_rate(t, 1.0 / an->h);
-        ps_text_put(t, " (the hold's delay and the Nyquist frequency %.3g rad/s)", M_PI / an->h);
         return false;
-    case PS_FACTOR_SAMPLING_ZEROS: ps_text_put(t, "sampling zero outside the unit circle"); return false;
+    case PS_FACTOR_SAMPLING_ZEROS: ps_text_put(t, "a sampling zero outside the unit circle"); return false;
     case PS_FACTOR_COUNT: break;
     }
     return false;
@@ -334,6 +363,8 @@ static bool put_factor(ps_text *t, ps_factor f, const ps_analysis *an, const ps_
 /* The relaxation in words, "zero" singular for one real zero or one pair. */
 static const char *relaxed_words(ps_factor f, const ps_analysis *an)
 {
+    if (f == PS_FACTOR_ZEROS && an->in_z)
+        return "with the zeros outside the circle mirrored inside";
     if (f == PS_FACTOR_RATE) { /* "at 4 kHz" */
         static _Thread_local char at[48];
         ps_text r = ps_text_on(at, sizeof at);

@@ -330,6 +330,11 @@ static void failing_words(const probe *pr, double x, char *buf, size_t n)
         snprintf(buf, n, "%s no controller stabilizes the plant", at);
         return;
     }
+    if (isnan(fl->ms)) {
+        ps_text t = ps_text_on(buf, n);
+        ps_text_put(&t, "%s the held plant cannot be formed: %s", at, fl->note);
+        return;
+    }
     ps_requirements q = pr->req;
     double sm, st, se;
     severity_of(fl, &q, &sm, &st, &se);
@@ -429,6 +434,21 @@ static double held_delay_room(const ps_analysis *an)
         return INFINITY;
     double states = (double)PS_MAX_ORDER - (double)an->n_poles - 1.0;
     return states > 0 ? states * an->h : 0.0;
+}
+
+/* The highest sample rate at which the plant's delay (and a computation
+ * delay given in seconds) still fits the hold's PS_MAX_ORDER states, with
+ * a computation delay given in samples counted at its number of samples.
+ * The sample-rate search ends there (INFINITY without such a delay). */
+static double held_rate_room(const ps_analysis *an)
+{
+    bool in_samples = isfinite(an->compute_delay_samples);
+    double seconds = an->delay + (in_samples ? 0.0 : an->compute_delay);
+    double states = (double)PS_MAX_ORDER - (double)an->n_poles - 2.0 -
+                    (in_samples ? ceil(an->compute_delay_samples) : 0.0);
+    if (!(seconds > 0))
+        return INFINITY;
+    return states > 1 ? states / seconds : 0.0;
 }
 
 /* Reference frequency of the plant: sets the searched ranges. */
@@ -572,7 +592,7 @@ static void targets(ps_screen_ws *ws, const ps_analysis *an, const ps_requiremen
             /* Rates at which the Nyquist frequency clears the band edge and
              * the roll-off start, up to four decades past the plant's scale. */
             double lo = fmax(fmax(q->wb, q->wh) / M_PI * (1 + 1e-9), scale * 1e-4);
-            double hi = fmax(scale * 1e4, t->now * 1e2);
+            double hi = fmin(fmax(scale * 1e4, t->now * 1e2), held_rate_room(an));
             search(&pr, t, t->now, fmin(lo, t->now), hi, false);
             if (t->state == PS_TARGET_FOUND)
                 check_monotone(&pr, t, hi);

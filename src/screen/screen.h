@@ -70,7 +70,7 @@ typedef struct ps_target {
     char why[120];
 } ps_target;
 
-enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 360 };
+enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 440 };
 
 /* What a report needs of one plant: a fixed record, no pointers into the
  * model (the model is gone once the next entry is read). */

@@ -545,7 +545,7 @@ done
 contains "cause names the bandwidth with the figure its relaxation gives" "$tmp/scr/closed-form.screen/closed-form.screen.csv" \
     "available bandwidth 40 rad/s with the unstable pole 12 rad/s: Mt floor 1.57 against 1.25 allowed (1 with unlimited bandwidth)"
 "$py" - "$tmp/scr/closed-form.screen/closed-form.screen.json" "$tmp/demo/demo-variants.screen/demo-variants.screen.json" <<'PY'
-import json, math, sys
+import json, math, re, sys
 P = {p["id"]: p for p in json.load(open(sys.argv[1]))["plants"]}
 fl = P["one-pole-tight"]["floors"]
 assert abs(fl["ms"] - math.exp(12 * math.pi / 40)) <= 1e-9 * fl["ms"], fl["ms"]
@@ -553,7 +553,12 @@ assert fl["mt"] == fl["ms"] - 1 and fl["limiting"] == "band", fl
 assert P["one-pole-tight"]["worst"] == "Mt"
 # Everywhere: the attribution's binding floor is the floor the verdict names,
 # every factor the cause names lowers it, and the first one is named first.
-words = {"delay": "delay ", "rhp_zeros": "RHP zero", "rolloff_start": "available bandwidth", "band": "required band"}
+words = {"delay": r"(?<!computation )delay ", "rhp_zeros": r"RHP zero|zeros? outside the unit circle",
+         "rolloff_start": "available bandwidth", "band": "required band", "compute_delay": "computation delay",
+         "sample_rate": "sample rate", "sampling_zeros": "sampling zero"}
+def find(text, pattern):
+    m = re.search(pattern, text)
+    return m.start() if m else -1
 for f in sys.argv[1:]:
     for p in json.load(open(f))["plants"]:
         a = p["attribution"]
@@ -570,7 +575,7 @@ for f in sys.argv[1:]:
             assert x["floor_without"] < a["floor"], (p["id"], x)
         if named:
             first = words[named[0]["factor"]]
-            pos = [p["cause"].find(words[x["factor"]]) for x in named]
+            pos = [find(p["cause"], words[x["factor"]]) for x in named]
             assert min(pos) >= 0 and pos[0] == min(pos), (p["id"], p["cause"], named)
 PY
 check "cause names the factors the attribution ranks, in its order" 0 $?
