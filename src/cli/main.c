@@ -616,13 +616,15 @@ static int cmd_screen(int argc, char **argv)
 
 /* explain: every number of one plant in the order it is checked by hand;
  * the words come from the library (screen/audit.h, screen/attribution.h). */
-static void print_roots(const char *label, const ps_root *r, size_t n)
+static void print_roots(const char *label, const ps_root *r, size_t n, bool in_z)
 {
     printf("  %-22s", label);
     if (n == 0)
         fputs(" none", stdout);
     for (size_t i = 0; i < n; i++)
-        printf(" %.10g%+.10gj[%s]", r[i].v.re, r[i].v.im, ps_region_name(r[i].region));
+        printf(" %.10g%+.10gj[%s]", r[i].v.re, r[i].v.im,
+               in_z ? (r[i].region == PS_RHP ? "outside" : r[i].region == PS_AXIS ? "circle" : "inside")
+                    : ps_region_name(r[i].region));
     putchar('\n');
 }
 
@@ -661,10 +663,27 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     char line[600];
     ps_requirements_text(s, line, sizeof line);
     puts("1. The plant as analysed (roots: GSL companion solver, Newton-polished; state space: balanced eigenvalues)");
-    print_roots("poles", an->poles, an->n_poles);
-    print_roots("zeros", an->zeros, an->n_zeros);
+    print_roots(an->in_z ? "poles in z" : "poles", an->poles, an->n_poles, an->in_z);
+    print_roots(an->in_z ? "zeros in z" : "zeros", an->zeros, an->n_zeros, an->in_z);
     printf("  %-22s %.10g\n  %-22s %d\n  %-22s %.10g s\n  %-22s %s\n", "gain", an->gain, "relative degree",
            an->rel_degree, "delay", an->delay, "hidden unstable mode", an->hidden_unstable ? "yes" : "no");
+    if (an->h > 0) {
+        char zline[600];
+        ps_sampling_text(an->h, an->compute_delay, an->in_z, zline, sizeof zline);
+        printf("  %-22s %s\n", "digital loop", zline);
+        ps_zroots_text(fl, an->in_z, zline, sizeof zline);
+        printf("  %-22s %s\n", "roots in z", zline);
+        if (!an->in_z) {
+            double f = fmod((an->delay + an->compute_delay) / an->h, 1.0);
+            printf("  %-22s the hold and the delay's fraction f = %.4g of a sample act like an extra delay between "
+                   "h/2 and h: for one real unstable pole p the floor is about e^{p (theta + max(f, 1 - f) h)} "
+                   "(exact for f = 0; first order in h)\n",
+                   "the hold", f > 1 - 1e-9 ? 0.0 : f);
+        }
+        puts("  The floors below are those of the sampled loop: the plant in z mapped by w = (z - 1)/(z + 1) "
+             "onto the right half plane (zeros at z = infinity to w = 1), computed there as for a plant without "
+             "delay; the inputs printed are the plant's own roots.");
+    }
     printf("\n2. Requirements: %s\n", line);
     printf("  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n  %-22s %.10g\n"
            "  %-22s %.10g\n  %-22s %.10g\n",

@@ -27,14 +27,11 @@ struct ps_limits_ws {
     double log_eps_at, log_inv_eps;      /* last band attenuation and ln(1/eps) */
     bool tail_valid;
     bool skip_effort; /* probes that do not count effort skip its Pick problem */
-    ps_sampled_ws *sampled; /* made on the first plant of a digital loop */
-    bool sampled_failed;    /* ... and could not be */
+    ps_sampled_ws *sampled; /* the digital loop's plant (limits/sampled.h) */
 };
 
 ps_sampled_ws *ps_limits_sampled(ps_limits_ws *ws)
 {
-    if (!ws->sampled && !ws->sampled_failed)
-        ws->sampled_failed = !(ws->sampled = ps_sampled_ws_new());
     return ws->sampled;
 }
 
@@ -53,6 +50,11 @@ ps_limits_ws *ps_limits_ws_new(void)
             ps_limits_ws_free(ws);
             return NULL;
         }
+    /* the digital loop's workspace too: the per-plant path allocates nothing */
+    if (!(ws->sampled = ps_sampled_ws_new())) {
+        ps_limits_ws_free(ws);
+        return NULL;
+    }
     return ws;
 }
 

@@ -21,8 +21,7 @@ void ps_limits_ws_free(ps_limits_ws *ws);
 void ps_limits_skip_effort(ps_limits_ws *ws, bool skip);
 bool ps_limits_effort_skipped(const ps_limits_ws *ws);
 
-/* The workspace of the digital loop's plant (limits/sampled.h), made on
- * first use; NULL on no memory. */
+/* The workspace of the digital loop's plant (limits/sampled.h), made with ws. */
 struct ps_sampled_ws *ps_limits_sampled(ps_limits_ws *ws);
 
 /* Bode area floor F = pi * sum Re p over RHP poles (with multiplicity). */

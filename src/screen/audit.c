@@ -155,6 +155,113 @@ static void ms_item(ps_audit *a, const ps_analysis *an, const ps_floors *fl)
     }
 }
 
+static ps_audit_item *find_item(ps_audit *a, const char *key)
+{
+    for (size_t i = 0; i < a->n; i++)
+        if (strcmp(a->item[i].key, key) == 0)
+            return &a->item[i];
+    return NULL;
+}
+
+/* Prefix an item's formula with how the sampled loop reaches it. */
+static void prefix_formula(ps_audit_item *it, const char *prefix)
+{
+    char was[PS_AUDIT_TEXT];
+    snprintf(was, sizeof was, "%s", it->formula);
+    ps_text t = ps_text_on(it->formula, sizeof it->formula);
+    ps_text_put(&t, "%s%s", prefix, was);
+}
+
+static const char SRC_SH[] = "Sung & Hara, Int. J. Control 48(6), 1988 (discrete Bode integral)";
+
+/* A digital loop: the items say what was computed for the sampled loop
+ * (README "Digital loops"), with the inputs in z, and the Nyquist floor. */
+static void sampled_items(ps_audit *out, const ps_requirements *q, const ps_floors *fl)
+{
+    const char *w_route = "on the plant in w = (z - 1)/(z + 1) (roots in z mapped; the zeros at z = infinity, "
+                          "as many as the relative degree in z, at w = 1; no delay left): ";
+    char zin[PS_AUDIT_TEXT];
+    ps_text t = ps_text_on(zin, sizeof zin);
+    ps_text_put(&t, "h = %.10g s; poles in z outside the unit circle:", fl->h);
+    size_t k = 0;
+    for (size_t i = 0; i < fl->n_zpoles && i < PS_ZMAP; i++)
+        if (hypot(fl->zpoles[i].re, fl->zpoles[i].im) > 1.0)
+            ps_text_put(&t, "%s %.10g%+.10gj", k++ ? "," : "", fl->zpoles[i].re, fl->zpoles[i].im);
+    ps_text_put(&t, "%s; finite zeros in z outside:", k ? "" : " none");
+    k = 0;
+    for (size_t j = 0; j < fl->n_zzeros && j < PS_ZMAP; j++)
+        if (hypot(fl->zzeros[j].re, fl->zzeros[j].im) > 1.0)
+            ps_text_put(&t, "%s %.10g%+.10gj%s", k++ ? "," : "", fl->zzeros[j].re, fl->zzeros[j].im,
+                        fl->zzero_sampling[j] ? " (sampling zero)" : "");
+    ps_text_put(&t, "%s; relative degree in z %d", k ? "" : " none", fl->z_rel_degree);
+
+    ps_audit_item *it = find_item(out, "bode_area");
+    if (it) {
+        set_formula(it, "F = (pi/h) sum ln|p_d| over the poles outside the unit circle (pi sum Re p for a held "
+                        "plant), the area of ln|S| over [0, pi/h] rad/s");
+        snprintf(it->inputs, sizeof it->inputs, "%s", zin);
+        it->source = SRC_SH;
+        it->assumption = fl->bode_controller_rd ? "closed loop stable; a strictly proper controller (the plant in z "
+                                                  "has direct feedthrough)"
+                                                : "closed loop stable; any proper controller (P(z) -> 0 as z -> "
+                                                  "infinity, so L(inf) = 0)";
+    }
+    const char *keys[] = {"ms_interpolation", "mt_interpolation", "effort"};
+    for (int i = 0; i < 3; i++)
+        if ((it = find_item(out, keys[i]))) {
+            prefix_formula(it, w_route);
+            snprintf(it->inputs, sizeof it->inputs, "%s", zin);
+        }
+    if ((it = find_item(out, "ms_band"))) {
+        it->value = fl->ms_band;
+        it->value_ln = fl->ms_band_ln;
+        if (q->wh > 0 && !isnan(fl->ms_band))
+            set_formula(it, "exp([F + w_b ln(1/eps) - I_h] / (w_h - w_b)), I_h the integral of the roll-off bound "
+                            "-ln(1 - delta (w_h/w)^(1+k)) over [w_h, pi/h] only (a value below 1 binds nothing)");
+        else if (q->wh > 0)
+            set_formula(it, "not applicable: the plant in z has direct feedthrough (L(inf) may be non-zero)");
+    }
+    if ((it = find_item(out, "ms_band")) && q->wh > 0)
+        it->assumption = "the future loop meets |L| <= delta (w_h/w)^(1+k) on [w_h, pi/h] (an assumption about the "
+                         "controller); L(inf) = 0";
+    if ((it = find_item(out, "ms_poisson")) && q->wb > 0) {
+        set_formula(it, "the Poisson floor at the zeros outside the unit circle (z = infinity included, at w = 1) of "
+                        "the plant in w, with the band edge tan(w_b h / 2) on the w axis");
+        t = ps_text_on(it->inputs, sizeof it->inputs);
+        ps_text_put(&t, "%s; eps = %.10g; w_b = %.10g rad/s", zin, q->eps, q->wb);
+    }
+    if ((it = find_item(out, "mt_poisson")) && q->wh > 0 && q->delta > 0) {
+        set_formula(it, "the Poisson floor at the poles of the plant in w, with the roll-off start tan(w_h h / 2) on "
+                        "the w axis and no delay left");
+        t = ps_text_on(it->inputs, sizeof it->inputs);
+        ps_text_put(&t, "%s; eps_T = %.10g; w_h = %.10g rad/s", zin, q->delta / (1 - q->delta), q->wh);
+    }
+    if (out->n < PS_AUDIT_MAX) {
+        /* before the two overall items */
+        ps_audit_item ny = {0};
+        ny.key = "ms_nyquist";
+        ny.name = "Ms Nyquist floor";
+        ny.value = fl->ms_nyquist;
+        ny.value_ln = fl->ms_nyquist_ln;
+        ny.source = SRC_SH;
+        ny.assumption = "|S| <= eps on [0, w_b] (no band: w_b = 0); L(inf) = 0";
+        if (isnan(fl->ms_nyquist))
+            snprintf(ny.formula, sizeof ny.formula, "not applicable: the plant in z has direct feedthrough");
+        else
+            snprintf(ny.formula, sizeof ny.formula,
+                     "exp([F + w_b ln(1/eps)] / (pi/h - w_b)): the area F left to [w_b, pi/h] (no roll-off "
+                     "assumption needed)");
+        snprintf(ny.inputs, sizeof ny.inputs, "F = %.10g; w_b = %.10g rad/s; eps = %.10g; pi/h = %.10g rad/s",
+                 fl->bode_area, q->wb > 0 ? q->wb : 0.0, q->wb > 0 ? q->eps : 1.0, fl->nyquist);
+        size_t at = out->n >= 2 ? out->n - 2 : out->n;
+        memmove(&out->item[at + 1], &out->item[at], (out->n - at) * sizeof out->item[0]);
+        out->item[at] = ny;
+        out->n++;
+    }
+    if ((it = find_item(out, "ms")))
+        prefix_formula(it, "with the Ms Nyquist floor among the Ms floors: ");
+}
+
 void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_floors *fl, ps_audit *out)
 {
     memset(out, 0, sizeof *out);
@@ -233,4 +340,6 @@ void ps_audit_floors(const ps_analysis *an, const ps_requirements *q, const ps_f
     it = add(out, "mt", "overall Mt floor", fl->mt, fl->mt_ln, "S + T = 1 (identity)",
              "each floor above under its own assumption");
     set_formula(it, "max(Mt interpolation, Mt Poisson, max(Ms interpolation, Ms band-forced, Ms Poisson) - 1)");
+    if (an->h > 0)
+        sampled_items(out, q, fl);
 }

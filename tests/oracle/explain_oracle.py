@@ -694,7 +694,15 @@ def run_tool(ps, src):
             for pid in ids:
                 label = "%s:%s" % (os.path.basename(cat), pid)
                 try:
-                    ex = parse(explain(ps, pid, path))
+                    text = explain(ps, pid, path)
+                    if re.search(r"^  digital loop ", text, re.M):
+                        # the floors of the sampled loop are checked by test_sampled and
+                        # test_laws_discrete (closed forms, laws with discrete controllers)
+                        why = "digital loop (no sampled form in floors_oracle.py)"
+                        skipped[why] = skipped.get(why, 0) + 1
+                        print("skipped %s: %s" % (label, why))
+                        continue
+                    ex = parse(text)
                 except (RuntimeError, ParseError, ValueError) as e:
                     print("MISMATCH %s explain: %s" % (label, e))
                     failed += 1
