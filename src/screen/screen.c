@@ -422,6 +422,32 @@ static void check_monotone(probe *pr, ps_target *t, double hi)
             return;
         }
     }
+    /* The rates a grid misses: two unstable poles with one real part and
+     * imaginary parts Delta apart meet at e^{p h} when Delta h = 2 pi k, and
+     * the held plant loses that unstable mode (pathological sampling; a
+     * complex pair at rates Im p / (pi k)). Each such rate above the limit
+     * is probed. */
+    const ps_analysis *an = pr->base;
+    for (size_t i = 0; i < an->n_poles; i++)
+        for (size_t j = i + 1; j < an->n_poles; j++) {
+            const ps_root *a = &an->poles[i], *b = &an->poles[j];
+            double delta = fabs(a->v.im - b->v.im);
+            if (a->region != PS_RHP || b->region != PS_RHP || !(delta > 0) ||
+                fabs(a->v.re - b->v.re) > 1e-9 * fmax(fabs(a->v.re), fabs(b->v.re)))
+                continue;
+            for (int k = 1; k <= 1000; k++) {
+                double x = delta / (2 * M_PI * k);
+                if (x <= lo)
+                    break;
+                if (x <= hi && probe_margin(pr, x) > 0) {
+                    t->state = PS_TARGET_NOT_MONOTONE;
+                    ps_text w = ps_text_on(t->why, sizeof t->why);
+                    ps_text_put(&w, "passes at %.4g Hz, fails again at %.6g Hz: the poles %.3g+-%.3gj rad/s alias there",
+                                lo, x, a->v.re, fabs(a->v.im));
+                    return;
+                }
+            }
+        }
 }
 
 /* The longest delay a digital loop's plant can be held with: the samples

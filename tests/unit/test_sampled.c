@@ -223,3 +223,36 @@ Test(sampled, lowest_rate_target_matches_the_closed_form)
     cr_expect_lt(rel(t->now, 100.0), 1e-12);
     cr_expect(t->passes_now == (100.0 >= want));
 }
+
+/* Pathological sampling (Kalman, Ho & Narendra 1963, from memory): an unstable
+ * pair a +- jb held at a rate b/(pi k) puts both poles on one point
+ * e^{a h}, and the held plant loses that unstable mode. The lowest passing
+ * rate is then no boundary: the target must say so, naming a failing rate
+ * that is checked here directly. */
+Test(sampled, pathological_rate_makes_the_rate_target_not_monotone)
+{
+    ps_cplx poles[3] = {{0.3, 40.0}, {0.3, -40.0}, {-5.0, 0.0}};
+    held(poles, 3, NULL, 0, 2000.0, 0.0, 1.0 / 200.0, 0.0);
+    plant.compute_delay_samples = 0.0;
+    an.compute_delay_samples = 0.0;
+    ps_requirements q = loose;
+    q.mt_allowed = 1.5;
+    q.ms_allowed = 3.0;
+    plant.req = q;
+    ps_floors_compute(lws, &an, &q, &fl);
+    ps_screen_ws *ws = ps_screen_ws_new();
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT};
+    ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL};
+    static ps_summary s;
+    ps_screen_assess(ws, &o, &opt, &s);
+    ps_screen_ws_free(ws);
+    const ps_target *t = &s.target[PS_TARGET_SAMPLE_RATE];
+    cr_assert_eq(t->state, PS_TARGET_NOT_MONOTONE, "state %s: %s", ps_target_state_name(t->state), t->why);
+    double x = 40.0 / M_PI; /* b / pi */
+    cr_expect_not_null(strstr(t->why, "12.7324"), "%s", t->why);
+    ps_analysis at = an;
+    at.h = 1.0 / x;
+    ps_floors fx;
+    ps_floors_compute(lws, &at, &q, &fx);
+    cr_expect_gt(fx.mt, q.mt_allowed, "at %.10g Hz the Mt floor %g must fail", x, fx.mt);
+}
