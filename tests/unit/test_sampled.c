@@ -256,3 +256,25 @@ Test(sampled, pathological_rate_makes_the_rate_target_not_monotone)
     ps_floors_compute(lws, &at, &q, &fx);
     cr_expect_gt(fx.mt, q.mt_allowed, "at %.10g Hz the Mt floor %g must fail", x, fx.mt);
 }
+
+/* An unstable plant with no rolloff_start is judged when it has a sample
+ * rate (the Nyquist frequency is its bandwidth limit), and is
+ * needs-bandwidth without one. */
+Test(sampled, sample_rate_judges_an_unstable_plant_without_rolloff)
+{
+    ps_screen_ws *ws = ps_screen_ws_new();
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_NONE};
+    static ps_summary s;
+    for (int sampled = 0; sampled <= 1; sampled++) {
+        held(&(ps_cplx){2.71, 0}, 1, NULL, 0, 1.0, 0.0, sampled ? 0.0037 : 0.0, sampled ? 0.0037 : 0.0);
+        plant.req = loose;
+        ps_floors_compute(lws, &an, &loose, &fl);
+        ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL};
+        ps_screen_assess(ws, &o, &opt, &s);
+        if (sampled)
+            cr_expect_eq(s.verdict, PS_VERDICT_CLEAR, "sampled: %s (%s)", ps_verdict_name(s.verdict), s.cause);
+        else
+            cr_expect_eq(s.verdict, PS_VERDICT_NEEDS_BANDWIDTH, "continuous: %s", ps_verdict_name(s.verdict));
+    }
+    ps_screen_ws_free(ws);
+}
