@@ -297,6 +297,10 @@ _Static_assert(sizeof LONGEST_PLANT_NOTE_WITHOUT_ROOM - 1 + 2 + sizeof ROLLOFF_N
 
 static void sampled_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out);
 
+/* Above this many RHP zeros (with multiplicity) and more zeros than poles,
+ * the joint floor without delay is taken from the poles' problem alone. */
+enum { CONFLUENT_ZEROS_MAX = 8 };
+
 void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
 {
     if (an->h > 0) {
@@ -353,7 +357,12 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
                  * a repeated one (a zero near z = infinity in a sampled loop)
                  * makes the problem at the zeros the worse conditioned: the
                  * better one is taken for both. */
-                if (confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &gz, &c2, &d) == PS_OK && c2 <= 10 * c1) {
+                /* A large problem at the zeros (many zeros at z = infinity: a
+                 * long delay in samples) costs far more than the one at the
+                 * poles and is the worse conditioned: it is not formed. */
+                bool zeros_side = nz <= CONFLUENT_ZEROS_MAX || nz <= np;
+                if (zeros_side && confluent(ws, AT_ZEROS_S, an, z, nz, p, np, &gz, &c2, &d) == PS_OK &&
+                    c2 <= 10 * c1) {
                     ms_i = big_max(gz, ms_single);
                     mt_i = big_max(gz, mt_single);
                 } else {
