@@ -370,8 +370,10 @@ static ps_floors held_floors(const ps_cplx *poles, size_t np, const ps_cplx *zer
     snprintf(p->id, sizeof p->id, "held");
     p->n_poles = np;
     p->n_zeros = nz;
-    memcpy(p->poles, poles, np * sizeof poles[0]);
-    memcpy(p->zeros, zeros, nz * sizeof zeros[0]);
+    if (np)
+        memcpy(p->poles, poles, np * sizeof poles[0]);
+    if (nz)
+        memcpy(p->zeros, zeros, nz * sizeof zeros[0]);
     p->gain = gain;
     ps_plant_mark(p, PS_F_ID, 1, 1);
     ps_plant_mark(p, PS_F_POLES, 2, 1);
