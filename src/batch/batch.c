@@ -85,6 +85,7 @@ struct ps_batch {
     ps_batch_counts counts;
     const char *file;
     bool defer;      /* the sink analyses checked plants itself */
+    char title[PS_NOTE_MAX]; /* the last catalog's title */
 };
 
 ps_batch *ps_batch_new(ps_outcome_fn fn, void *ctx)
@@ -218,10 +219,15 @@ void ps_batch_on_family(ps_batch *b, ps_family_done_fn fn)
 ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag)
 {
     b->file = path;
-    ps_status st = ps_catalog_read_families(path, b->scratch, on_entry, on_family, b, fdiag);
+    ps_status st = ps_catalog_read_titled(path, b->scratch, on_entry, on_family, b, fdiag, b->title, sizeof b->title);
     if (st != PS_OK)
         b->counts.files_failed++;
     return st;
+}
+
+const char *ps_batch_title(const ps_batch *b)
+{
+    return b->title;
 }
 
 const ps_batch_counts *ps_batch_counts_get(const ps_batch *b)

@@ -41,6 +41,8 @@ void ps_batch_free(ps_batch *b);
 ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag);
 
 const ps_batch_counts *ps_batch_counts_get(const ps_batch *b);
+/* The title of the catalog ps_batch_run read last ("" when it has none). */
+const char *ps_batch_title(const ps_batch *b);
 
 /* Deliver checked plants without their root analysis and floors, for a sink
  * that works them out elsewhere (the screening pool). Such plants count as

@@ -29,8 +29,16 @@ ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, v
 ps_status ps_catalog_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
                                    void *ctx, ps_diag *fdiag)
 {
+    return ps_catalog_read_titled(path, scratch, fn, ffn, ctx, fdiag, NULL, 0);
+}
+
+ps_status ps_catalog_read_titled(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn, void *ctx,
+                                 ps_diag *fdiag, char *title, size_t title_cap)
+{
+    if (title && title_cap)
+        title[0] = '\0';
     if (has_ending(path, ".yaml") || has_ending(path, ".yml"))
-        return ps_yaml_read_families(path, scratch, fn, ffn, ctx, fdiag);
+        return ps_yaml_read_titled(path, scratch, fn, ffn, ctx, fdiag, title, title_cap);
     if (has_ending(path, ".csv"))
         return ps_csv_read(path, scratch, fn, ctx, fdiag);
     ps_diag_clear(fdiag);

@@ -80,6 +80,17 @@ ps_status ps_csv_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void 
 ps_status ps_catalog_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void *ctx,
                           ps_diag *fdiag);
 
+/* ps_yaml_read_families that also copies the top-level `catalog` title into
+ * title (title_cap bytes, cut to fit; "" when the file has none). A title
+ * that is not valid UTF-8 or holds a control character ends the read as a
+ * break in the file, like any other malformed top-level value. */
+ps_status ps_yaml_read_titled(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn, void *ctx,
+                              ps_diag *fdiag, char *title, size_t title_cap);
+
+/* ps_catalog_read_families with the title of a YAML catalog (CSV: ""). */
+ps_status ps_catalog_read_titled(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn, void *ctx,
+                                 ps_diag *fdiag, char *title, size_t title_cap);
+
 /* ps_catalog_read with a family hook (YAML only; CSV has no families). */
 ps_status ps_catalog_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
                                    void *ctx, ps_diag *fdiag);

@@ -117,6 +117,8 @@ typedef struct yaml_rd {
     bool stop; /* fn asked to stop */
     ps_status status;
     ps_diag *fdiag;
+    char *title;        /* the caller's room for the `catalog` title, or NULL */
+    size_t title_cap;
 } yaml_rd;
 
 /* ---- diagnostics --------------------------------------------------------- */
@@ -1259,6 +1261,23 @@ static void read_stream(yaml_rd *r)
                       kind_name(v.type));
                 return;
             }
+            size_t at;
+            char why[200];
+            if (ps_catalog_text_check(v.value, v.len, true, &at, why, sizeof why) != 0) {
+                char *paren = strstr(why, " (refused");
+                if (paren)
+                    *paren = '\0'; /* its reason speaks of ids */
+                fatal(r, PS_ERR_SYNTAX, v.line, v.col, key,
+                      "catalog title: %s (refused: the title is printed on terminals and in every report)", why);
+                return;
+            }
+            if (r->title) {
+                size_t n = v.len < r->title_cap ? v.len : r->title_cap - 1;
+                while (n < v.len && n > 0 && ((unsigned char)v.value[n] & 0xC0) == 0x80)
+                    n--; /* cut at a character boundary */
+                memcpy(r->title, v.value, n);
+                r->title[n] = '\0';
+            }
         } else if (seen == &have_families) {
             if (!read_families(r, &v))
                 return;
@@ -1295,6 +1314,14 @@ ps_status ps_yaml_read(const char *path, ps_plant *scratch, ps_entry_fn fn, void
 ps_status ps_yaml_read_families(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn,
                                 void *ctx, ps_diag *fdiag)
 {
+    return ps_yaml_read_titled(path, scratch, fn, ffn, ctx, fdiag, NULL, 0);
+}
+
+ps_status ps_yaml_read_titled(const char *path, ps_plant *scratch, ps_entry_fn fn, ps_family_fn ffn, void *ctx,
+                              ps_diag *fdiag, char *title, size_t title_cap)
+{
+    if (title && title_cap)
+        title[0] = '\0';
     FILE *f;
     ps_status open_st = ps_catalog_open(path, &f, fdiag);
     if (open_st != PS_OK)
@@ -1319,6 +1346,8 @@ ps_status ps_yaml_read_families(const char *path, ps_plant *scratch, ps_entry_fn
     r->ctx = ctx;
     r->buf = buf;
     r->fdiag = fdiag;
+    r->title = title_cap ? title : NULL;
+    r->title_cap = title_cap;
     ps_plant_reset(defaults);
     snprintf(r->entry_diag.file, sizeof r->entry_diag.file, "%s", path);
     yaml_parser_set_input(&r->parser, read_input, r);

@@ -304,6 +304,8 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
         }
         ps_diag fd = {0};
         ps_status st = ps_batch_run(b, files[i], &fd);
+        if (ps_run_catalog_title(&c->run, ps_batch_title(b)) != PS_OK)
+            c->nomem = true;
         if (c->pool && ps_pool_flush(c->pool) != PS_OK)
             c->nomem = true;
         if (st != PS_OK) {
@@ -400,6 +402,11 @@ static void interrupts_hold(void)
         sigaddset(&set, interrupt_signals[k]);
     sigprocmask(SIG_BLOCK, &set, NULL);
 }
+
+/* The whole command line, for the provenance of the reports (argv[0] as
+ * "plantsieve", so no report names the directory the program sits in). */
+static int whole_argc;
+static char **whole_argv;
 
 static int cmd_screen(int argc, char **argv)
 {
@@ -521,6 +528,8 @@ static int cmd_screen(int argc, char **argv)
     }
     screen_ctx c = {0};
     ps_run_init(&c.run, &opt);
+    if (ps_run_set_meta(&c.run, whole_argc, whole_argv) != PS_OK)
+        c.nomem = true;
     c.ws = ps_screen_ws_new();
     c.pool = ps_pool_new(threads, &c.run, say_entry_error, &c);
     progress pg = {0};
@@ -543,6 +552,8 @@ static int cmd_screen(int argc, char **argv)
         return EXIT_IO;
     }
     ps_run_rank(&c.run);
+    if (files)
+        ps_run_digest_catalogs(&c.run); /* the bytes each report says it was made from */
     int rc = EXIT_CLEAN;
     bool io_failed = !read_ok;
     snprintf(full, sizeof full, "%s/%s.screen.txt", screen_set.published, stem);
@@ -860,6 +871,8 @@ int main(int argc, char **argv)
     /* Numbers are read and written in the C locale whatever the environment says. */
     setlocale(LC_ALL, "C");
     ps_roots_init();
+    whole_argc = argc;
+    whole_argv = argv;
     if (argc < 2)
         return usage_error("no command given", NULL);
     const char *cmd = argv[1];

@@ -3,6 +3,7 @@
 #include "screen/screen.h"
 
 #include <complex.h>
+#include <errno.h>
 #include <float.h>
 #include <math.h>
 #include <stddef.h>
@@ -11,9 +12,11 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/types.h>
+#include <time.h>
 #include <unistd.h>
 
 #include "core/complex_make.h"
+#include "core/sha256.h"
 #include "core/text.h"
 #include "limits/limits.h"
 
@@ -695,6 +698,7 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     s->order = order;
     s->file_index = file_index;
     snprintf(s->id, sizeof s->id, "%s", o->p->id);
+    snprintf(s->note, sizeof s->note, "%s", o->p->note);
     s->line = o->p->line;
     s->worst = "none";
     s->share_ms = s->share_mt = s->share_effort = NAN;
@@ -796,8 +800,10 @@ void ps_run_free(ps_run *r)
     for (size_t i = 0; i < r->n_catalogs; i++) {
         free(r->catalogs[i].file);
         free(r->catalogs[i].error);
+        free(r->catalogs[i].title);
     }
     free(r->catalogs);
+    free(r->meta.command_line);
     free(r->rows);
     free(r->families);
     if (r->store) {
@@ -827,6 +833,90 @@ ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag)
     free(e->error);
     e->error = dup_str(fdiag->text);
     return e->error ? PS_OK : PS_ERR_NOMEM;
+}
+
+ps_status ps_run_catalog_title(ps_run *r, const char *title)
+{
+    if (!r->n_catalogs || !title || !title[0])
+        return PS_OK;
+    ps_catalog_entry *e = &r->catalogs[r->n_catalogs - 1];
+    free(e->title);
+    e->title = dup_str(title);
+    return e->title ? PS_OK : PS_ERR_NOMEM;
+}
+
+void ps_run_digest_catalogs(ps_run *r)
+{
+    for (size_t i = 0; i < r->n_catalogs; i++) {
+        ps_catalog_entry *e = &r->catalogs[i];
+        if (ps_sha256_file(e->file, e->sha256, &e->bytes) != 0)
+            e->sha256[0] = '\0';
+    }
+}
+
+/* Append arg to t, in single quotes unless it is made only of characters a
+ * POSIX shell takes literally. */
+static void put_arg(ps_text *t, const char *arg)
+{
+    bool plain = arg[0] != '\0';
+    for (const char *q = arg; *q && plain; q++)
+        plain = strchr("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789-_./=:,+@%", *q) != NULL;
+    if (plain) {
+        ps_text_put(t, "%s", arg);
+        return;
+    }
+    ps_text_put(t, "'");
+    for (const char *q = arg; *q; q++) {
+        if (*q == '\'')
+            ps_text_put(t, "'\\''");
+        else
+            ps_text_put(t, "%c", *q);
+    }
+    ps_text_put(t, "'");
+}
+
+bool ps_run_meta_date(ps_run_meta *m, const char *epoch, const char **why)
+{
+    m->date[0] = '\0';
+    if (!epoch || !epoch[0]) {
+        *why = "not set";
+        return false;
+    }
+    char *end;
+    errno = 0;
+    long long secs = strtoll(epoch, &end, 10);
+    if (*end || errno || secs < 0 || epoch[0] == '-' || epoch[0] == '+' || epoch[0] == ' ') {
+        *why = "not a non-negative whole number of seconds";
+        return false;
+    }
+    time_t tt = (time_t)secs;
+    struct tm tm;
+    if ((long long)tt != secs || !gmtime_r(&tt, &tm) || tm.tm_year > 9999 - 1900) {
+        *why = "out of range";
+        return false;
+    }
+    strftime(m->date, sizeof m->date, "%Y-%m-%dT%H:%M:%SZ", &tm);
+    return true;
+}
+
+ps_status ps_run_set_meta(ps_run *r, int argc, char *const argv[])
+{
+    size_t need = 1;
+    for (int i = 0; i < argc; i++)
+        need += 4 * strlen(argv[i]) + 3;
+    free(r->meta.command_line);
+    r->meta.command_line = malloc(need);
+    if (!r->meta.command_line)
+        return PS_ERR_NOMEM;
+    ps_text t = ps_text_on(r->meta.command_line, need);
+    for (int i = 0; i < argc; i++) {
+        if (i)
+            ps_text_put(&t, " ");
+        put_arg(&t, i == 0 ? "plantsieve" : argv[i]);
+    }
+    const char *why;
+    ps_run_meta_date(&r->meta, getenv("SOURCE_DATE_EPOCH"), &why);
+    return PS_OK;
 }
 
 ps_status ps_run_add_catalog(ps_run *r, const char *file, const ps_diag *fdiag)
@@ -891,7 +981,7 @@ typedef struct span {
 #define LIST(f, n) {offsetof(ps_summary, f), sizeof SUMMARY_FIELD(f), offsetof(ps_summary, n), sizeof SUMMARY_FIELD(f)[0]}
 
 static const span spans[] = {
-    TEXT(id),           TEXT(cause),
+    TEXT(id),           TEXT(note),           TEXT(cause),
     LIST(fl.zpoles, fl.n_zpoles), LIST(fl.zzeros, fl.n_zzeros), LIST(fl.zzero_sampling, fl.n_zzeros),
     TEXT(fl.note),        TEXT(target[0].why),  TEXT(target[1].why),
     TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  TEXT(target[5].why), TEXT(target[6].why),

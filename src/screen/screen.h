@@ -78,6 +78,7 @@ typedef struct ps_summary {
     size_t order;               /* position in the run (catalog order), 0-based */
     size_t file_index;          /* into the run's catalog list */
     char id[PS_ID_MAX];
+    char note[PS_NOTE_MAX];     /* the plant's note from the catalog ("" when none) */
     size_t line;
     ps_verdict verdict;
     double severity;            /* max share; INFINITY when not stabilizable, NAN for input errors */
@@ -160,7 +161,17 @@ typedef struct ps_catalog_entry {
     bool failed;
     size_t line, col;
     char *error;
+    char *title;                /* the YAML `catalog` title; NULL when none */
+    char sha256[65];            /* digest of the file's bytes ("" when not taken) */
+    uint64_t bytes;             /* the file's size when the digest was taken */
 } ps_catalog_entry;
+
+/* Where a run came from, for the first page of every report. */
+typedef struct ps_run_meta {
+    char *command_line;         /* the arguments, quoted for a POSIX shell where needed; NULL: none */
+    char date[40];              /* UTC, ISO 8601, from SOURCE_DATE_EPOCH; "" without it (no date, so
+                                   two runs on the same input are byte-identical) */
+} ps_run_meta;
 
 /* Rows kept in memory; beyond this a run moves its summaries to a
  * temporary file (deleted on exit) and keeps a 32-byte rank key per plant;
@@ -213,6 +224,7 @@ typedef struct ps_run {
     size_t per_verdict[PS_VERDICT_COUNT];
     size_t id_len_max;          /* longest plant id among the rows */
     ps_batch_counts counts;
+    ps_run_meta meta;
 } ps_run;
 
 void ps_run_init(ps_run *r, const ps_screen_opts *opt);
@@ -221,6 +233,18 @@ void ps_run_free(ps_run *r);
  * to it. ps_run_catalog_failed marks the last one as not read to the end. */
 ps_status ps_run_add_catalog(ps_run *r, const char *file, const ps_diag *fdiag);
 ps_status ps_run_catalog_failed(ps_run *r, const ps_diag *fdiag);
+/* The last catalog's title (NULL or "" for none) and the digest of its bytes
+ * (ps_sha256_file; NULL path: not taken). PS_ERR_NOMEM or PS_OK. */
+ps_status ps_run_catalog_title(ps_run *r, const char *title);
+/* Take the SHA-256 of every catalog file of the run; a file that cannot be
+ * read again keeps an empty digest. */
+void ps_run_digest_catalogs(ps_run *r);
+/* Record the command line (argv[0..argc), quoted; argv[0] written as
+ * "plantsieve", so that no report names the directory the program is in) and the date from the
+ * environment's SOURCE_DATE_EPOCH (a decimal count of seconds since 1970;
+ * anything else leaves the date empty and returns false with why set). */
+ps_status ps_run_set_meta(ps_run *r, int argc, char *const argv[]);
+bool ps_run_meta_date(ps_run_meta *m, const char *epoch, const char **why);
 /* Room for the next summary (NULL on no memory); ps_run_commit keeps it. */
 ps_summary *ps_run_next(ps_run *r);
 void ps_run_commit(ps_run *r);
