@@ -18,6 +18,11 @@
 /* The caution every report carries (one paragraph, plain text). */
 extern const char ps_caution_text[];
 
+/* A mark per verdict, different in shape for each, so that a verdict reads
+ * without colour (colour-blind readers, greyscale print): every report puts
+ * it beside the verdict word. UTF-8, one character. */
+const char *ps_verdict_mark(ps_verdict v);
+
 /* One sentence on what a verdict means (README "Verdicts"). */
 const char *ps_verdict_meaning(ps_verdict v);
 

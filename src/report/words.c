@@ -28,6 +28,20 @@ void ps_unread_text(size_t line, char *out, size_t n)
                          "line number, and their number is not known");
 }
 
+const char *ps_verdict_mark(ps_verdict v)
+{
+    switch (v) {
+    case PS_VERDICT_CLEAR: return "\u25CB";           /* white circle */
+    case PS_VERDICT_MARGINAL: return "\u25D0";        /* circle, left half black */
+    case PS_VERDICT_REDESIGN: return "\u25CF";        /* black circle */
+    case PS_VERDICT_UNSTABILIZABLE: return "\u2716";  /* heavy multiplication x */
+    case PS_VERDICT_NEEDS_BANDWIDTH: return "\u25B3"; /* white up-pointing triangle */
+    case PS_VERDICT_UNREAD: return "\u25A1";          /* white square */
+    case PS_VERDICT_COUNT: break;
+    }
+    return "?";
+}
+
 const char *ps_verdict_meaning(ps_verdict v)
 {
     switch (v) {
