@@ -130,7 +130,7 @@ static void ser_mul_exp(double complex *a, unsigned m, double complex s0, double
         a[k] = out[k];
 }
 
-/* The functions interpolated at repeated points (README "Floors"):
+/* The functions interpolated at repeated points (docs/method.md "Floors"):
  * T at the RHP poles: e^{theta s} / B_z(s); S at the RHP zeros: 1 / B_p(s);
  * effort at the RHP poles: e^{theta s} / G_s(s). */
 enum interp_kind { AT_POLES_T, AT_ZEROS_S, AT_POLES_EFFORT };
@@ -577,7 +577,7 @@ void ps_floors_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requireme
     size_t np = rhp(an->poles, an->n_poles, p), nz = rhp(an->zeros, an->n_zeros, z);
     double theta = an->delay;
 
-    /* Requirement-dependent floors (README "Floors"). */
+    /* Requirement-dependent floors (docs/method.md "Floors"). */
     band_floors(ws, z, nz, p, np, req, out);
     bool rolloff = req && req->wh > 0;
     out->mt_poisson = out->mt_poisson_ln = NAN;

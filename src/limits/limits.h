@@ -1,6 +1,6 @@
 /* limits.h - floors that a plant's RHP poles, RHP zeros and delay put on the
  * achievable sensitivity, for every stabilizing controller. Formulas and
- * sources: README "Floors" and the comments in limits.c. */
+ * sources: docs/method.md "Floors" and the comments in limits.c. */
 #ifndef PS_LIMITS_H
 #define PS_LIMITS_H
 

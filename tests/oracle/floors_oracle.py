@@ -3,7 +3,7 @@
 Checks every value under `floors` (bode_area, ms, mt, ms_interpolation,
 mt_interpolation, ms_band, ms_poisson, mt_poisson, effort, limiting, window)
 and the echoed requirements, recomputed here with numpy/scipy from the
-formulas in README "Floors" and the limits reference sheet, not from plantsieve's
+formulas in docs/method.md "Floors" and the limits reference sheet, not from plantsieve's
 C code. The plants are read from the catalog itself (PyYAML), roots found with
 numpy.roots / scipy eigenvalues; without PyYAML the inputs (poles, zeros,
 gain, delay, requirements; never the floors) are taken from the tool's JSON.
