@@ -25,7 +25,8 @@ static const char plot_style[] =
     ".psplot .bar-unstab{stroke:#000;stroke-width:1}"
     ".psplot .bar-unread{fill:#fff;stroke:#000;stroke-width:.6;stroke-dasharray:2 1}"
     ".psplot .bar-take{fill:#404040;stroke:#000;stroke-width:.6}"
-    ".psplot .bar-give{fill:#fff;stroke:#000;stroke-width:1;stroke-dasharray:3 2}"
+    ".psplot .bar-give{fill:#e8e8e8;stroke:#000;stroke-width:1;stroke-dasharray:2 2}"
+    ".psplot .bar-room{fill:#fff;stroke:#000;stroke-width:1.2;stroke-dasharray:6 3}"
     ".psplot .bar-rest{fill:#b0b0b0;stroke:#000;stroke-width:.6}";
 
 void ps_plot_escape(FILE *f, const char *s)
@@ -74,10 +75,21 @@ size_t ps_plot_ticks(const ps_plot_axis *a, double *out, size_t max)
             out[n++] = fabs(k) < 0.5 ? 0.0 : k * step; /* no "-1e-19" where the axis crosses zero */
         break;
     }
-    case PS_SCALE_LOG:
-        for (double e = ceil(log10(a->lo) - 1e-9); e <= log10(a->hi) + 1e-9 && n < max; e += 1)
-            out[n++] = pow(10.0, e);
+    case PS_SCALE_LOG: {
+        /* Powers of ten; over two decades or less also 2 and 5 times them,
+         * over one or less 1.5, 2, 3, 5 and 7 times them. */
+        static const double m1[] = {1, 1.5, 2, 3, 5, 7}, m2[] = {1, 2, 5}, m3[] = {1};
+        double decades = log10(a->hi) - log10(a->lo);
+        const double *m = decades <= 1 ? m1 : decades <= 2 ? m2 : m3;
+        size_t nm = decades <= 1 ? 6 : decades <= 2 ? 3 : 1;
+        for (double e = floor(log10(a->lo)); e <= log10(a->hi) + 1e-9; e += 1)
+            for (size_t j = 0; j < nm && n < max; j++) {
+                double v = m[j] * pow(10.0, e);
+                if (v >= a->lo * (1 - 1e-12) && v <= a->hi * (1 + 1e-12))
+                    out[n++] = v;
+            }
         break;
+    }
     case PS_SCALE_SYMLOG: {
         int kmax = 0;
         double big = fmax(fabs(a->lo), fabs(a->hi));
@@ -219,9 +231,9 @@ void ps_plot_axes(ps_plot *p)
     }
     ps_plot_rect_px(p, L, T, p->pw, p->ph, "frame");
     if (p->x.title)
-        ps_plot_text_px(p, L + p->pw / 2, B + 32, "middle", "", 0, p->x.title);
+        ps_plot_text_px(p, L + p->pw / 2, B + 32, "middle", "axis-title", 0, p->x.title);
     if (p->y.title)
-        ps_plot_text_px(p, 14, T + p->ph / 2, "middle", "", -90, p->y.title);
+        ps_plot_text_px(p, 14, T + p->ph / 2, "middle", "axis-title", -90, p->y.title);
 }
 
 /* ---- drawing ---- */

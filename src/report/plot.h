@@ -63,7 +63,9 @@ double ps_plot_nice_step(double span, double target);
 
 /* The ticks of an axis, ascending, into out (at most max); returns the count.
  * Linear: multiples of ps_plot_nice_step(hi - lo, 6) within [lo, hi]; log:
- * the powers of ten within [lo, hi]; symlog: 0 and +-c 10^k within [lo, hi]. */
+ * the powers of ten within [lo, hi] (over two decades or less also 2 and 5
+ * times them, over one or less 1.5, 2, 3, 5, 7 times them); symlog: 0 and
+ * +-c 10^k within [lo, hi]. */
 size_t ps_plot_ticks(const ps_plot_axis *a, double *out, size_t max);
 
 /* A tick label: "%.4g" (with enough digits that ticks step apart), powers of
