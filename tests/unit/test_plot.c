@@ -236,12 +236,14 @@ Test(plot, demo_figures_are_well_formed_with_one_linear_region_and_units)
 
 Test(plot, budget_adds_up_to_the_band_floor)
 {
-    char path[] = "/tmp/ps_budget_XXXXXX.yaml";
-    int fd = mkstemps(path, 5);
-    cr_assert_geq(fd, 0);
-    FILE *f = fdopen(fd, "w");
+    char dir[] = "/tmp/ps_budget_XXXXXX", path[64];
+    cr_assert_not_null(mkdtemp(dir));
+    snprintf(path, sizeof path, "%s/budget.yaml", dir);
+    FILE *f = fopen(path, "w");
+    cr_assert_not_null(f);
     fputs(budget_catalog, f);
     fclose(f);
     check_run(path, true);
     unlink(path);
+    rmdir(dir);
 }
