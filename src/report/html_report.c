@@ -371,11 +371,14 @@ static void pz_map(FILE *f, const ps_summary *s)
 {
     size_t np = s->n_poles < PS_MAP_MAX ? s->n_poles : PS_MAP_MAX;
     size_t nz = s->n_zeros < PS_MAP_MAX ? s->n_zeros : PS_MAP_MAX;
-    double big = 0;
+    double big = 0, small = INFINITY;
     for (size_t i = 0; i < np + nz; i++) {
         ps_cplx v = i < np ? s->poles[i] : s->zeros[i - np];
-        if (isfinite(v.re) && isfinite(v.im))
-            big = fmax(big, fmax(fabs(v.re), fabs(v.im)));
+        if (!isfinite(v.re) || !isfinite(v.im))
+            continue;
+        big = fmax(big, fmax(fabs(v.re), fabs(v.im)));
+        if (hypot(v.re, v.im) > 0)
+            small = fmin(small, hypot(v.re, v.im));
     }
     double ext = pz_linear;
     int decades = 0;
@@ -419,6 +422,10 @@ static void pz_map(FILE *f, const ps_summary *s)
             pz_linear, pz_linear);
     if (s->n_poles > PS_MAP_MAX || s->n_zeros > PS_MAP_MAX)
         fprintf(f, " Only the first %d of %zu poles and %zu zeros are drawn.", PS_MAP_MAX, s->n_poles, s->n_zeros);
+    if (small < 0.05 * pz_linear)
+        fprintf(f, " Roots closer than %g rad/s to the origin (the smallest %.3g rad/s) sit within a few pixels of "
+                   "it at this scale; their values are in the JSON report.",
+                0.05 * pz_linear, small);
     if (s->delay > 0)
         fprintf(f, " The delay of %.4g s is not a root and is not drawn.", s->delay);
     fprintf(f, "</figcaption>\n</figure>\n");

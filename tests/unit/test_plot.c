@@ -118,6 +118,29 @@ Test(plot, escapes_every_text)
     free(buf);
 }
 
+/* A series breaks at a missing value; a step line holds each value until
+ * the next x (a horizontal then a vertical segment). Axis 0 .. 10 onto 100 px. */
+Test(plot, series_break_at_gaps_and_step)
+{
+    char *buf = NULL;
+    size_t len = 0;
+    FILE *f = open_memstream(&buf, &len);
+    cr_assert_not_null(f);
+    ps_plot p = {.f = f};
+    ps_plot_area(&p, 0, 0, 100, 100);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_LINEAR, .lo = 0, .hi = 10};
+    p.y = p.x;
+    const double x[] = {1, 2, 3, NAN, 5, 6, 7, 8, 9}, y[] = {1, 3, 2, 4, 7, 9, NAN, 5, 6};
+    ps_plot_series(&p, x, y, 9, false, "a");
+    ps_plot_series(&p, x, y, 3, true, "b");
+    fclose(f);
+    cr_expect_str_eq(buf, "<polyline class=\"a\" points=\"10.0,90.0 20.0,70.0 30.0,80.0\"/>\n"
+                          "<polyline class=\"a\" points=\"50.0,30.0 60.0,10.0\"/>\n"
+                          "<polyline class=\"a\" points=\"80.0,50.0 90.0,40.0\"/>\n"
+                          "<polyline class=\"b\" points=\"10.0,90.0 20.0,90.0 20.0,70.0 30.0,70.0 30.0,80.0\"/>\n");
+    free(buf);
+}
+
 /* ---- the figures of a real run ---- */
 
 /* Plants of the budget check: one band requirement each, the band floor
