@@ -477,9 +477,10 @@ void ps_floors_plant(ps_limits_ws *ws, const ps_analysis *an, ps_floors *out)
 static void band_floors(ps_limits_ws *ws, const ps_cplx *z, size_t nz, const ps_cplx *p, size_t np,
                         const ps_requirements *req, ps_floors *out)
 {
-    out->ms_band = out->ms_poisson = out->ms_band_ln = out->ms_poisson_ln = NAN;
+    out->ms_band = out->ms_poisson = out->ms_band_ln = out->ms_poisson_ln = out->band_tail = NAN;
     bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
     if (rolloff) {
+        out->band_tail = ps_rolloff_tail_ws(ws, req->wh, req->delta, req->k);
         out->ms_band_ln = ps_band_floor_ln_ws(ws, out->bode_area, band ? req->wb : 0.0, band ? req->eps : 1.0,
                                               req->wh, req->delta, req->k);
         out->ms_band = exp(out->ms_band_ln);
@@ -634,7 +635,7 @@ static void sampled_unknown(const ps_analysis *an, const char *why, ps_floors *o
     out->nyquist = M_PI / an->h;
     out->ms = out->mt = out->ms_interpolation = out->mt_interpolation = out->effort = NAN;
     out->ms_ln = out->mt_ln = out->ms_interpolation_ln = out->mt_interpolation_ln = out->effort_ln = NAN;
-    out->ms_band = out->ms_band_ln = out->ms_poisson = out->ms_poisson_ln = NAN;
+    out->ms_band = out->ms_band_ln = out->ms_poisson = out->ms_poisson_ln = out->band_tail = NAN;
     out->mt_poisson = out->mt_poisson_ln = out->ms_nyquist = out->ms_nyquist_ln = NAN;
     out->bode_area = out->crossover_min = out->crossover_max = NAN;
     out->limiting = "none";
@@ -734,7 +735,7 @@ static void sampled_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requ
     double h = v->h, W = M_PI / h;
     bool band = req && req->wb > 0, rolloff = req && req->wh > 0;
     double wb = band ? req->wb : 0.0, eps = band ? req->eps : 1.0;
-    out->ms_band = out->ms_band_ln = out->ms_poisson = out->ms_poisson_ln = NAN;
+    out->ms_band = out->ms_band_ln = out->ms_poisson = out->ms_poisson_ln = out->band_tail = NAN;
     out->mt_poisson = out->mt_poisson_ln = out->ms_nyquist = out->ms_nyquist_ln = NAN;
     double lead = out->bode_area + (band ? wb * log(1.0 / eps) : 0.0);
     if (!v->feedthrough) {
@@ -744,7 +745,8 @@ static void sampled_apply(ps_limits_ws *ws, const ps_analysis *an, const ps_requ
         out->ms_nyquist_ln = wb < W ? lead / (W - wb) : INFINITY;
         out->ms_nyquist = exp(out->ms_nyquist_ln);
         if (rolloff && req->wh > wb) {
-            out->ms_band_ln = (lead - rolloff_part(req->wh, W, req->delta, req->k)) / (req->wh - wb);
+            out->band_tail = rolloff_part(req->wh, W, req->delta, req->k);
+            out->ms_band_ln = (lead - out->band_tail) / (req->wh - wb);
             out->ms_band = exp(out->ms_band_ln);
         }
     }

@@ -57,6 +57,10 @@ typedef struct ps_floors {
      * with a NAN value; +INFINITY only with infinite. */
     double ms_ln, mt_ln, ms_interpolation_ln, mt_interpolation_ln, effort_ln, ms_band_ln, ms_poisson_ln,
         mt_poisson_ln;
+    double band_tail;        /* the log-area (rad/s) the roll-off bound lets the band floor take back past
+                                wh: I = wh sum delta^n / (n (n (1+k) - 1)), for a digital loop each term cut
+                                at pi/h; ln ms_band = (bode_area + wb ln(1/eps) - band_tail) / (wh - wb).
+                                NAN when ms_band is NAN */
     double crossover_min, crossover_max; /* rules of thumb; max INFINITY when unbounded */
     bool window_open;
     double cond;             /* largest condition estimate of the interpolation matrices */

@@ -94,7 +94,7 @@ double ps_rolloff_tail(double wh, double delta, double k)
     return wh * sum;
 }
 
-double ps_band_floor_ln_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)
+double ps_rolloff_tail_ws(ps_limits_ws *ws, double wh, double delta, double k)
 {
     /* The tail series depends on delta and k only (I = w_h * sum): a run
      * with shared requirements sums it once. */
@@ -104,12 +104,18 @@ double ps_band_floor_ln_ws(ps_limits_ws *ws, double F, double wb, double eps, do
         ws->tail_k = k;
         ws->tail_valid = true;
     }
+    return wh * ws->tail_sum;
+}
+
+double ps_band_floor_ln_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)
+{
+    double tail = ps_rolloff_tail_ws(ws, wh, delta, k);
     if (wb > 0 && eps != ws->log_eps_at) { /* the band target and curve keep eps */
         ws->log_eps_at = eps;
         ws->log_inv_eps = log(1 / eps);
     }
     double band = wb > 0 ? wb * ws->log_inv_eps : 0.0;
-    return (F + band - wh * ws->tail_sum) / (wh - wb);
+    return (F + band - tail) / (wh - wb);
 }
 
 double ps_band_floor_ws(ps_limits_ws *ws, double F, double wb, double eps, double wh, double delta, double k)

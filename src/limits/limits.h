@@ -30,6 +30,9 @@ double ps_bode_area(const ps_cplx *p, size_t np);
 /* Exact roll-off tail I = integral_{wh}^inf -ln(1 - delta (wh/w)^(1+k)) dw
  * = wh * sum_{n>=1} delta^n / (n (n (1+k) - 1)), for 0 <= delta < 1, k > 0. */
 double ps_rolloff_tail(double wh, double delta, double k);
+/* The same value, with the series kept in ws between calls with the same
+ * delta, k: the tail the band floor below subtracts. */
+double ps_rolloff_tail_ws(ps_limits_ws *ws, double wh, double delta, double k);
 
 /* Peak-sensitivity floor on [wb, wh] forced by |S| <= eps on [0, wb] and the
  * roll-off (DFT 1992, "Design Constraints"; delta = 0: Stein 2003):

@@ -2,6 +2,7 @@
  * style, no script, no external assets, figures as inline SVG; prints in black on white. */
 #include "report/reports.h"
 #include "core/text.h"
+#include "report/plot.h"
 
 #include <math.h>
 #include <stdbool.h>
@@ -82,58 +83,6 @@ static const char *catalog_of(const ps_run *r, const ps_summary *s)
 static bool is_flagged(const ps_summary *s)
 {
     return s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_UNSTABILIZABLE;
-}
-
-/* ---- SVG primitives (coordinates in px, one decimal) ---- */
-
-/* cls: a class for the svg element (for readers of the page), or NULL. */
-static void svg_open_class(FILE *f, double w, double h, const char *cls, const char *label)
-{
-    fprintf(f, "<svg xmlns=\"http://www.w3.org/2000/svg\"");
-    if (cls)
-        fprintf(f, " class=\"%s\"", cls);
-    fprintf(f, " viewBox=\"0 0 %.0f %.0f\" width=\"%.0f\" height=\"%.0f\" role=\"img\" aria-label=\"", w, h, w, h);
-    h_text(f, label);
-    fprintf(f, "\">\n<title>");
-    h_text(f, label);
-    fprintf(f, "</title>\n");
-}
-
-static void svg_open(FILE *f, double w, double h, const char *label) { svg_open_class(f, w, h, NULL, label); }
-
-static void svg_line(FILE *f, double x1, double y1, double x2, double y2, const char *cls)
-{
-    fprintf(f, "<line class=\"%s\" x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\"/>\n", cls, x1, y1, x2, y2);
-}
-
-/* anchor: "start", "middle" or "end"; rotate: degrees about (x, y), 0 for none. */
-static void svg_text(FILE *f, double x, double y, const char *anchor, const char *cls, double rotate, const char *s)
-{
-    fprintf(f, "<text x=\"%.1f\" y=\"%.1f\" text-anchor=\"%s\"", x, y, anchor);
-    if (cls && cls[0])
-        fprintf(f, " class=\"%s\"", cls);
-    if (rotate != 0)
-        fprintf(f, " transform=\"rotate(%.0f %.1f %.1f)\"", rotate, x, y);
-    fputc('>', f);
-    h_text(f, s);
-    fputs("</text>\n", f);
-}
-
-/* A tick label for a value on a log or symmetric-log axis: "%.4g", and
- * powers of ten outside 1e-3 .. 1e4 as "1e5", "-1e-4". */
-static void tick_label(char *buf, size_t n, double v)
-{
-    double a = fabs(v);
-    if (a != 0 && (a < 1e-3 || a >= 1e4)) {
-        double e = round(log10(a));
-        if (fabs(a / pow(10.0, e) - 1) < 1e-9) {
-            snprintf(buf, n, "%s1e%d", v < 0 ? "-" : "", (int)e);
-            return;
-        }
-        snprintf(buf, n, "%.1e", v);
-        return;
-    }
-    snprintf(buf, n, "%.4g", v);
 }
 
 /* ---- style ---- */
@@ -280,6 +229,15 @@ static void ranking(FILE *f, const ps_run *r)
 
 /* ---- figure (a): severity bars ---- */
 
+/* The hatch of not-stabilizable bars, id unique in the page. */
+static void hatch_pattern(FILE *f, const char *id)
+{
+    fprintf(f, "<defs><pattern id=\"%s\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
+               "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
+               "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" style=\"stroke:#000;stroke-width:2.5\"/></pattern></defs>\n",
+            id);
+}
+
 static void severity_figure(FILE *f, const ps_run *r)
 {
     size_t n_bars = 0, n_errors = 0;
@@ -305,32 +263,32 @@ static void severity_figure(FILE *f, const ps_run *r)
      * most 3: a longer bar is cut at the edge and marked off-scale, so one
      * hopeless plant does not squeeze every other bar against zero. */
     top = fmin(ceil(top * 4.0) / 4.0, 3.0);
-    double step = top <= 1.5 ? 0.25 : 0.5;
-    const double W = 820, L = 175, PW = 460, T = 44, RH = 20;
-    double plot_bottom = T + RH * (double)n_bars;
-    double H = plot_bottom + 52 + 16 * (double)n_errors;
-    svg_open(f, W, H, "Severity of every plant against the allowed and marginal lines");
-    fprintf(f, "<defs><pattern id=\"ps-hatch\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
-               "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
-               "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" style=\"stroke:#000;stroke-width:2.5\"/></pattern></defs>\n");
-    svg_text(f, 10, 16, "start", "title", 0, "Severity of every plant (share of the allowed log-peak)");
-#define XS(v) (L + PW * (v) / top)
-    for (double v = 0; v <= top + 1e-9; v += step)
-        svg_line(f, XS(v), T - 4, XS(v), plot_bottom, "grid");
+    const double L = 175, PW = 460, T = 44, RH = 20;
+    double bottom = T + RH * (double)n_bars;
+    ps_plot p;
+    ps_plot_open(&p, f, 820, bottom + 52 + 16 * (double)n_errors, "severity",
+                 "Severity of every plant (share of the allowed log-peak)");
+    hatch_pattern(f, "ps-hatch");
+    ps_plot_area(&p, L, T, PW, bottom - T);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_LINEAR, .lo = 0, .hi = top,
+                         .title = "severity: ln(floor) / ln(allowed), largest of Ms, Mt and effort (dimensionless)"};
+    p.y = (ps_plot_axis){.scale = PS_SCALE_NONE, .lo = 0, .hi = 1};
+    ps_plot_axes(&p);
     char buf[160];
     /* Bars, then the reference lines over them (with a white edge so they
      * stay visible across a black bar), then the values over both. */
     for (int pass = 0; pass < 2; pass++) {
         if (pass == 1) {
+            double xm = ps_plot_x(&p, r->opt.marginal_at), x1 = ps_plot_x(&p, 1.0);
             if (r->opt.marginal_at > 0 && r->opt.marginal_at < top) {
-                svg_line(f, XS(r->opt.marginal_at), T, XS(r->opt.marginal_at), plot_bottom, "halo");
-                svg_line(f, XS(r->opt.marginal_at), T - 10, XS(r->opt.marginal_at), plot_bottom, "marginal");
+                ps_plot_line_px(&p, xm, T, xm, bottom, "halo");
+                ps_plot_line_px(&p, xm, T - 10, xm, bottom, "marginal");
                 snprintf(buf, sizeof buf, "marginal %.2f", r->opt.marginal_at);
-                svg_text(f, XS(r->opt.marginal_at) - 3, T - 13, "end", "small", 0, buf);
+                ps_plot_text_px(&p, xm - 3, T - 13, "end", "small", 0, buf);
             }
-            svg_line(f, XS(1.0), T, XS(1.0), plot_bottom, "halo");
-            svg_line(f, XS(1.0), T - 10, XS(1.0), plot_bottom, "limit");
-            svg_text(f, XS(1.0) + 3, T - 13, "start", "small", 0, "allowed 1.00");
+            ps_plot_line_px(&p, x1, T, x1, bottom, "halo");
+            ps_plot_line_px(&p, x1, T - 10, x1, bottom, "limit");
+            ps_plot_text_px(&p, x1 + 3, T - 13, "start", "small", 0, "allowed 1.00");
         }
         size_t row = 0;
         for (size_t i = 0; i < r->n_rows && row < n_bars; i++) {
@@ -340,8 +298,7 @@ static void severity_figure(FILE *f, const ps_run *r)
             double y = T + RH * (double)row++;
             bool unstab = s->verdict == PS_VERDICT_UNSTABILIZABLE;
             double v = isfinite(s->severity) ? fmax(0.0, s->severity) : 0;
-            bool off = v > top;
-            bool unjudged = s->verdict == PS_VERDICT_NEEDS_BANDWIDTH;
+            bool off = v > top, unjudged = s->verdict == PS_VERDICT_NEEDS_BANDWIDTH;
             if (pass == 1) {
                 if (unjudged)
                     snprintf(buf, sizeof buf, "not judged: no rolloff_start given");
@@ -351,7 +308,8 @@ static void severity_figure(FILE *f, const ps_run *r)
                     snprintf(buf, sizeof buf, "no share (nothing to bound)");
                 else
                     snprintf(buf, sizeof buf, off ? "%.3f (off-scale)" : "%.3f", s->severity);
-                svg_text(f, unstab ? L + PW + 6 : off ? L + PW + 10 : XS(v) + 5, y + 14, "start", "value", 0, buf);
+                double x = unstab ? L + PW + 6 : off ? L + PW + 10 : ps_plot_x(&p, v) + 5;
+                ps_plot_text_px(&p, x, y + 14, "start", "value", 0, buf);
                 continue;
             }
             char label[80];
@@ -359,29 +317,22 @@ static void severity_figure(FILE *f, const ps_run *r)
             fprintf(f, "<g><title>");
             h_text(f, s->id);
             fprintf(f, ": %s</title>\n", ps_verdict_name(s->verdict));
-            svg_text(f, L - 6, y + 14, "end", "", 0, label);
+            ps_plot_text_px(&p, L - 6, y + 14, "end", "", 0, label);
             const char *cls = s->verdict == PS_VERDICT_CLEAR      ? "bar-clear"
                               : s->verdict == PS_VERDICT_MARGINAL ? "bar-marginal"
                               : s->verdict == PS_VERDICT_REDESIGN ? "bar-redesign"
                                                                   : "bar-unstab";
-            if (!unjudged && (unstab || isfinite(s->severity)))
-                fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"12\"/>\n", cls, L,
-                        y + 4, unstab ? PW : XS(fmin(v, top)) - L);
+            if (unstab)
+                fprintf(f, "<rect class=\"bar-unstab\" fill=\"url(#ps-hatch)\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" "
+                           "height=\"12\"/>\n", L, y + 4, PW);
+            else if (!unjudged && isfinite(s->severity))
+                ps_plot_rect_px(&p, L, y + 4, ps_plot_x(&p, fmin(v, top)) - L, 12, cls);
             if (off && !unstab && !unjudged)
-                fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl7 6l-7 6z\"/>\n", L + PW + 1, y + 4);
+                ps_plot_marker_px(&p, L + PW + 4, y + 10, 5, PS_MARK_DIAMOND, "mark-solid");
             fprintf(f, "</g>\n");
         }
     }
-    svg_line(f, L, plot_bottom, L + PW, plot_bottom, "");
-    for (double v = 0; v <= top + 1e-9; v += step) {
-        svg_line(f, XS(v), plot_bottom, XS(v), plot_bottom + 5, "");
-        snprintf(buf, sizeof buf, "%.2f", v);
-        svg_text(f, XS(v), plot_bottom + 17, "middle", "", 0, buf);
-    }
-    svg_text(f, L + PW / 2, plot_bottom + 34, "middle", "", 0,
-             "severity: ln(floor) / ln(allowed), largest over Ms, Mt and effort (dimensionless)");
-#undef XS
-    double y = plot_bottom + 52;
+    double y = bottom + 52;
     size_t shown_errors = 0;
     for (size_t i = 0; i < r->n_rows && shown_errors < n_errors; i++) {
         const ps_summary *s = ps_run_row(r, i);
@@ -391,14 +342,15 @@ static void severity_figure(FILE *f, const ps_run *r)
         char label[80];
         fit_label(label, sizeof label, s->id[0] ? s->id : "(no id)", 40);
         snprintf(buf, sizeof buf, "input error, no bar: %s (line %zu)", label, s->err_line ? s->err_line : s->line);
-        svg_text(f, 10, y, "start", "", 0, buf);
+        ps_plot_text_px(&p, 10, y, "start", "", 0, buf);
         y += 16;
     }
-    fprintf(f, "</svg>\n");
+    ps_plot_close(&p);
     fprintf(f, "<figcaption>Figure: severity of every screened plant, worst first. Severity 1 (solid line) is the "
                "allowed peak; from the dashed line on (%.2f) a plant is marginal. Bars: light grey clear, mid grey "
                "marginal, black redesign, hatched not stabilizable (drawn off-scale: no controller stabilizes it). "
-               "The axis ends at %.2f; longer bars are cut and marked off-scale. Input errors have no bar.",
+               "The axis ends at %.2f; longer bars are cut and marked off-scale (a black diamond). Input errors have "
+               "no bar.",
             r->opt.marginal_at, top);
     if (r->n_rows > n_bars + n_errors)
         fprintf(f, " Only the %d worst plants are drawn; all %zu are in the ranking table.", PS_HTML_FIGURES,
@@ -409,11 +361,11 @@ static void severity_figure(FILE *f, const ps_run *r)
 
 /* ---- figure (b): pole/zero map ---- */
 
-/* Symmetric-log coordinate: linear within +-c, logarithmic beyond. */
-static double symlog(double x, double c)
-{
-    return copysign(log10(1.0 + fabs(x) / c), x);
-}
+/* Every pole/zero map in a report has the same symmetric-log axes: linear
+ * within +-1 rad/s and logarithmic beyond, so that maps side by side can be
+ * compared at a glance; each map reaches the power of ten at or above its
+ * largest root. The region is stated on every map. */
+static const double pz_linear = 1.0;
 
 static void pz_map(FILE *f, const ps_summary *s)
 {
@@ -424,88 +376,56 @@ static void pz_map(FILE *f, const ps_summary *s)
         ps_cplx v = i < np ? s->poles[i] : s->zeros[i - np];
         if (!isfinite(v.re) || !isfinite(v.im))
             continue;
-        double m = hypot(v.re, v.im);
         big = fmax(big, fmax(fabs(v.re), fabs(v.im)));
-        if (m > 0)
-            small = fmin(small, m);
+        if (hypot(v.re, v.im) > 0)
+            small = fmin(small, hypot(v.re, v.im));
     }
-    if (!(big > 0))
-        big = 1;
-    /* c: the decade of the smallest non-zero root, so it is not lost at the
-     * origin, kept within eight decades of the largest root so the ticks
-     * stay readable. */
-    double c = isfinite(small) ? pow(10.0, floor(log10(small))) : 1.0;
-    c = fmax(c, pow(10.0, floor(log10(big))) * 1e-8);
-    int K = 0;
-    while (c * pow(10.0, K) < big * (1 - 1e-12))
-        K++;
-    double umax = symlog(c * pow(10.0, K), c);
-    const double W = 400, H = 390, L = 70, T = 34, P = 280;
-    double cx = L + P / 2, cy = T + P / 2;
-#define PX(x) (cx + (P / 2) * symlog((x), c) / umax)
-#define PY(y) (cy - (P / 2) * symlog((y), c) / umax)
+    double ext = pz_linear;
+    int decades = 0;
+    while (ext < big * (1 - 1e-12)) {
+        ext *= 10;
+        decades++;
+    }
     char buf[200], label[80];
     fit_label(label, sizeof label, s->id, 40);
     snprintf(buf, sizeof buf, "Poles and zeros of %s", label);
     fprintf(f, "<figure>\n");
-    svg_open(f, W, H, buf);
-    svg_text(f, 10, 16, "start", "title", 0, buf);
-    fprintf(f, "<rect class=\"rhp\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", cx, T, P / 2, P);
-    svg_text(f, L + P - 4, T + 13, "end", "small", 0, "right half plane");
-    /* Ticks at 0, +-c, +-10c, ...; +-c sits only 0.3 decade from 0, so it
-     * is labelled only when it is the sole decade, and with many decades
-     * every other one is labelled on the Re axis. */
-    int every = K > 3 ? 2 : 1;
-    for (int k = -1; k <= K; k++) {
-        for (int sign = -1; sign <= 1; sign += 2) {
-            double v = k < 0 ? 0 : sign * c * pow(10.0, k);
-            if (k < 0 && sign > 0)
-                continue;
-            bool on_y = k < 0 || k > 0 || K == 0;
-            bool on_x = on_y && (k < 0 || (K - k) % every == 0);
-            svg_line(f, PX(v), T, PX(v), T + P, "grid");
-            svg_line(f, L, PY(v), L + P, PY(v), "grid");
-            svg_line(f, PX(v), T + P, PX(v), T + P + 4, "");
-            svg_line(f, L - 4, PY(v), L, PY(v), "");
-            tick_label(buf, sizeof buf, v);
-            if (on_x)
-                svg_text(f, PX(v), T + P + 15, "middle", "small", 0, buf);
-            if (on_y)
-                svg_text(f, L - 6, PY(v) + 3.5, "end", "small", 0, buf);
-        }
-    }
-    svg_line(f, cx, T, cx, T + P, "");
-    svg_line(f, L, cy, L + P, cy, "");
-    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, P, P);
-    for (size_t i = 0; i < nz; i++) {
-        ps_cplx v = s->zeros[i];
-        if (isfinite(v.re) && isfinite(v.im))
-            fprintf(f, "<circle class=\"zero\" cx=\"%.1f\" cy=\"%.1f\" r=\"4.5\"/>\n", PX(v.re), PY(v.im));
-    }
-    for (size_t i = 0; i < np; i++) {
-        ps_cplx v = s->poles[i];
-        if (!isfinite(v.re) || !isfinite(v.im))
-            continue;
-        double x = PX(v.re), y = PY(v.im);
-        fprintf(f, "<path class=\"pole\" d=\"M%.1f %.1fl9 9M%.1f %.1fl-9 9\"/>\n", x - 4.5, y - 4.5, x + 4.5,
-                y - 4.5);
-    }
-    svg_text(f, L + P / 2, T + P + 32, "middle", "", 0, "Re (rad/s)");
-    svg_text(f, 16, cy, "middle", "", -90, "Im (rad/s)");
-    fprintf(f, "<path class=\"pole\" d=\"M%.1f %.1fl8 8M%.1f %.1fl-8 8\"/>\n", L, H - 14, L + 8, H - 14);
-    svg_text(f, L + 13, H - 6, "start", "small", 0, "pole");
-    fprintf(f, "<circle class=\"zero\" cx=\"%.1f\" cy=\"%.1f\" r=\"4\"/>\n", L + 70, H - 10);
-    svg_text(f, L + 78, H - 6, "start", "small", 0, "zero");
-    fprintf(f, "</svg>\n");
-#undef PX
-#undef PY
+    ps_plot p;
+    ps_plot_open(&p, f, 400, 400, "pz-map", buf);
+    ps_plot_area(&p, 70, 34, 280, 280);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_SYMLOG, .lo = -ext, .hi = ext, .c = pz_linear, .title = "Re s (rad/s)",
+                         .label_every = decades > 3 ? 2 : 1};
+    p.y = p.x;
+    p.y.title = "Im s (rad/s)";
+    p.y.label_every = 1;
+    ps_plot_rect(&p, 0, -ext, ext, ext, "shade");
+    ps_plot_text_px(&p, 346, 47, "end", "small", 0, "right half plane");
+    ps_plot_axes(&p);
+    ps_plot_hline(&p, 0, "", NULL);
+    ps_plot_vline(&p, 0, "", NULL, false);
+    for (size_t i = 0; i < nz; i++)
+        if (isfinite(s->zeros[i].re) && isfinite(s->zeros[i].im))
+            ps_plot_marker(&p, s->zeros[i].re, s->zeros[i].im, PS_MARK_CIRCLE, "mark");
+    for (size_t i = 0; i < np; i++)
+        if (isfinite(s->poles[i].re) && isfinite(s->poles[i].im))
+            ps_plot_marker(&p, s->poles[i].re, s->poles[i].im, PS_MARK_CROSS, "mark-cross");
+    static const ps_plot_key keys[] = {{PS_KEY_MARK, PS_MARK_CROSS, "mark-cross", "pole"},
+                                       {PS_KEY_MARK, PS_MARK_CIRCLE, "mark", "zero"}};
+    ps_plot_legend(&p, 70, 390, keys, 2);
+    snprintf(buf, sizeof buf, "linear within \xc2\xb1%g rad/s, log beyond", pz_linear);
+    ps_plot_text_px(&p, 350, 390, "end", "small pz-linear", 0, buf);
+    ps_plot_close(&p);
     fprintf(f, "<figcaption>Poles (x) and zeros (o) of ");
     h_text(f, s->id);
-    fprintf(f, "; the right half plane is shaded. Symmetric-log axes, the same on Re and Im: linear within "
-               "&plusmn;%.3g rad/s, logarithmic beyond (u = sign(x) log10(1 + |x| / %.3g)).",
-            c, c);
+    fprintf(f, "; the right half plane is shaded. Symmetric-log axes, the same on Re and Im and on every map of this "
+               "report: linear within &plusmn;%g rad/s, logarithmic beyond (u = sign(x) log10(1 + |x| / %g rad/s)).",
+            pz_linear, pz_linear);
     if (s->n_poles > PS_MAP_MAX || s->n_zeros > PS_MAP_MAX)
         fprintf(f, " Only the first %d of %zu poles and %zu zeros are drawn.", PS_MAP_MAX, s->n_poles, s->n_zeros);
+    if (small < 0.05 * pz_linear)
+        fprintf(f, " Roots closer than %g rad/s to the origin (the smallest %.3g rad/s) sit within a few pixels of "
+                   "it at this scale; their values are in the JSON report.",
+                0.05 * pz_linear, small);
     if (s->delay > 0)
         fprintf(f, " The delay of %.4g s is not a root and is not drawn.", s->delay);
     fprintf(f, "</figcaption>\n</figure>\n");
@@ -559,45 +479,17 @@ static void changes(FILE *f, const ps_run *r)
 
 /* ---- families: boundary along each swept parameter, yield bar ---- */
 
-/* An axis maps a value to a pixel: log10 of the value or the value itself,
- * between lo and hi (in those units), onto from .. to. */
-typedef struct axis {
-    bool log;
-    double lo, hi;
-    double from, to;
-} axis;
-
-static double ax_px(const axis *a, double v)
-{
-    double u = a->log ? log10(v) : v;
-    return a->from + (a->to - a->from) * (u - a->lo) / (a->hi - a->lo);
-}
-
-/* 1, 2 or 5 times a power of ten, giving about target steps over span. */
-static double nice_step(double span, double target)
-{
-    double raw = span / target, p = pow(10.0, floor(log10(raw))), m = raw / p;
-    return (m < 1.5 ? 1 : m < 3 ? 2 : m < 7 ? 5 : 10) * p;
-}
-
-static void pass_mark(FILE *f, double x, double y, bool pass)
-{
-    if (pass)
-        fprintf(f, "<circle class=\"pt-pass\" cx=\"%.1f\" cy=\"%.1f\" r=\"4\"/>\n", x, y);
-    else
-        fprintf(f, "<rect class=\"pt-fail\" x=\"%.1f\" y=\"%.1f\" width=\"8\" height=\"8\"/>\n", x - 4, y - 4);
-}
-
-/* The y axis of a boundary figure (see ps_boundary.plotted): log from 1 for
- * the Ms and Mt floors (a floor below 1 counts as 1), log over whole
- * decades for the effort floor, linear from 0 for the severity. Values
- * below the foot sit on it; above the top, on the top edge, marked. */
+/* The value axis of a boundary figure (see ps_boundary.plotted): log from 1
+ * for the Ms and Mt floors (a floor below 1 counts as 1), log over whole
+ * decades for the effort floor, linear from 0 for the severity, with 5 %
+ * room above top. Values below bot sit on the foot; above top, on the top
+ * edge, marked. */
 typedef struct value_axis {
-    axis a;
+    ps_plot_axis a;
     double bot, top;
 } value_axis;
 
-static value_axis boundary_value_axis(const ps_boundary *b, double allowed, double T, double PH)
+static value_axis boundary_value_axis(const ps_boundary *b, double allowed)
 {
     double vtop = 0, vmin = INFINITY;
     for (size_t i = 0; i < b->n_curve; i++) {
@@ -608,34 +500,33 @@ static value_axis boundary_value_axis(const ps_boundary *b, double allowed, doub
         if (v > 0)
             vmin = fmin(vmin, v);
     }
-    value_axis y = {.a = {.from = T + PH, .to = T}};
+    value_axis y = {.a = {.scale = PS_SCALE_LOG}};
     switch (b->plotted) {
     case PS_QTY_SEVERITY:
-        y.bot = 0;
         y.top = fmin(fmax(1.05 * vtop, 2.0), 10.0);
-        y.a.log = false;
-        y.a.lo = 0;
-        y.a.hi = y.top;
+        y.a = (ps_plot_axis){.scale = PS_SCALE_LINEAR, .lo = 0, .hi = y.top,
+                             .title = "severity, largest share (dimensionless)"};
         return y;
     case PS_QTY_EFFORT:
         /* at most four decades below the allowed effort */
         y.bot = pow(10.0, floor(log10(fmax(fmin(vmin, allowed / 2), allowed * 1e-4))));
         y.top = fmin(fmax(vtop, 2 * allowed), 100 * allowed);
+        y.a.title = "effort floor, peak |C S| (catalog units)";
         break;
-    default: /* the band-edge figures' Ms axis: up to the largest finite floor, 2 to 100 times the allowed */
+    default: /* as the band-edge figures' Ms axis: up to the largest finite floor, 2 to 100 times the allowed */
         y.bot = 1;
         y.top = fmax(fmin(fmax(vtop, 2 * allowed), 100 * allowed), 2);
+        y.a.title = b->plotted == PS_QTY_MT ? "Mt floor, peak |T| (ratio)" : "Ms floor, peak |S| (ratio)";
         break;
     }
-    y.a.log = true;
-    y.a.lo = log10(y.bot);
-    y.a.hi = y.a.lo + 1.05 * (log10(y.top) - y.a.lo);
+    y.a.lo = y.bot;
+    y.a.hi = pow(10.0, log10(y.bot) + 1.05 * (log10(y.top) - log10(y.bot)));
     return y;
 }
 
-static double value_px(const value_axis *y, double v)
+static double value_px(const ps_plot *p, const value_axis *y, double v)
 {
-    return ax_px(&y->a, fmin(fmax(v, y->bot), y->top));
+    return ps_plot_y(p, fmin(fmax(v, y->bot), y->top));
 }
 
 static const char *plotted_short(ps_quantity q)
@@ -665,26 +556,27 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
         xmin = fmin(xmin, b->value);
         xmax = fmax(xmax, b->value);
     }
-    const double W = 500, H = 292, L = 64, T = 34, PW = 400, PH = 190;
-    /* x: logarithmic when the positive sweep spans more than a decade (whole
-     * decades, as on the band-edge figures), else linear with a margin of
-     * 4 % so the end points do not sit on the frame. */
-    axis ax = {.log = xmin > 0 && xmax > 10 * xmin, .from = L, .to = L + PW};
-    double step = 0;
-    if (ax.log) {
-        ax.lo = floor(log10(xmin));
-        ax.hi = ceil(log10(xmax));
-        if (ax.hi <= ax.lo)
-            ax.hi = ax.lo + 1;
+    const double H = 292, L = 64, T = 34, PW = 400, PH = 190;
+    /* x: logarithmic over whole decades when the positive sweep spans more
+     * than a decade, else linear with a margin of 4 % so the end points do
+     * not sit on the frame. The catalog declares no unit for a parameter. */
+    char xtitle[160];
+    ps_plot_axis ax = {.scale = xmin > 0 && xmax > 10 * xmin ? PS_SCALE_LOG : PS_SCALE_LINEAR, .title = xtitle};
+    if (ax.scale == PS_SCALE_LOG) {
+        ax.lo = pow(10.0, floor(log10(xmin)));
+        ax.hi = pow(10.0, fmax(ceil(log10(xmax)), floor(log10(xmin)) + 1));
+        ax.minor = true;
+        ax.label_every = log10(ax.hi / ax.lo) > 8 ? 2 : 1;
     } else {
         double span = xmax - xmin;
         if (!(span > 0))
             span = xmin != 0 ? fabs(xmin) : 1;
         ax.lo = xmin - 0.04 * span;
         ax.hi = xmax + 0.04 * span;
-        step = nice_step(ax.hi - ax.lo, 6);
     }
-    value_axis ay = boundary_value_axis(b, allowed, T, PH);
+    snprintf(xtitle, sizeof xtitle, "%s (catalog units, no unit declared; %s)", name,
+             ax.scale == PS_SCALE_LOG ? "log" : "linear");
+    value_axis ay = boundary_value_axis(b, allowed);
 
     char buf[240], label[80];
     fit_label(label, sizeof label, fr->id, 30);
@@ -696,106 +588,46 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
     fprintf(f, "\" data-parameter=\"");
     h_text(f, name);
     fprintf(f, "\" data-state=\"%s\" data-plotted=\"%s\">\n", ps_bound_state_name(b->state), ps_quantity_key(q));
-    svg_open_class(f, W, H, "family-boundary", buf);
-    svg_text(f, 10, 16, "start", "title", 0, buf);
-
-    if (ax.log) {
-        int every = ax.hi - ax.lo > 8 ? 2 : 1;
-        for (double e = ax.lo; e <= ax.hi + 1e-9; e += 1) {
-            double x = pow(10.0, e);
-            svg_line(f, ax_px(&ax, x), T, ax_px(&ax, x), T + PH + 4, "grid");
-            if ((int)(e - ax.lo) % every == 0) {
-                tick_label(buf, sizeof buf, x);
-                svg_text(f, ax_px(&ax, x), T + PH + 16, "middle", "small", 0, buf);
-            }
-            for (int m = 2; m <= 9 && e < ax.hi; m++)
-                svg_line(f, ax_px(&ax, m * x), T + PH, ax_px(&ax, m * x), T + PH + 3, "");
-        }
-    } else {
-        /* Enough digits that neighbouring ticks differ (a sweep of 1000.1 .. 1000.5). */
-        int digits = (int)ceil(log10(fmax(fabs(ax.lo), fabs(ax.hi)) / step)) + 1;
-        digits = digits < 4 ? 4 : digits > 12 ? 12 : digits;
-        for (double k = ceil(ax.lo / step); k * step <= ax.hi; k += 1) {
-            double x = k * step;
-            if (fabs(x) < 1e-9 * step)
-                x = 0; /* no "-1e-19" where the axis crosses zero */
-            svg_line(f, ax_px(&ax, x), T, ax_px(&ax, x), T + PH + 4, "grid");
-            snprintf(buf, sizeof buf, "%.*g", digits, x);
-            svg_text(f, ax_px(&ax, x), T + PH + 16, "middle", "small", 0, buf);
-        }
-    }
-    if (ay.a.log) {
-        /* ticks 1, 1.5, 2, 3, 5 per decade over one decade; 1, 2, 5 up to two; powers of ten beyond */
-        double decades = log10(ay.top) - ay.a.lo;
-        for (int e = 0; e <= (int)ceil(decades); e++) {
-            static const double mult[] = {1, 1.5, 2, 3, 5};
-            double d = pow(10.0, ay.a.lo + e);
-            for (size_t j = 0; j < 5; j++) {
-                double m = d * mult[j];
-                bool keep = decades <= 1 ? true : decades <= 2 ? (j == 0 || j == 2 || j == 4) : j == 0;
-                if (m > ay.top * 1.0001 || !keep)
-                    continue;
-                svg_line(f, L - 4, ax_px(&ay.a, m), L + PW, ax_px(&ay.a, m), "grid");
-                tick_label(buf, sizeof buf, m);
-                svg_text(f, L - 6, ax_px(&ay.a, m) + 3.5, "end", "small", 0, buf);
-            }
-        }
-    } else {
-        double ystep = nice_step(ay.top, 5);
-        for (double k = 0; k * ystep <= ay.top * 1.0001; k += 1) {
-            svg_line(f, L - 4, ax_px(&ay.a, k * ystep), L + PW, ax_px(&ay.a, k * ystep), "grid");
-            snprintf(buf, sizeof buf, "%.4g", k * ystep);
-            svg_text(f, L - 6, ax_px(&ay.a, k * ystep) + 3.5, "end", "small", 0, buf);
-        }
-    }
+    ps_plot p;
+    ps_plot_open(&p, f, 500, H, "family-boundary", buf);
+    ps_plot_area(&p, L, T, PW, PH);
+    p.x = ax;
+    p.y = ay.a;
     /* Where a non-monotone verdict changes: between which sweep points. */
     if (b->state == PS_BOUND_NON_MONOTONE)
-        for (size_t i = 0; i < b->n_changes; i++) {
-            double x1 = ax_px(&ax, b->change_lo[i]), x2 = ax_px(&ax, b->change_hi[i]);
-            fprintf(f, "<rect class=\"flip\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", fmin(x1, x2),
-                    T, fabs(x2 - x1), PH);
-        }
-    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, PH);
+        for (size_t i = 0; i < b->n_changes; i++)
+            ps_plot_xspan(&p, b->change_lo[i], b->change_hi[i], "shade");
+    ps_plot_axes(&p);
     /* The line every point is compared with: the allowed value of the drawn
-     * floor, or severity 1. */
-    bool line = isfinite(allowed) && allowed > ay.bot && allowed <= ay.top;
-    if (line) {
-        double y = ax_px(&ay.a, allowed);
+     * floor, or severity 1 (data-allowed: read back by the end-to-end test). */
+    if (isfinite(allowed) && allowed > ay.bot && allowed <= ay.top) {
+        double y = ps_plot_y(&p, allowed);
         fprintf(f, "<line class=\"marginal\" data-allowed=\"%.17g\" x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\"/>\n",
                 allowed, L, y, L + PW, y);
         if (sev)
             snprintf(buf, sizeof buf, "severity 1");
         else
             snprintf(buf, sizeof buf, "allowed %s %.4g", brief, allowed);
-        svg_text(f, L + PW - 3, y - 4, "end", "small value", 0, buf);
+        ps_plot_text_px(&p, L + PW - 3, y - 4, "end", "small value", 0, buf);
     }
     /* The curve through the sweep points, broken where the value is missing;
      * a point that cannot be stabilized sits on the top edge. */
-    bool open = false, clipped = false, any_unstab = false;
-    double py[PS_FAM_SWEEP];
+    bool clipped = false, any_unstab = false;
+    double cx[PS_FAM_SWEEP], cy[PS_FAM_SWEEP], py[PS_FAM_SWEEP];
     for (size_t i = 0; i < b->n_curve; i++) {
         double v = b->curve_unstab[i] ? INFINITY : ps_boundary_plotted_value(b, i);
-        py[i] = NAN;
-        if (isnan(v)) {
-            if (open)
-                fprintf(f, "\"/>\n");
-            open = false;
-            continue;
-        }
+        cx[i] = b->curve_x[i];
+        cy[i] = isnan(v) ? NAN : fmin(fmax(v, ay.bot), ay.top);
+        py[i] = isnan(v) ? NAN : value_px(&p, &ay, v);
         any_unstab |= b->curve_unstab[i];
         clipped |= !b->curve_unstab[i] && v > ay.top;
-        py[i] = value_px(&ay, v);
-        fprintf(f, "%s%.1f,%.1f", open ? " " : "<polyline class=\"curve\" points=\"", ax_px(&ax, b->curve_x[i]),
-                py[i]);
-        open = true;
     }
-    if (open)
-        fprintf(f, "\"/>\n");
+    ps_plot_series(&p, cx, cy, b->n_curve, false, "curve");
     if (found) {
-        double x = ax_px(&ax, b->value);
-        svg_line(f, x, T, x, T + PH, "halo");
-        svg_line(f, x, T, x, T + PH, "promise");
-        fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", x, T + PH);
+        double x = ps_plot_x(&p, b->value);
+        ps_plot_line_px(&p, x, T, x, T + PH, "halo");
+        ps_plot_line_px(&p, x, T, x, T + PH, "promise");
+        ps_plot_marker_px(&p, x, T + PH - 5, 5, PS_MARK_UP, "mark-solid");
         /* The label goes on the side where the curve is lower next to the
          * line (the top corner is free there), unless that side is too narrow. */
         double y_left = NAN, y_right = NAN;
@@ -811,14 +643,14 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
         else if (!left && L + PW - x < 110)
             left = true;
         snprintf(buf, sizeof buf, "boundary %.3g", b->value);
-        svg_text(f, x + (left ? -4 : 4), T + 13, left ? "end" : "start", "small value", 0, buf);
-        svg_text(f, x + (left ? -4 : 4), T + 25, left ? "end" : "start", "small value", 0,
-                 b->pass_below ? "passes below" : "passes above");
+        ps_plot_text_px(&p, x + (left ? -4 : 4), T + 13, left ? "end" : "start", "small value", 0, buf);
+        ps_plot_text_px(&p, x + (left ? -4 : 4), T + 25, left ? "end" : "start", "small value", 0,
+                        b->pass_below ? "passes below" : "passes above");
     }
     for (size_t i = 0; i < b->n_curve; i++) {
         if (isnan(py[i]))
             continue;
-        double x = ax_px(&ax, b->curve_x[i]), v = ps_boundary_plotted_value(b, i);
+        double x = ps_plot_x(&p, b->curve_x[i]), v = ps_boundary_plotted_value(b, i);
         fprintf(f, "<g class=\"sweep-point\" data-x=\"%.17g\" data-value=\"%.17g\" data-passes=\"%s\" "
                    "data-stabilizable=\"%s\"><title>",
                 b->curve_x[i], v, b->curve_pass[i] ? "yes" : "no", b->curve_unstab[i] ? "no" : "yes");
@@ -835,34 +667,23 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
         h_num(f, b->curve_sev[i]);
         fprintf(f, ", %s</title>\n", b->curve_unstab[i] ? "not stabilizable" : b->curve_pass[i] ? "passes" : "fails");
         if (b->curve_unstab[i] || !(v <= ay.top))
-            fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 8h10z\"/>\n", x, T - 10);
-        pass_mark(f, x, py[i], b->curve_pass[i]);
+            ps_plot_marker_px(&p, x, T - 6, 5, PS_MARK_DOWN, "mark-solid");
+        ps_plot_marker_px(&p, x, py[i], 4, b->curve_pass[i] ? PS_MARK_CIRCLE : PS_MARK_SQUARE,
+                          b->curve_pass[i] ? "mark" : "mark-solid");
         fprintf(f, "</g>\n");
     }
-    snprintf(buf, sizeof buf, "%s (parameter value, %s)", name, ax.log ? "log" : "linear");
-    svg_text(f, L + PW / 2, T + PH + 34, "middle", "", 0, buf);
-    if (sev)
-        snprintf(buf, sizeof buf, "severity (largest share, linear)");
-    else
-        snprintf(buf, sizeof buf, "%s floor (log)", q == PS_QTY_EFFORT ? "effort |C S|" : brief);
-    svg_text(f, 16, T + PH / 2, "middle", "", -90, buf);
-    double ly = H - 12;
-    pass_mark(f, L + 4, ly - 4, true);
-    svg_text(f, L + 13, ly, "start", "small", 0, "passes");
-    pass_mark(f, L + 64, ly - 4, false);
-    svg_text(f, L + 73, ly, "start", "small", 0, "fails");
-    if (b->state == PS_BOUND_NON_MONOTONE) {
-        fprintf(f, "<rect class=\"flip\" x=\"%.1f\" y=\"%.1f\" width=\"14\" height=\"10\"/>\n", L + 112, ly - 9);
-        svg_text(f, L + 130, ly, "start", "small", 0, "verdict changes");
-    }
+    ps_plot_key keys[3] = {{PS_KEY_MARK, PS_MARK_CIRCLE, "mark", "passes"},
+                           {PS_KEY_MARK, PS_MARK_SQUARE, "mark-solid", "fails"},
+                           {PS_KEY_BOX, 0, "shade", "verdict changes"}};
+    ps_plot_legend(&p, L, H - 12, keys, b->state == PS_BOUND_NON_MONOTONE ? 3 : 2);
     switch (b->state) {
     case PS_BOUND_FOUND: snprintf(buf, sizeof buf, "one change of verdict"); break;
     case PS_BOUND_ALL_PASS: snprintf(buf, sizeof buf, "passes over the whole sweep"); break;
     case PS_BOUND_ALL_FAIL: snprintf(buf, sizeof buf, "fails over the whole sweep"); break;
     default: snprintf(buf, sizeof buf, "not monotone: %zu changes", b->n_changes); break;
     }
-    svg_text(f, L + PW, ly, "end", "small", 0, buf);
-    fprintf(f, "</svg>\n");
+    ps_plot_text_px(&p, L + PW, H - 12, "end", "small", 0, buf);
+    ps_plot_close(&p);
 
     char text[700];
     ps_boundary_text(fr, b, text, sizeof text);
@@ -873,9 +694,9 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
     h_text(f, fr->id);
     fprintf(f, " at the sorted sweep points of ");
     h_text(f, name);
-    fprintf(f, ", the other parameters at nominal; %s parameter axis, %s %s axis. Open circles pass (clear or "
-               "marginal), black squares fail.",
-            ax.log ? "log" : "linear", sev ? "linear" : "log", brief);
+    fprintf(f, " (in the catalog's units: a family parameter declares none), the other parameters at nominal; %s "
+               "parameter axis, %s %s axis. Open circles pass (clear or marginal), black squares fail.",
+            ax.scale == PS_SCALE_LOG ? "log" : "linear", sev ? "linear" : "log", brief);
     if (sev) {
         fprintf(f, " The severity is the largest of the Ms, Mt and effort shares of what is allowed; dashed: "
                    "severity 1, the most that passes.");
@@ -908,7 +729,7 @@ static void boundary_figure(FILE *f, const ps_family_result *fr, const ps_bounda
  * figure; the hatch of not-stabilizable units is the family's own pattern k. */
 static void yield_rect(FILE *f, int v, size_t k, double x, double y, double w, double h)
 {
-    static const char *const cls[PS_VERDICT_COUNT] = {"bar-clear", "bar-marginal", "bar-redesign", "bar-unstab-y",
+    static const char *const cls[PS_VERDICT_COUNT] = {"bar-clear", "bar-marginal", "bar-redesign", "bar-unstab",
                                                       "bar-unread", "bar-unread"};
     fprintf(f, "<rect class=\"%s\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"", cls[v], x, y, w, h);
     if (v == PS_VERDICT_UNSTABILIZABLE)
@@ -919,7 +740,7 @@ static void yield_rect(FILE *f, int v, size_t k, double x, double y, double w, d
 static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
 {
     const ps_yield *y = &fr->yield;
-    const double W = 700, H = 100, L = 12, PW = 400, T = 34, BH = 22;
+    const double H = 108, L = 12, PW = 400, T = 34, BH = 22;
     char buf[240], label[80];
     fit_label(label, sizeof label, fr->id, 40);
     if (y->invalid)
@@ -930,13 +751,14 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
     fprintf(f, "<figure class=\"family-yield\" data-family=\"");
     h_text(f, fr->id);
     fprintf(f, "\">\n");
-    svg_open_class(f, W, H, "family-yield", buf);
-    /* The hatch of not-stabilizable units; its id is unique in the page, one per family. */
-    fprintf(f, "<defs><pattern id=\"ps-hatch-y%zu\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
-               "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
-               "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" style=\"stroke:#000;stroke-width:2.5\"/></pattern></defs>\n",
-            k);
-    svg_text(f, 10, 16, "start", "title", 0, buf);
+    ps_plot p;
+    ps_plot_open(&p, f, 700, H, "family-yield", buf);
+    char hatch[32];
+    snprintf(hatch, sizeof hatch, "ps-hatch-y%zu", k);
+    hatch_pattern(f, hatch);
+    ps_plot_area(&p, L, T, PW, BH);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_NONE, .lo = 0, .hi = 100};
+    p.y = (ps_plot_axis){.scale = PS_SCALE_NONE, .lo = 0, .hi = 1};
     double x = L;
     for (int v = 0; v < PS_VERDICT_UNREAD; v++) {
         double w = PW * (isfinite(y->frac[v]) ? y->frac[v] : 0);
@@ -948,32 +770,33 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
         fputs("</g>\n", f);
         x += w;
     }
-    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, BH);
+    ps_plot_rect_px(&p, L, T, PW, BH, "frame");
     /* The passing share (clear and marginal: the first two segments) and its interval above the bar. */
     double xp = L + PW * y->pass_frac, xl = L + PW * y->pass_lo, xh = L + PW * y->pass_hi;
     if (y->valid) {
-        svg_line(f, xp, T - 8, xp, T + BH, "halo");
-        svg_line(f, xp, T - 8, xp, T + BH, "limit");
-        svg_line(f, xl, T - 5, xh, T - 5, "limit");
-        svg_line(f, xl, T - 9, xl, T - 1, "");
-        svg_line(f, xh, T - 9, xh, T - 1, "");
+        ps_plot_line_px(&p, xp, T - 8, xp, T + BH, "halo");
+        ps_plot_line_px(&p, xp, T - 8, xp, T + BH, "limit");
+        ps_plot_line_px(&p, xl, T - 5, xh, T - 5, "limit");
+        ps_plot_line_px(&p, xl, T - 9, xl, T - 1, "");
+        ps_plot_line_px(&p, xh, T - 9, xh, T - 1, "");
     }
-    for (int p = 0; p <= 100; p += 25) {
-        double xt = L + PW * p / 100.0;
-        svg_line(f, xt, T + BH, xt, T + BH + 4, "");
-        snprintf(buf, sizeof buf, "%d %%", p);
-        svg_text(f, xt, T + BH + 15, p == 0 ? "start" : p == 100 ? "end" : "middle", "small", 0, buf);
+    for (int pc = 0; pc <= 100; pc += 25) {
+        double xt = ps_plot_x(&p, pc);
+        ps_plot_line_px(&p, xt, T + BH, xt, T + BH + 4, "");
+        snprintf(buf, sizeof buf, "%d", pc);
+        ps_plot_text_px(&p, xt, T + BH + 15, pc == 0 ? "start" : pc == 100 ? "end" : "middle", "small", 0, buf);
     }
+    ps_plot_text_px(&p, L + PW / 2, T + BH + 29, "middle", "axis-title", 0, "share of the evaluated units (%)");
     if (y->valid) {
         snprintf(buf, sizeof buf, "passing %.1f %%", 100 * y->pass_frac);
-        svg_text(f, L + PW + 12, T + 9, "start", "title", 0, buf);
+        ps_plot_text_px(&p, L + PW + 12, T + 9, "start", "title", 0, buf);
         snprintf(buf, sizeof buf, "95 %% interval %.1f .. %.1f %% (Wilson)", 100 * y->pass_lo, 100 * y->pass_hi);
-        svg_text(f, L + PW + 12, T + 22, "start", "small", 0, buf);
+        ps_plot_text_px(&p, L + PW + 12, T + 22, "start", "small", 0, buf);
     } else
-        svg_text(f, L + PW + 12, T + 9, "start", "title", 0, "no unit could be evaluated");
+        ps_plot_text_px(&p, L + PW + 12, T + 9, "start", "title", 0, "no unit could be evaluated");
     if (y->invalid) {
         snprintf(buf, sizeof buf, "not in the bar: %zu invalid units", y->invalid);
-        svg_text(f, L + PW + 12, T + 35, "start", "small", 0, buf);
+        ps_plot_text_px(&p, L + PW + 12, T + 35, "start", "small", 0, buf);
     }
     double lx = L;
     for (int v = 0; v < PS_VERDICT_UNREAD; v++) {
@@ -982,12 +805,13 @@ static void yield_figure(FILE *f, const ps_family_result *fr, size_t k)
         yield_rect(f, v, k, lx, H - 19, 14, 10);
         fputc('\n', f);
         snprintf(buf, sizeof buf, "%s %.1f %% (%zu)", ps_verdict_name((ps_verdict)v), 100 * y->frac[v], y->count[v]);
-        svg_text(f, lx + 18, H - 10, "start", "small", 0, buf);
+        ps_plot_text_px(&p, lx + 18, H - 10, "start", "small", 0, buf);
         lx += 30 + 5.6 * (double)strlen(buf);
     }
+    ps_plot_close(&p);
     char text[1400];
     ps_yield_text(fr, text, sizeof text);
-    fprintf(f, "</svg>\n<figcaption>Share per verdict of the %zu units that could be evaluated, of %zu drawn, the "
+    fprintf(f, "<figcaption>Share per verdict of the %zu units that could be evaluated, of %zu drawn, the "
                "toleranced parameters drawn from one seeded generator (seed %lu); passing (clear or marginal) with its "
                "95 %% Wilson score interval (the bracket above the bar). Result: ",
             y->valid, y->samples, y->seed);
@@ -1118,90 +942,51 @@ static void band_figure(FILE *f, const ps_summary *s)
         wlo = fmin(wlo, s->req.wb);
         whi = fmax(whi, s->req.wb);
     }
-    double xlo = floor(log10(wlo)), xhi = ceil(log10(whi));
-    if (xhi <= xlo)
-        xhi = xlo + 1;
     double allowed = s->req.ms_allowed;
     /* Ms axis (log): up to the curve's largest finite value, but at least
      * twice the allowed Ms and at most a hundred times it; larger values are
      * drawn on the top edge and marked. */
     double ytop = fmin(fmax(mtop, 2 * allowed), 100 * allowed);
-    double ylo = 0, yhi = log10(ytop) * 1.02;
-    const double W = 400, H = 300, L = 64, T = 34, PW = 300, PH = 200;
-#define PX(w) (L + PW * (log10(w) - xlo) / (xhi - xlo))
-#define PY(m) (T + PH - PH * (log10(m) - ylo) / (yhi - ylo))
     char buf[200], label[80];
     fit_label(label, sizeof label, s->id, 36);
     snprintf(buf, sizeof buf, "%s: Ms floor against band edge", label);
     fprintf(f, "<figure>\n");
-    svg_open(f, W, H, buf);
-    svg_text(f, 10, 16, "start", "title", 0, buf);
-    for (double e = xlo; e <= xhi + 1e-9; e += 1) {
-        double w = pow(10.0, e);
-        svg_line(f, PX(w), T, PX(w), T + PH + 4, "grid");
-        tick_label(buf, sizeof buf, w);
-        svg_text(f, PX(w), T + PH + 16, "middle", "small", 0, buf);
-        for (int m = 2; m <= 9 && e < xhi; m++)
-            svg_line(f, PX(m * w), T + PH, PX(m * w), T + PH + 3, "");
-    }
-    /* Ms ticks 1, 2, 5, 10, ... (only powers of ten beyond two decades). */
-    bool dense = ytop <= 100;
-    for (double d = 1; d <= ytop * 1.0001; d *= 10) {
-        static const double mult[] = {1, 2, 5};
-        for (size_t j = 0; j < 3; j++) {
-            double m = d * mult[j];
-            if (m > ytop * 1.0001 || (!dense && j > 0))
-                continue;
-            svg_line(f, L - 4, PY(m), L + PW, PY(m), "grid");
-            tick_label(buf, sizeof buf, m);
-            svg_text(f, L - 6, PY(m) + 3.5, "end", "small", 0, buf);
-        }
-    }
-    fprintf(f, "<rect class=\"frame\" x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\"/>\n", L, T, PW, PH);
+    ps_plot p;
+    ps_plot_open(&p, f, 400, 300, "band-edge", buf);
+    ps_plot_area(&p, 64, 34, 300, 200);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = pow(10.0, floor(log10(wlo))),
+                         .hi = pow(10.0, fmax(ceil(log10(whi)), floor(log10(wlo)) + 1)), .minor = true,
+                         .title = "band edge w_b (rad/s, log)"};
+    p.y = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = 1, .hi = pow(ytop, 1.02), .title = "Ms floor, peak |S| (ratio, log)"};
+    ps_plot_axes(&p);
     /* The curve, broken where the floor has no value; values above the axis sit on the top edge. */
-    bool open = false, clipped = false;
+    double x[PS_CURVE_N], y[PS_CURVE_N];
+    bool clipped = false;
     for (size_t i = 0; i < s->n_curve; i++) {
         double w = s->curve_wb[i], m = s->curve_ms[i];
-        if (!(isfinite(w) && w > 0) || isnan(m)) {
-            if (open)
-                fprintf(f, "\"/>\n");
-            open = false;
-            continue;
-        }
-        if (m > ytop) {
-            m = ytop;
-            clipped = true;
-        }
-        m = fmax(m, 1.0);
-        fprintf(f, "%s%.1f,%.1f", open ? " " : "<polyline class=\"curve\" points=\"", PX(w), PY(m));
-        open = true;
+        bool ok = isfinite(w) && w > 0 && !isnan(m);
+        clipped |= ok && m > ytop;
+        x[i] = ok ? w : NAN;
+        y[i] = ok ? fmax(fmin(m, ytop), 1.0) : NAN;
     }
-    if (open)
-        fprintf(f, "\"/>\n");
+    ps_plot_series(&p, x, y, s->n_curve, false, "curve");
     if (allowed > 1 && allowed <= ytop) {
-        svg_line(f, L, PY(allowed), L + PW, PY(allowed), "marginal");
         snprintf(buf, sizeof buf, "allowed Ms %.3g", allowed);
-        svg_text(f, L + PW - 3, PY(allowed) - 4, "end", "small", 0, buf);
+        ps_plot_hline(&p, allowed, "marginal", buf);
     }
     if (required) {
-        svg_line(f, PX(s->req.wb), T, PX(s->req.wb), T + PH, "required");
         snprintf(buf, sizeof buf, "required %.3g", s->req.wb);
-        svg_text(f, PX(s->req.wb) + 3, T + PH - 6, "start", "small", 0, buf);
+        ps_plot_vline(&p, s->req.wb, "required", NULL, false);
+        ps_plot_text_px(&p, ps_plot_x(&p, s->req.wb) + 3, 228, "start", "small value", 0, buf);
     }
     if (widest) {
-        svg_line(f, PX(bt->limit), T, PX(bt->limit), T + PH, "promise");
-        fprintf(f, "<path class=\"clipmark\" d=\"M%.1f %.1fl-5 -8h10z\"/>\n", PX(bt->limit), T + PH);
         snprintf(buf, sizeof buf, "widest band edge %.3g rad/s", bt->limit);
         /* Left of the line the floor is still below the allowed Ms, so the
          * top-left corner is free; near the left edge use the right side. */
-        bool left = PX(bt->limit) - L > 125;
-        svg_text(f, PX(bt->limit) + (left ? -3 : 3), T + 12, left ? "end" : "start", "small", 0, buf);
+        ps_plot_vline(&p, bt->limit, "promise", buf, ps_plot_x(&p, bt->limit) - 64 > 125);
+        ps_plot_marker_px(&p, ps_plot_x(&p, bt->limit), 229, 5, PS_MARK_UP, "mark-solid");
     }
-    svg_text(f, L + PW / 2, T + PH + 34, "middle", "", 0, "band edge w_b (rad/s, log)");
-    svg_text(f, 16, T + PH / 2, "middle", "", -90, "Ms floor (ratio, log)");
-    fprintf(f, "</svg>\n");
-#undef PX
-#undef PY
+    ps_plot_close(&p);
     char text[400];
     ps_target_text(s, PS_TARGET_BAND, text, sizeof text);
     fprintf(f, "<figcaption>Ms floor forced by |S| &le; %.3g up to the band edge w_b, against w_b (both axes log). "
@@ -1221,6 +1006,111 @@ static void band_figure(FILE *f, const ps_summary *s)
     fprintf(f, "</figcaption>\n</figure>\n");
 }
 
+/* ---- figure (d): the log-area budget of a flagged plant ---- */
+
+/* The Bode sensitivity integral of the band floor (README "Floors";
+ * src/limits/floors.c) as a budget of log-area, the integral of ln|S| over
+ * frequency in rad/s (ln|S| in nepers): the unstable poles force the area F
+ * (fl.bode_area); |S| <= eps on [0, wb] takes wb ln(1/eps) more; the
+ * roll-off bound past wh gives back at most I (fl.band_tail, up to pi/h
+ * for a digital loop); the rest must fit under the peak on [wb, wh]:
+ * (wh - wb) ln Ms >= F + wb ln(1/eps) - I, with equality at the band floor.
+ * Without a roll-off start a continuous loop's rest has no end to fit
+ * under; a digital loop's rest then goes on [wb, pi/h] (the Nyquist floor). */
+static void budget_figure(FILE *f, const ps_summary *s)
+{
+    const ps_floors *fl = &s->fl;
+    double F = fl->bode_area;
+    if (!isfinite(F))
+        return;
+    bool sampled = s->h > 0, band = s->req.wb > 0;
+    double wb = band ? s->req.wb : 0.0, B = band ? wb * log(1.0 / s->req.eps) : 0.0;
+    bool tail = isfinite(fl->band_tail) && isfinite(fl->ms_band_ln);
+    bool nyq = !tail && sampled && isfinite(fl->ms_nyquist_ln);
+    double I = tail ? fl->band_tail : 0.0, R = F + B - I;
+    double width = tail ? s->req.wh - wb : nyq ? fl->nyquist - wb : NAN;
+    double ms_ln = tail ? fl->ms_band_ln : nyq ? fl->ms_nyquist_ln : NAN;
+    double allowed_area = isfinite(width) && s->req.ms_allowed > 1 ? width * log(s->req.ms_allowed) : NAN;
+    double lo = fmin(0.0, R), hi = fmax(F + B, fmax(R, isfinite(allowed_area) ? allowed_area : 0.0));
+    if (!(hi > lo))
+        hi = lo + 1;
+    double pad = 0.04 * (hi - lo);
+
+    char buf[240], label[80];
+    fit_label(label, sizeof label, s->id, 36);
+    snprintf(buf, sizeof buf, "%s: log-area budget", label);
+    fprintf(f, "<figure class=\"budget\" data-id=\"");
+    h_text(f, s->id);
+    fprintf(f, "\" data-bode-area=\"%.17g\" data-band-area=\"%.17g\" data-tail-area=\"%.17g\" "
+               "data-rest-area=\"%.17g\" data-width=\"%.17g\" data-ms-ln=\"%.17g\">\n",
+            F, B, I, R, width, ms_ln);
+    bool room = isfinite(allowed_area);
+    int rows = room ? 5 : 4;
+    const double RH = 38, T = 34, L = 14, PW = 360;
+    ps_plot p;
+    ps_plot_open(&p, f, 400, T + rows * RH + 48, "budget", buf);
+    ps_plot_area(&p, L, T, PW, rows * RH);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_LINEAR, .lo = lo - pad, .hi = hi + pad,
+                         .title = "log-area, ln|S| integrated over frequency (rad/s \xc2\xb7 Np)"};
+    p.y = (ps_plot_axis){.scale = PS_SCALE_NONE, .lo = 0, .hi = rows};
+    ps_plot_axes(&p);
+    ps_plot_vline(&p, 0, "", NULL, false);
+    /* One row each, top down: the words above a bar of 14 px. */
+    char text[5][120];
+    if (sampled)
+        snprintf(text[0], sizeof text[0], "unstable poles force (\xcf\x80/h) \xce\xa3 ln|p_d| = %.4g", F);
+    else
+        snprintf(text[0], sizeof text[0], "unstable poles force \xcf\x80 \xce\xa3 Re p = %.4g", F);
+    if (band)
+        snprintf(text[1], sizeof text[1], "|S| \xe2\x89\xa4 %.3g on [0, %.3g] takes w_b ln(1/\xce\xb5) = %.4g", s->req.eps,
+                 wb, B);
+    else
+        snprintf(text[1], sizeof text[1], "no band requirement: nothing taken");
+    if (tail)
+        snprintf(text[2], sizeof text[2], "roll-off past w_h = %.3g%s gives back I = %.4g", s->req.wh,
+                 sampled ? " (to \xcf\x80/h)" : "", I);
+    else
+        snprintf(text[2], sizeof text[2], "no roll-off start: nothing given back");
+    if (tail || nyq)
+        snprintf(text[3], sizeof text[3], "rest for [%.3g, %.3g] = %.4g: Ms \xe2\x89\xa5 %.4g", wb,
+                 tail ? s->req.wh : fl->nyquist, R, exp(ms_ln));
+    else
+        snprintf(text[3], sizeof text[3], "rest %.4g may go anywhere past %.3g rad/s: no floor", R, wb);
+    if (room)
+        snprintf(text[4], sizeof text[4], "allowed Ms %.3g leaves room for %.4g", s->req.ms_allowed, allowed_area);
+    double x0[5] = {0, F, F + B - I, 0, 0}, x1[5] = {F, F + B, F + B, R, room ? allowed_area : 0};
+    static const char *const cls[5] = {"bar-take", "bar-take", "bar-give", "bar-rest", "bar-room"};
+    for (int k = 0; k < rows; k++) {
+        double y = T + RH * k;
+        ps_plot_text_px(&p, L + 4, y + 13, "start", "small value", 0, text[k]);
+        if (x1[k] != x0[k])
+            ps_plot_rect_px(&p, fmin(ps_plot_x(&p, x0[k]), ps_plot_x(&p, x1[k])), y + 18,
+                            fabs(ps_plot_x(&p, x1[k]) - ps_plot_x(&p, x0[k])), 14, cls[k]);
+    }
+    ps_plot_close(&p);
+    fprintf(f, "<figcaption>Log-area budget of ");
+    h_text(f, s->id);
+    fprintf(f, ": log-area is ln|S| (nepers) integrated over frequency (rad/s). For a stable loop of relative degree "
+               "2 or more, ln|S| integrates to %s over all frequencies%s (Bode's sensitivity integral). The band "
+               "requirement takes w_b ln(1/&epsilon;) more; the roll-off bound |L| &le; &delta; (w_h/w)<sup>1+k</sup> "
+               "can give back at most I = w_h &Sigma; &delta;<sup>n</sup> / (n (n (1+k) - 1))%s; the rest must fit "
+               "under the peak between w_b and w_h: (w_h - w_b) ln Ms &ge; F + w_b ln(1/&epsilon;) - I, the band "
+               "floor's own numbers.",
+            sampled ? "(&pi;/h) &Sigma; ln|p_d| of the poles outside the unit circle" : "&pi; &Sigma; Re p of the "
+                                                                                        "unstable poles",
+            sampled ? " up to &pi;/h" : "", sampled ? ", each term cut at &pi;/h" : "");
+    if (!band)
+        fprintf(f, " No band requirement: w_b = 0, nothing taken.");
+    if (!tail && nyq)
+        fprintf(f, " No roll-off start: the rest goes on [w_b, &pi;/h], the Nyquist floor.");
+    else if (!tail)
+        fprintf(f, " No roll-off start: the rest may spread over every frequency past w_b, so the area sets no floor.");
+    if (room)
+        fprintf(f, " Last bar (dashed): the room the allowed Ms leaves on that interval, (width) ln Ms allowed; the "
+                   "requirement passes this floor when the rest fits in it.");
+    fprintf(f, "</figcaption>\n</figure>\n");
+}
+
 static void band_figures(FILE *f, const ps_run *r)
 {
     bool any = false;
@@ -1234,6 +1124,8 @@ static void band_figures(FILE *f, const ps_run *r)
             fprintf(f, "<section id=\"band\">\n<h2>Ms floor against band edge</h2>\n<div class=\"figs\">\n");
         any = true;
         band_figure(f, s);
+        if (s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_MARGINAL)
+            budget_figure(f, s);
     }
     if (any && drawn == PS_HTML_FIGURES && r->n_rows > drawn)
         fprintf(f, "</div>\n<p>Drawn for the %d worst plants; every plant's curve is in the JSON report "

@@ -432,6 +432,7 @@ static void same_floors(const ps_floors *a_fl, const ps_floors *f_fl, const ps_r
     for (size_t m = 0; m < 8; m++) /* the logarithms beside the floors */
         cr_assert(same_double(a_ln[m], f_ln[m]), "log %zu at wb %g wh %g delta %g: %.17g vs %.17g", m, q->wb, q->wh,
                   q->delta, a_ln[m], f_ln[m]);
+    cr_assert(same_double(a_fl->band_tail, f_fl->band_tail));
     cr_assert_str_eq(a_fl->limiting, f_fl->limiting);
     cr_assert(same_double(a_fl->crossover_min, f_fl->crossover_min));
     cr_assert(same_double(a_fl->crossover_max, f_fl->crossover_max));

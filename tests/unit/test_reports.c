@@ -493,9 +493,11 @@ Test(reports, html_escapes_and_has_one_plant_row_per_plant)
     cr_assert_null(strstr(doc, "https:"));
     cr_assert_eq(count_of(doc, "http:"), count_of(doc, "xmlns=\"http://www.w3.org/2000/svg\""));
     /* Figures: severity bars, a map for each of the two flagged plants, a band
-     * figure for each of the two plants with a curve. */
-    cr_assert_eq(count_of(doc, "<svg "), 1 + 2 + 2);
-    cr_assert_eq(count_of(doc, "</svg>"), 1 + 2 + 2);
+     * figure for each of the two plants with a curve, a log-area budget for
+     * the one of those that is marginal or redesign. */
+    cr_assert_eq(count_of(doc, "<svg "), 1 + 2 + 2 + 1);
+    cr_assert_eq(count_of(doc, "</svg>"), 1 + 2 + 2 + 1);
+    cr_assert_eq(count_of(doc, "<figure class=\"budget\""), 1);
     cr_assert_eq(count_of(doc, "<article class=\"flagged\""), 2);
     cr_assert_not_null(strstr(doc, "not stabilizable (off-scale)"));
     cr_assert_not_null(strstr(doc, "input error, no bar: bad-row"));
@@ -528,7 +530,7 @@ Test(reports, html_figures_are_well_formed_svg)
         "import re, sys, xml.etree.ElementTree as ET\n"
         "doc = open(sys.argv[1], encoding='utf-8').read()\n"
         "svgs = re.findall(r'<svg .*?</svg>', doc, re.S)\n"
-        "assert len(svgs) == 5, len(svgs)\n"
+        "assert len(svgs) == 6, len(svgs)\n"
         "for s in svgs:\n"
         "    s = s.replace('&plusmn;', '+-').replace('&le;', '<=')\n"
         "    root = ET.fromstring(s)\n"
