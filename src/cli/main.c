@@ -16,6 +16,7 @@
 
 #include "batch/batch.h"
 #include "catalog/catalog.h"
+#include "core/diag.h"
 #include "core/text.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
@@ -337,12 +338,21 @@ typedef struct cli_ctx {
     ps_listing *listing;
 } cli_ctx;
 
+/* A diagnostic on stderr: "plantsieve: FILE:LINE:COL: [plant 'ID': ]TEXT", the
+ * line and column only where known (ps_diag_pos). */
+static void say_at(const char *file, const ps_diag *d, const char *id)
+{
+    char pos[PS_DIAG_POS];
+    bool named = id && id[0];
+    fprintf(stderr, "plantsieve: %s%s: %s%s%s%s\n", file, ps_diag_pos(pos, sizeof pos, d->line, d->col),
+            named ? "plant '" : "", named ? id : "", named ? "': " : "", d->text);
+}
+
 static void report_entry(void *ctx, const ps_outcome *o)
 {
     cli_ctx *c = ctx;
     if (o->err)
-        fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", o->file, o->err->line, o->err->col,
-                o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "", o->err->text);
+        say_at(o->file, o->err, o->p->id);
     ps_listing_add(c->listing, o);
 }
 
@@ -392,7 +402,7 @@ static int cmd_survey(int argc, char **argv)
         ps_status st = ps_batch_run(b, cats[i], &fd);
         if (st != PS_OK) {
             io_failed = true;
-            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", cats[i], fd.line, fd.col, fd.text);
+            say_at(cats[i], &fd, NULL);
         }
         ps_listing_catalog(c.listing, cats[i], st == PS_OK ? NULL : &fd);
     }
@@ -463,8 +473,7 @@ typedef struct screen_ctx {
 static void say_entry_error(void *ctx, const char *file, const ps_plant *p, const ps_diag *err)
 {
     (void)ctx;
-    fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", file, err->line, err->col, p->id[0] ? "plant '" : "",
-            p->id, p->id[0] ? "': " : "", err->text);
+    say_at(file, err, p->id);
 }
 
 static void remember_member(screen_ctx *c, const char *id)
@@ -554,7 +563,7 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
             c->nomem = true;
         if (st != PS_OK) {
             ok = false;
-            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", files[i], fd.line, fd.col, fd.text);
+            say_at(files[i], &fd, NULL);
             if (ps_run_catalog_failed(&c->run, &fd) != PS_OK)
                 c->nomem = true;
         }
@@ -921,8 +930,9 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     const ps_plant *p = o->p;
     printf("plantsieve %s: explanation of plant '%s' (%s:%zu)\n\n", PS_VERSION, p->id, o->file, p->line);
     if (o->err) {
-        printf("  input error at line %zu, column %zu, field '%s': %s\n", o->err->line, o->err->col, o->err->field,
-               o->err->text);
+        char pos[PS_DIAG_POS];
+        ps_diag_pos_words(pos, sizeof pos, o->err->line, o->err->col);
+        printf("  input error%s%s, field '%s': %s\n", pos[0] ? " at " : "", pos, o->err->field, o->err->text);
         return;
     }
     const ps_analysis *an = o->an;
@@ -1133,7 +1143,7 @@ static int cmd_read(int argc, char **argv)
         read_count c = {0};
         ps_diag fd = {0};
         if (ps_catalog_read_families(cats[i], scratch, count_entry, count_family, &c, &fd) != PS_OK) {
-            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", cats[i], fd.line, fd.col, fd.text);
+            say_at(cats[i], &fd, NULL);
             rc = EXIT_IO;
         }
         printf("%s: %zu entries read, %zu with errors\n", cats[i], c.entries, c.errors);
