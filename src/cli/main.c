@@ -300,10 +300,14 @@ static int options_parse(const cli_command *cmd, int argc, char **argv, option_f
             return usage_error("option needs a value", o ? option_name(o, name, sizeof name) : NULL);
         }
         if (key == '?') {
-            /* A long option's error has moved optind past it; a short one may not have. */
-            const char *arg = argv[optind - 1];
-            if (strncmp(arg, "--", 2) == 0)
-                return usage_error(optopt ? "option takes no value" : "unknown option", arg);
+            /* optopt: 0 for an unknown long option, the key of a known one
+             * given a value it does not take ("--json=x"), else the unknown
+             * letter. A long option's error has moved optind past it; a
+             * letter inside a cluster ("-xq") has not. */
+            if (optopt == 0)
+                return usage_error("unknown option", argv[optind - 1]);
+            if (option_find(cmd, optopt))
+                return usage_error("option takes no value", argv[optind - 1]);
             char letter[3] = {'-', (char)optopt, '\0'};
             return usage_error("unknown option", letter);
         }

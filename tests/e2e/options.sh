@@ -55,11 +55,21 @@ for c in survey screen explain read; do
     ! grep -q "unrecognized\|invalid option" "$tmp/err"; check "$c --bogus: no message of getopt's own" 0 $?
     "$ps" $c -Z "$cf" >"$tmp/out" 2>"$tmp/err"; check "$c -Z exits 2" 2 $?
     contains "$c -Z: our message" "$tmp/err" "plantsieve: unknown option: -Z"
+    "$ps" $c -hZ >"$tmp/out" 2>"$tmp/err"; check "$c -hZ: options in order, the help first" 0 $?
+    "$ps" $c -- --help -Zh "$cf" >"$tmp/out" 2>"$tmp/err"
+    ! grep -q "usage:\|unknown option" "$tmp/out" "$tmp/err"; check "$c -- --help -Zh CAT: operands only" 0 $?
     "$ps" $c --hel "$cf" >"$tmp/out" 2>"$tmp/err"; check "$c --hel (an abbreviation) exits 2" 2 $?
     contains "$c --hel: not taken for --help" "$tmp/err" "plantsieve: unknown option: --hel"
     "$ps" $c --help=yes >"$tmp/out" 2>"$tmp/err"; check "$c --help=yes exits 2" 2 $?
     contains "$c --help=yes: takes no value" "$tmp/err" "plantsieve: option takes no value: --help=yes"
 done
+
+# A letter inside a cluster after a long option is named itself (getopt has
+# not moved past the cluster then), not the option before it.
+"$ps" screen --quiet -Zq "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen --quiet -Zq exits 2" 2 $?
+contains "screen --quiet -Zq: -Z named" "$tmp/err" "plantsieve: unknown option: -Z"
+"$ps" survey --json -Zq "$cf" >"$tmp/out" 2>"$tmp/err"; check "survey --json -Zq exits 2" 2 $?
+contains "survey --json -Zq: -Z named" "$tmp/err" "plantsieve: unknown option: -Z"
 
 # Values as "--opt v" and "--opt=v", options before or after the catalogs: the same run.
 "$ps" screen --no-files --gate never --marginal-at 0.5 --show 3 --threads 2 --detail flagged "$demo" \
