@@ -1200,5 +1200,5 @@ int main(int argc, char **argv)
         return cmd_screen(argc - 1, argv + 1);
     if (strcmp(cmd, "explain") == 0)
         return cmd_explain(argc - 1, argv + 1);
-    return usage_error("unknown command", cmd);
+    return usage_error(cmd[0] == '-' ? "unknown option" : "unknown command", cmd);
 }

@@ -123,6 +123,11 @@ contains "--marginal-at=1.5 named" "$tmp/err" "--marginal-at takes a number in (
 contains "read without catalogs: said" "$tmp/err" "read needs at least one catalog file"
 "$ps" explain strider-d >"$tmp/out" 2>"$tmp/err"; check "explain without catalogs" 2 $?
 "$ps" help frobnicate >"$tmp/out" 2>"$tmp/err"; check "help of an unknown command" 2 $?
+"$ps" --frobnicate >"$tmp/out" 2>"$tmp/err"; check "an unknown option of the program" 2 $?
+contains "an unknown option of the program: named" "$tmp/err" "plantsieve: unknown option: --frobnicate"
+contains "an unknown option of the program: the program's help" "$tmp/err" "Try 'plantsieve --help'."
+"$ps" frobnicate >"$tmp/out" 2>"$tmp/err"; check "an unknown command" 2 $?
+contains "an unknown command: named" "$tmp/err" "plantsieve: unknown command: frobnicate"
 
 echo "options: $pass passed, $fail failed"
 [ "$fail" -eq 0 ]
