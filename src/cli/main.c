@@ -1,6 +1,9 @@
 /* main.c - the plantsieve command line: argument parsing and exit codes over
  * the core library. Data goes to stdout, diagnostics to stderr. */
+#include <assert.h>
 #include <errno.h>
+#include <getopt.h>
+#include <limits.h>
 #include <locale.h>
 #include <math.h>
 #include <signal.h>
@@ -13,6 +16,7 @@
 
 #include "batch/batch.h"
 #include "catalog/catalog.h"
+#include "core/diag.h"
 #include "core/text.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
@@ -42,14 +46,18 @@ enum {
 #define SHOW_XSTR(x) SHOW_STR(x)
 #define SHOW_TEXT SHOW_XSTR(SHOW_DEFAULT)
 
+/* The program's help: the commands. Each command's options are in its
+ * table below and printed by `plantsieve COMMAND --help`. */
 static const char usage_text[] =
     "usage: plantsieve COMMAND [OPTIONS] CATALOG...\n"
+    "       plantsieve COMMAND --help\n"
+    "       plantsieve --help | --version\n"
     "\n"
     "Screen candidate plant variants for the limits that no controller can beat.\n"
     "\n"
     "commands:\n"
-    "  screen CATALOG...   rank every plant, give verdicts, causes and redesign targets;\n"
-    "                      print the ranked table and write the reports\n"
+    "  screen CATALOG...   rank every plant, give verdicts, causes and redesign\n"
+    "                      targets; print the ranked table and write the reports\n"
     "  explain ID CATALOG...  every number behind one plant's verdict, with formula,\n"
     "                      inputs, source and assumption, and what raises the binding\n"
     "                      floor; a family id lists the family's plants\n"
@@ -58,108 +66,358 @@ static const char usage_text[] =
     "  read CATALOG...     read every entry and discard it; print the count (the\n"
     "                      reading cost alone, for benchmarks)\n"
     "\n"
-    "screen options:\n"
-    "  -o DIR              write the reports into DIR (default: reports)\n"
-    "  --gate WHEN         exit 1 when WHEN: redesign (default; redesign or not\n"
-    "                      stabilizable), marginal (also marginal), never\n"
-    "  --marginal-at X     share of the allowed log-peak that makes a plant marginal\n"
-    "                      (default 0.8)\n"
-    "  --no-files          print the listing only, write no report files; past\n"
-    "                      --memory-rows only the rows it can print are kept\n"
-    "  --threads N         assess plants on N threads (default: the online CPUs);\n"
-    "                      the reports are the same for any N\n"
-    "  --quiet             no progress line on stderr (shown only on a terminal)\n"
-    "  --show N            rows per section of the listing on stdout (default " SHOW_TEXT ";\n"
-    "                      all: every row); the .txt report always has them all\n"
-    "  --detail WHICH      redesign targets and band curves for all plants (default),\n"
-    "                      flagged ones (marginal, redesign) or none: faster on large runs\n"
-    "  --memory-rows N     keep at most N plant summaries in memory (default 16384);\n"
-    "                      beyond, they go to a temporary file (about 1.7 kB\n"
-    "                      each, 1.2 kB with --detail none)\n"
-    "survey options:\n"
-    "  --json              write one JSON document to stdout instead of text\n"
-    "  -h, --help          show this help and exit\n"
+    "options:\n"
+    "  -h, --help          show this help and exit (after a command: its options)\n"
     "  --version           show the version and exit\n"
     "\n"
-    "Catalogs are YAML (.yaml, .yml) or CSV (.csv). Exit codes: 0 success (screen:\n"
-    "the gate passed), 1 the gate tripped, 2 usage error, 3 some entries rejected\n"
-    "or (screen) some plants not judged: an unstable plant needs rolloff_start (the\n"
-    "rest processed), 4 a catalog, a report or the output failed, 5 another run is\n"
-    "writing the same reports into DIR; interrupted by SIGINT, SIGTERM or SIGHUP:\n"
-    "128 + the signal number, and no report of the run is published.\n";
+    "Catalogs are YAML (.yaml, .yml) or CSV (.csv). Options may come before or after\n"
+    "the catalogs; a value follows its option as '--show 5' or '--show=5'; '--' ends\n"
+    "the options (for a file name that begins with '-').\n"
+    "\n"
+    "Exit codes: 0 success (screen: the gate passed), 1 the gate tripped, 2 usage\n"
+    "error, 3 some entries rejected or (screen) some plants not judged: an unstable\n"
+    "plant needs rolloff_start (the rest processed), 4 a catalog, a report or the\n"
+    "output failed, 5 another run is writing the same reports into DIR; interrupted\n"
+    "by SIGINT, SIGTERM or SIGHUP: 128 + the signal number, and no report of the run\n"
+    "is published.\n";
+
+/* ---- options: one table per command drives getopt_long and the help ---- */
+
+/* Keys of the options that have a long name only (getopt_long's val). */
+enum {
+    OPT_JSON = 256,
+    OPT_GATE,
+    OPT_MARGINAL_AT,
+    OPT_NO_FILES,
+    OPT_THREADS,
+    OPT_QUIET,
+    OPT_SHOW,
+    OPT_DETAIL,
+    OPT_MEMORY_ROWS
+};
+
+typedef struct cli_option {
+    const char *name;  /* long name without the dashes; NULL for a short option alone */
+    int key;           /* the short letter, or an OPT_* key */
+    const char *value; /* the value's name in the help; NULL for an option without a value */
+    const char *help;  /* what it does; each '\n' starts a continuation line */
+} cli_option;
+
+typedef struct cli_command {
+    const char *name;
+    const char *operands; /* what follows the options in the usage line */
+    const char *about;    /* printed under the usage line */
+    const cli_option *opts; /* ends with a zero entry */
+    const char *after;    /* printed after the options (exit codes), or NULL */
+} cli_command;
+
+#define HELP_OPTION {"help", 'h', NULL, "show this help and exit"}
+
+static const cli_option survey_opts[] = {
+    {"json", OPT_JSON, NULL, "write one JSON document to stdout instead of text"},
+    HELP_OPTION,
+    {0},
+};
+
+static const cli_option screen_opts[] = {
+    {NULL, 'o', "DIR", "write the report set into DIR/<stem>.screen/, <stem>\n"
+                       "the first catalog's name without its ending\n"
+                       "(default: reports)"},
+    {"gate", OPT_GATE, "WHEN", "exit 1 when WHEN: redesign (default; redesign or not\n"
+                               "stabilizable), marginal (also marginal), never"},
+    {"marginal-at", OPT_MARGINAL_AT, "X", "share of the allowed log-peak that makes a plant\n"
+                                          "marginal, a number in (0, 1] (default 0.8)"},
+    {"no-files", OPT_NO_FILES, NULL, "print the listing only, write no report files; past\n"
+                                     "--memory-rows only the rows it can print are kept"},
+    {"threads", OPT_THREADS, "N", "assess plants on N threads, 1 to 64 (default: the\n"
+                                  "online CPUs); the reports are the same for any N"},
+    {"quiet", OPT_QUIET, NULL, "no progress line on stderr (shown only on a terminal)"},
+    {"show", OPT_SHOW, "N", "rows per section of the listing on stdout (default\n"
+                            SHOW_TEXT "; all: every row); the .txt report has them all"},
+    {"detail", OPT_DETAIL, "WHICH", "redesign targets and band curves for all plants\n"
+                                    "(default), flagged ones (marginal, redesign) or none:\n"
+                                    "faster on large runs"},
+    {"memory-rows", OPT_MEMORY_ROWS, "N", "keep at most N plant summaries in memory (default\n"
+                                          "16384); beyond, they go to a temporary file (about\n"
+                                          "1.7 kB each, 1.2 kB with --detail none)"},
+    HELP_OPTION,
+    {0},
+};
+
+static const cli_option plain_opts[] = {HELP_OPTION, {0}};
+
+static const cli_command survey_cmd = {
+    "survey", "CATALOG...",
+    "List each plant's poles and zeros (marked [rhp] or [axis]; in z: outside or\n"
+    "circle), gain, relative degree, delay, the counts of RHP poles and zeros, hidden\n"
+    "unstable modes, warnings and floors. Rejected entries are listed with their\n"
+    "error.",
+    survey_opts,
+    "Exit codes: 0 every entry read and analysed, 2 usage error, 3 some entries\n"
+    "rejected (the rest listed), 4 a catalog could not be opened or parsed to the\n"
+    "end, or the output failed.\n"};
+
+static const cli_command screen_cmd = {
+    "screen", "CATALOG...",
+    "Rank every plant by the share of its allowed peak its floors use, give each a\n"
+    "verdict, a cause and redesign targets, print the ranked table and write the\n"
+    "report set (.txt, .csv, .json, .md, .html; .families.csv when the run has\n"
+    "families), published whole or not at all.",
+    screen_opts,
+    "Exit codes: 0 the gate passed, 1 the gate tripped, 2 usage error, 3 some entries\n"
+    "could not be read or some plants not judged (an unstable plant needs\n"
+    "rolloff_start; takes precedence over 1), 4 a catalog, a report or the output\n"
+    "failed, 5 another run is writing the same report set into DIR; interrupted by\n"
+    "SIGINT, SIGTERM or SIGHUP: 128 + the signal number, no report of the run is\n"
+    "published.\n"};
+
+static const cli_command explain_cmd = {
+    "explain", "ID CATALOG...",
+    "Every number behind the verdict of the plant ID: roots, requirements, each\n"
+    "floor with formula, inputs, source and assumption, the severity arithmetic,\n"
+    "what raises the binding floor, the verdict and every redesign target. A family\n"
+    "id lists the family's plants. An ID that begins with '-' follows '--'.",
+    plain_opts,
+    "Exit codes: 0 explained, 2 usage error or no plant ID in the catalogs, 3 some\n"
+    "entries rejected, 4 a catalog could not be opened or parsed to the end, or the\n"
+    "output failed.\n"};
+
+static const cli_command read_cmd = {
+    "read", "CATALOG...",
+    "Read every entry of each catalog and discard it; print the count per catalog\n"
+    "(the reading cost alone, for benchmarks).",
+    plain_opts,
+    "Exit codes: 0 every catalog read to the end, 2 usage error, 4 a catalog could\n"
+    "not be opened or parsed to the end, or the output failed.\n"};
+
+/* The command whose --help a usage error points to (NULL: the program's). */
+static const cli_command *usage_of;
+
+static int usage_error(const char *what, const char *arg)
+{
+    fprintf(stderr, "plantsieve: %s%s%s\nTry 'plantsieve %s%s--help'.\n", what, arg ? ": " : "", arg ? arg : "",
+            usage_of ? usage_of->name : "", usage_of ? " " : "");
+    return EXIT_USAGE;
+}
+
+/* "-o" or "--gate": how a message names an option. */
+static const char *option_name(const cli_option *o, char *out, size_t n)
+{
+    if (o->name)
+        snprintf(out, n, "--%s", o->name);
+    else
+        snprintf(out, n, "-%c", o->key);
+    return out;
+}
+
+/* "-o DIR", "--gate WHEN", "-h, --help": how the help names an option. */
+static int option_label(const cli_option *o, char *out, size_t n)
+{
+    char letter[4] = "";
+    if (o->key < 256)
+        snprintf(letter, sizeof letter, "-%c%s", o->key, o->name ? "," : "");
+    return snprintf(out, n, "%s%s%s%s%s%s", letter, letter[0] && o->name ? " " : "", o->name ? "--" : "",
+                    o->name ? o->name : "", o->value ? " " : "", o->value ? o->value : "");
+}
+
+static int print_help(const cli_command *cmd)
+{
+    printf("usage: plantsieve %s [OPTIONS] %s\n\n%s\n\noptions:\n", cmd->name, cmd->operands, cmd->about);
+    for (const cli_option *o = cmd->opts; o->key; o++) {
+        char label[64];
+        int w = option_label(o, label, sizeof label);
+        printf("  %-18s", label);
+        if (w > 18)
+            printf("\n  %18s", "");
+        for (const char *h = o->help; *h;) {
+            size_t len = strcspn(h, "\n");
+            printf("  %.*s\n", (int)len, h);
+            h += len;
+            if (*h == '\n' && *++h)
+                printf("  %18s", "");
+        }
+    }
+    if (cmd->after)
+        printf("\n%s", cmd->after);
+    return fflush(stdout) == 0 && !ferror(stdout) ? EXIT_CLEAN : EXIT_IO;
+}
+
+static const cli_option *option_find(const cli_command *cmd, int key)
+{
+    for (const cli_option *o = cmd->opts; o->key; o++)
+        if (o->key == key)
+            return o;
+    return NULL;
+}
+
+/* Handles one option of a command: returns GO_ON, or the exit code of a bad value. */
+typedef int (*option_fn)(void *ctx, int key, const char *value);
+enum { GO_ON = -1, MAX_OPTIONS = 16 };
+
+/* Parse the options of cmd with getopt_long. argv[0] is the command name;
+ * options and operands may come in any order, a value as "--opt v" or
+ * "--opt=v", "--" ends the options. Each option goes to fn; --help prints the
+ * command's help. OUT: operands[0 .. *n_operands) (pointers into argv, in
+ * command-line order; room for argc). Returns GO_ON, or the exit code when
+ * the command ends here (help printed: 0; usage error: 2). */
+static int options_parse(const cli_command *cmd, int argc, char **argv, option_fn fn, void *ctx, char **operands,
+                         int *n_operands)
+{
+    struct option longs[MAX_OPTIONS + 1];
+    /* "-": operands come back in place as key 1 (no reordering of argv, and
+     * so also under POSIXLY_CORRECT); ":": a missing value returns ':'. */
+    char shorts[2 + 2 * MAX_OPTIONS + 1] = "-:";
+    size_t n_long = 0, n_short = 2;
+    for (const cli_option *o = cmd->opts; o->key; o++) {
+        assert(n_long < MAX_OPTIONS);
+        if (o->name)
+            longs[n_long++] = (struct option){o->name, o->value ? required_argument : no_argument, NULL, o->key};
+        if (o->key < 256) {
+            shorts[n_short++] = (char)o->key;
+            if (o->value)
+                shorts[n_short++] = ':';
+        }
+    }
+    longs[n_long] = (struct option){0};
+    shorts[n_short] = '\0';
+
+    usage_of = cmd;
+    *n_operands = 0;
+    opterr = 0; /* our own messages, not getopt's */
+    optind = 0; /* glibc: 0 starts getopt afresh (also inside a cluster of short options) */
+    for (;;) {
+        int li = -1;
+        int key = getopt_long(argc, argv, shorts, longs, &li);
+        if (key == -1)
+            break;
+        if (key == 1) {
+            operands[(*n_operands)++] = optarg;
+            continue;
+        }
+        if (key == ':') {
+            const cli_option *o = option_find(cmd, optopt);
+            char name[64];
+            return usage_error("option needs a value", o ? option_name(o, name, sizeof name) : NULL);
+        }
+        if (key == '?') {
+            /* optopt: 0 for an unknown long option, the key of a known one
+             * given a value it does not take ("--json=x"), else the unknown
+             * letter. A long option's error has moved optind past it; a
+             * letter inside a cluster ("-xq") has not. */
+            if (optopt == 0)
+                return usage_error("unknown option", argv[optind - 1]);
+            if (option_find(cmd, optopt))
+                return usage_error("option takes no value", argv[optind - 1]);
+            char letter[3] = {'-', (char)optopt, '\0'};
+            return usage_error("unknown option", letter);
+        }
+        if (li >= 0) {
+            /* getopt_long takes a unique prefix ("--no" for --no-files); we
+             * do not, so that a later option cannot change what a script means. */
+            const char *arg = argv[optind - 1];
+            if (optarg == arg && optind >= 2)
+                arg = argv[optind - 2];
+            size_t len = strlen(longs[li].name);
+            if (strncmp(arg + 2, longs[li].name, len) != 0 || (arg[2 + len] != '\0' && arg[2 + len] != '='))
+                return usage_error("unknown option", arg);
+        }
+        if (key == 'h')
+            return print_help(cmd);
+        int rc = fn(ctx, key, optarg);
+        if (rc != GO_ON)
+            return rc;
+    }
+    while (optind < argc)
+        operands[(*n_operands)++] = argv[optind++];
+    return GO_ON;
+}
+
+static int no_options(void *ctx, int key, const char *value)
+{
+    (void)ctx, (void)key, (void)value;
+    return GO_ON;
+}
 
 typedef struct cli_ctx {
     ps_listing *listing;
 } cli_ctx;
 
+/* A diagnostic on stderr: "plantsieve: FILE:LINE:COL: [plant 'ID': ]TEXT", the
+ * line and column only where known (ps_diag_pos). */
+static void say_at(const char *file, const ps_diag *d, const char *id)
+{
+    char pos[PS_DIAG_POS];
+    bool named = id && id[0];
+    fprintf(stderr, "plantsieve: %s%s: %s%s%s%s\n", file, ps_diag_pos(pos, sizeof pos, d->line, d->col),
+            named ? "plant '" : "", named ? id : "", named ? "': " : "", d->text);
+}
+
 static void report_entry(void *ctx, const ps_outcome *o)
 {
     cli_ctx *c = ctx;
     if (o->err)
-        fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", o->file, o->err->line, o->err->col,
-                o->p->id[0] ? "plant '" : "", o->p->id, o->p->id[0] ? "': " : "", o->err->text);
+        say_at(o->file, o->err, o->p->id);
     ps_listing_add(c->listing, o);
 }
 
-static int usage_error(const char *what, const char *arg)
+static int survey_option(void *ctx, int key, const char *value)
 {
-    fprintf(stderr, "plantsieve: %s%s%s\nTry 'plantsieve --help'.\n", what, arg ? ": " : "", arg ? arg : "");
-    return EXIT_USAGE;
+    (void)value;
+    if (key == OPT_JSON)
+        *(bool *)ctx = true;
+    return GO_ON;
+}
+
+/* Room for every operand of a command line of argc words; NULL when out of memory (told). */
+static char **operands_new(int argc)
+{
+    char **a = calloc((size_t)argc + 1, sizeof *a);
+    if (!a)
+        fputs("plantsieve: out of memory\n", stderr);
+    return a;
 }
 
 static int cmd_survey(int argc, char **argv)
 {
     bool json = false;
-    int first = -1, n_files = 0;
-    for (int i = 0; i < argc; i++) {
-        if (strcmp(argv[i], "--json") == 0)
-            json = true;
-        else if (strcmp(argv[i], "--") == 0) {
-            if (first < 0 && i + 1 < argc)
-                first = i + 1;
-            n_files += argc - i - 1;
-            break;
-        } else if (argv[i][0] == '-' && argv[i][1] != '\0')
-            return usage_error("unknown option", argv[i]);
-        else {
-            if (first < 0)
-                first = i;
-            n_files++;
-        }
+    int n = 0;
+    char **cats = operands_new(argc);
+    if (!cats)
+        return EXIT_IO;
+    int rc = options_parse(&survey_cmd, argc, argv, survey_option, &json, cats, &n);
+    if (rc == GO_ON && n == 0)
+        rc = usage_error("survey needs at least one catalog file", NULL);
+    if (rc != GO_ON) {
+        free(cats);
+        return rc;
     }
-    if (n_files == 0)
-        return usage_error("survey needs at least one catalog file", NULL);
 
     cli_ctx c = {ps_listing_new(stdout, json)};
     ps_batch *b = c.listing ? ps_batch_new(report_entry, &c) : NULL;
     if (!b) {
         fputs("plantsieve: out of memory\n", stderr);
         ps_listing_free(c.listing);
+        free(cats);
         return EXIT_IO;
     }
-    bool io_failed = false, after_dashdash = false;
-    for (int i = first; i < argc; i++) {
-        if (!after_dashdash && strcmp(argv[i], "--") == 0) {
-            after_dashdash = true;
-            continue;
-        }
-        if (!after_dashdash && argv[i][0] == '-' && argv[i][1] != '\0')
-            continue;
+    bool io_failed = false;
+    for (int i = 0; i < n; i++) {
         ps_diag fd = {0};
-        ps_status st = ps_batch_run(b, argv[i], &fd);
+        ps_status st = ps_batch_run(b, cats[i], &fd);
         if (st != PS_OK) {
             io_failed = true;
-            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", argv[i], fd.line, fd.col, fd.text);
+            say_at(cats[i], &fd, NULL);
         }
-        ps_listing_catalog(c.listing, argv[i], st == PS_OK ? NULL : &fd);
+        ps_listing_catalog(c.listing, cats[i], st == PS_OK ? NULL : &fd);
     }
     const ps_batch_counts *counts = ps_batch_counts_get(b);
     ps_status wst = ps_listing_finish(c.listing, counts);
-    int rc = counts->errors ? EXIT_ENTRIES : EXIT_CLEAN;
+    rc = counts->errors ? EXIT_ENTRIES : EXIT_CLEAN;
     if (io_failed)
         rc = EXIT_IO;
     ps_batch_free(b);
     ps_listing_free(c.listing);
+    free(cats);
     if (wst != PS_OK || fflush(stdout) != 0 || ferror(stdout)) {
         fputs("plantsieve: error writing the output\n", stderr);
         rc = EXIT_IO;
@@ -219,8 +477,7 @@ typedef struct screen_ctx {
 static void say_entry_error(void *ctx, const char *file, const ps_plant *p, const ps_diag *err)
 {
     (void)ctx;
-    fprintf(stderr, "plantsieve: %s:%zu:%zu: %s%s%s%s\n", file, err->line, err->col, p->id[0] ? "plant '" : "",
-            p->id, p->id[0] ? "': " : "", err->text);
+    say_at(file, err, p->id);
 }
 
 static void remember_member(screen_ctx *c, const char *id)
@@ -310,7 +567,7 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
             c->nomem = true;
         if (st != PS_OK) {
             ok = false;
-            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", files[i], fd.line, fd.col, fd.text);
+            say_at(files[i], &fd, NULL);
             if (ps_run_catalog_failed(&c->run, &fd) != PS_OK)
                 c->nomem = true;
         }
@@ -408,109 +665,122 @@ static void interrupts_hold(void)
 static int whole_argc;
 static char **whole_argv;
 
+/* What the options of screen set. */
+typedef struct screen_args {
+    const char *outdir;
+    gate g;
+    ps_screen_opts opt;
+    bool files, quiet;
+    size_t show;
+    size_t threads;
+} screen_args;
+
+/* A whole number in [lo, hi] written in full ("12", not "12x" or ""). */
+static bool whole_number(const char *v, long lo, long hi, long *out)
+{
+    char *end;
+    errno = 0;
+    long m = strtol(v, &end, 10);
+    if (errno || end == v || *end || m < lo || m > hi)
+        return false;
+    *out = m;
+    return true;
+}
+
+static int screen_option(void *ctx, int key, const char *v)
+{
+    screen_args *a = ctx;
+    long m;
+    switch (key) {
+    case 'o':
+        a->outdir = v;
+        break;
+    case OPT_NO_FILES:
+        a->files = false;
+        break;
+    case OPT_QUIET:
+        a->quiet = true;
+        break;
+    case OPT_DETAIL:
+        if (strcmp(v, "all") == 0)
+            a->opt.detail = PS_DETAIL_ALL;
+        else if (strcmp(v, "flagged") == 0)
+            a->opt.detail = PS_DETAIL_FLAGGED;
+        else if (strcmp(v, "none") == 0)
+            a->opt.detail = PS_DETAIL_NONE;
+        else
+            return usage_error("--detail takes all, flagged or none", v);
+        break;
+    case OPT_SHOW:
+        if (strcmp(v, "all") == 0)
+            a->show = 0;
+        else if (whole_number(v, 1, LONG_MAX, &m))
+            a->show = (size_t)m;
+        else
+            return usage_error("--show takes a whole number >= 1 or all", v);
+        break;
+    case OPT_MEMORY_ROWS:
+        if (!whole_number(v, 1, LONG_MAX, &m))
+            return usage_error("--memory-rows takes a whole number >= 1", v);
+        a->opt.memory_rows = (size_t)m;
+        break;
+    case OPT_THREADS:
+        if (!whole_number(v, 1, PS_POOL_MAX_THREADS, &m))
+            return usage_error("--threads takes a whole number from 1 to 64", v);
+        a->threads = (size_t)m;
+        break;
+    case OPT_GATE:
+        if (strcmp(v, "redesign") == 0)
+            a->g = GATE_REDESIGN;
+        else if (strcmp(v, "marginal") == 0)
+            a->g = GATE_MARGINAL;
+        else if (strcmp(v, "never") == 0)
+            a->g = GATE_NEVER;
+        else
+            return usage_error("--gate takes redesign, marginal or never", v);
+        break;
+    case OPT_MARGINAL_AT: {
+        char *end;
+        errno = 0;
+        double x = strtod(v, &end);
+        if (errno || *end || end == v || !(x > 0 && x <= 1))
+            return usage_error("--marginal-at takes a number in (0, 1]", v);
+        a->opt.marginal_at = x;
+        break;
+    }
+    default:
+        assert(!"an option of the table without a case");
+    }
+    return GO_ON;
+}
+
 static int cmd_screen(int argc, char **argv)
 {
-    const char *outdir = "reports";
-    gate g = GATE_REDESIGN;
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
-    bool files = true, dashdash = false, quiet = false;
-    size_t show = SHOW_DEFAULT;
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
-    size_t threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1;
-    char **cats = calloc((size_t)argc + 1, sizeof *cats);
+    screen_args a = {
+        .outdir = "reports",
+        .g = GATE_REDESIGN,
+        .opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0},
+        .files = true,
+        .show = SHOW_DEFAULT,
+        .threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1,
+    };
     int n = 0;
+    char **cats = operands_new(argc);
     if (!cats)
         return EXIT_IO;
-    for (int i = 0; i < argc; i++) {
-        const char *a = argv[i];
-        if (dashdash || a[0] != '-' || a[1] == '\0') {
-            cats[n++] = argv[i];
-            continue;
-        }
-        if (strcmp(a, "--") == 0)
-            dashdash = true;
-        else if (strcmp(a, "--no-files") == 0)
-            files = false;
-        else if (strcmp(a, "--quiet") == 0)
-            quiet = true;
-        else if (strcmp(a, "--detail") == 0) {
-            const char *v = i + 1 < argc ? argv[++i] : "";
-            if (strcmp(v, "all") == 0)
-                opt.detail = PS_DETAIL_ALL;
-            else if (strcmp(v, "flagged") == 0)
-                opt.detail = PS_DETAIL_FLAGGED;
-            else if (strcmp(v, "none") == 0)
-                opt.detail = PS_DETAIL_NONE;
-            else {
-                free(cats);
-                return usage_error("--detail takes all, flagged or none", v);
-            }
-        } else if (strcmp(a, "--show") == 0) {
-            char *end = NULL;
-            const char *v = i + 1 < argc ? argv[++i] : "";
-            long m = strcmp(v, "all") == 0 ? 0 : strtol(v, &end, 10);
-            if (end && (end == v || *end || m < 1)) {
-                free(cats);
-                return usage_error("--show takes a whole number >= 1 or all", v);
-            }
-            show = (size_t)m;
-        } else if (strcmp(a, "--memory-rows") == 0) {
-            char *end;
-            long m = i + 1 < argc ? strtol(argv[i + 1], &end, 10) : 0;
-            if (i + 1 >= argc || *end || m < 1) {
-                free(cats);
-                return usage_error("--memory-rows takes a whole number >= 1", i + 1 < argc ? argv[i + 1] : NULL);
-            }
-            opt.memory_rows = (size_t)m;
-            i++;
-        }
-        else if (strcmp(a, "--threads") == 0) {
-            char *end;
-            long t = i + 1 < argc ? strtol(argv[i + 1], &end, 10) : 0;
-            if (i + 1 >= argc || *end || t < 1 || t > PS_POOL_MAX_THREADS) {
-                free(cats);
-                return usage_error("--threads takes a whole number from 1 to 64", i + 1 < argc ? argv[i + 1] : NULL);
-            }
-            threads = (size_t)t;
-            i++;
-        } else if (strcmp(a, "-o") == 0 || strcmp(a, "--gate") == 0 || strcmp(a, "--marginal-at") == 0) {
-            if (i + 1 >= argc) {
-                free(cats);
-                return usage_error("option needs a value", a);
-            }
-            const char *v = argv[++i];
-            if (strcmp(a, "-o") == 0)
-                outdir = v;
-            else if (strcmp(a, "--gate") == 0) {
-                if (strcmp(v, "redesign") == 0)
-                    g = GATE_REDESIGN;
-                else if (strcmp(v, "marginal") == 0)
-                    g = GATE_MARGINAL;
-                else if (strcmp(v, "never") == 0)
-                    g = GATE_NEVER;
-                else {
-                    free(cats);
-                    return usage_error("--gate takes redesign, marginal or never", v);
-                }
-            } else {
-                char *end;
-                errno = 0;
-                double x = strtod(v, &end);
-                if (errno || *end || end == v || !(x > 0 && x <= 1)) {
-                    free(cats);
-                    return usage_error("--marginal-at takes a number in (0, 1]", v);
-                }
-                opt.marginal_at = x;
-            }
-        } else {
-            free(cats);
-            return usage_error("unknown option", a);
-        }
-    }
-    if (n == 0) {
+    int prc = options_parse(&screen_cmd, argc, argv, screen_option, &a, cats, &n);
+    if (prc == GO_ON && n == 0)
+        prc = usage_error("screen needs at least one catalog file", NULL);
+    if (prc != GO_ON) {
         free(cats);
-        return usage_error("screen needs at least one catalog file", NULL);
+        return prc;
     }
+    const char *outdir = a.outdir;
+    gate g = a.g;
+    ps_screen_opts opt = a.opt;
+    bool files = a.files, quiet = a.quiet;
+    size_t show = a.show, threads = a.threads;
     if (!files)
         opt.keep_top = show; /* only the cut listing reads the rows (0: all) */
     char stem[256], name[320], full[PS_SET_PATH + 600];
@@ -664,8 +934,9 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
     const ps_plant *p = o->p;
     printf("plantsieve %s: explanation of plant '%s' (%s:%zu)\n\n", PS_VERSION, p->id, o->file, p->line);
     if (o->err) {
-        printf("  input error at line %zu, column %zu, field '%s': %s\n", o->err->line, o->err->col, o->err->field,
-               o->err->text);
+        char pos[PS_DIAG_POS];
+        ps_diag_pos_words(pos, sizeof pos, o->err->line, o->err->col);
+        printf("  input error%s%s, field '%s': %s\n", pos[0] ? " at " : "", pos, o->err->field, o->err->text);
         return;
     }
     const ps_analysis *an = o->an;
@@ -774,28 +1045,35 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
 
 static int cmd_explain(int argc, char **argv)
 {
-    if (argc < 2)
-        return usage_error("explain needs a plant id and at least one catalog file", NULL);
-    for (int i = 1; i < argc; i++)
-        if (argv[i][0] == '-' && argv[i][1] != '\0')
-            return usage_error("unknown option", argv[i]);
+    int n = 0;
+    char **ops = operands_new(argc);
+    if (!ops)
+        return EXIT_IO;
+    int prc = options_parse(&explain_cmd, argc, argv, no_options, NULL, ops, &n);
+    if (prc == GO_ON && n < 2)
+        prc = usage_error("explain needs a plant id and at least one catalog file", NULL);
+    if (prc != GO_ON) {
+        free(ops);
+        return prc;
+    }
+    const char *id = ops[0];
     screen_ctx c = {0};
     ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
     ps_run_init(&c.run, &opt);
-    c.only_id = argv[0];
+    c.only_id = id;
     c.also = explain_one;
     c.ws = ps_screen_ws_new();
-    bool ok = c.ws && screen_catalogs(&c, argv + 1, argc - 1);
+    bool ok = c.ws && screen_catalogs(&c, ops + 1, n - 1);
     int rc = EXIT_CLEAN;
     if (!c.ws || c.nomem)
         rc = EXIT_IO;
     else if (c.found == 0 && c.n_members > 0) {
         /* A family id: its grid plants are the ones that can be explained. */
-        printf("'%s' is a family of %zu plants; explain one of them:\n", argv[0], c.n_members);
+        printf("'%s' is a family of %zu plants; explain one of them:\n", id, c.n_members);
         for (size_t i = 0; i < c.n_members; i++)
             printf("  %s\n", c.members[i]);
     } else if (c.found == 0) {
-        fprintf(stderr, "plantsieve: no plant with id '%s' in the catalogs given\n", argv[0]);
+        fprintf(stderr, "plantsieve: no plant with id '%s' in the catalogs given\n", id);
         rc = EXIT_USAGE;
     } else if (c.run.counts.errors)
         rc = EXIT_ENTRIES;
@@ -806,6 +1084,7 @@ static int cmd_explain(int argc, char **argv)
     free(c.members);
     ps_screen_ws_free(c.ws);
     ps_run_free(&c.run);
+    free(ops);
     if (fflush(stdout) != 0 || ferror(stdout))
         rc = EXIT_IO;
     return rc;
@@ -847,23 +1126,49 @@ static size_t count_entries(char **files, int n)
 
 static int cmd_read(int argc, char **argv)
 {
-    if (argc < 1)
-        return usage_error("read needs at least one catalog file", NULL);
-    ps_plant *scratch = malloc(sizeof *scratch);
-    if (!scratch)
+    int n = 0;
+    char **cats = operands_new(argc);
+    if (!cats)
         return EXIT_IO;
-    int rc = EXIT_CLEAN;
-    for (int i = 0; i < argc; i++) {
+    int rc = options_parse(&read_cmd, argc, argv, no_options, NULL, cats, &n);
+    if (rc == GO_ON && n == 0)
+        rc = usage_error("read needs at least one catalog file", NULL);
+    ps_plant *scratch = rc == GO_ON ? malloc(sizeof *scratch) : NULL;
+    if (rc == GO_ON && !scratch) {
+        fputs("plantsieve: out of memory\n", stderr);
+        rc = EXIT_IO;
+    }
+    if (rc != GO_ON) {
+        free(cats);
+        return rc;
+    }
+    rc = EXIT_CLEAN;
+    for (int i = 0; i < n; i++) {
         read_count c = {0};
         ps_diag fd = {0};
-        if (ps_catalog_read_families(argv[i], scratch, count_entry, count_family, &c, &fd) != PS_OK) {
-            fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", argv[i], fd.line, fd.col, fd.text);
+        if (ps_catalog_read_families(cats[i], scratch, count_entry, count_family, &c, &fd) != PS_OK) {
+            say_at(cats[i], &fd, NULL);
             rc = EXIT_IO;
         }
-        printf("%s: %zu entries read, %zu with errors\n", argv[i], c.entries, c.errors);
+        printf("%s: %zu entries read, %zu with errors\n", cats[i], c.entries, c.errors);
     }
     free(scratch);
+    free(cats);
+    if (fflush(stdout) != 0 || ferror(stdout)) {
+        fputs("plantsieve: error writing the output\n", stderr);
+        rc = EXIT_IO;
+    }
     return rc;
+}
+
+/* plantsieve help COMMAND */
+static int main_help(const char *name)
+{
+    static const cli_command *const commands[] = {&screen_cmd, &explain_cmd, &survey_cmd, &read_cmd};
+    for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
+        if (strcmp(name, commands[i]->name) == 0)
+            return print_help(commands[i]);
+    return usage_error("unknown command", name);
 }
 
 int main(int argc, char **argv)
@@ -877,6 +1182,8 @@ int main(int argc, char **argv)
         return usage_error("no command given", NULL);
     const char *cmd = argv[1];
     if (strcmp(cmd, "-h") == 0 || strcmp(cmd, "--help") == 0 || strcmp(cmd, "help") == 0) {
+        if (argc > 2 && strcmp(cmd, "help") == 0) /* help COMMAND: that command's help */
+            return main_help(argv[2]);
         fputs(usage_text, stdout);
         return fflush(stdout) == 0 ? EXIT_CLEAN : EXIT_IO;
     }
@@ -884,13 +1191,14 @@ int main(int argc, char **argv)
         printf("plantsieve %s\n", PS_VERSION);
         return fflush(stdout) == 0 ? EXIT_CLEAN : EXIT_IO;
     }
+    /* Each command gets its own name as argv[0] (getopt starts after it). */
     if (strcmp(cmd, "survey") == 0)
-        return cmd_survey(argc - 2, argv + 2);
+        return cmd_survey(argc - 1, argv + 1);
     if (strcmp(cmd, "read") == 0)
-        return cmd_read(argc - 2, argv + 2);
+        return cmd_read(argc - 1, argv + 1);
     if (strcmp(cmd, "screen") == 0)
-        return cmd_screen(argc - 2, argv + 2);
+        return cmd_screen(argc - 1, argv + 1);
     if (strcmp(cmd, "explain") == 0)
-        return cmd_explain(argc - 2, argv + 2);
-    return usage_error("unknown command", cmd);
+        return cmd_explain(argc - 1, argv + 1);
+    return usage_error(cmd[0] == '-' ? "unknown option" : "unknown command", cmd);
 }

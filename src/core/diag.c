@@ -34,3 +34,25 @@ void ps_diag_clear(ps_diag *d)
     d->line = d->col = 0;
     d->field[0] = d->text[0] = '\0';
 }
+
+const char *ps_diag_pos(char *out, size_t n, size_t line, size_t col)
+{
+    if (line == 0)
+        snprintf(out, n, "%s", "");
+    else if (col == 0)
+        snprintf(out, n, ":%zu", line);
+    else
+        snprintf(out, n, ":%zu:%zu", line, col);
+    return out;
+}
+
+const char *ps_diag_pos_words(char *out, size_t n, size_t line, size_t col)
+{
+    if (line == 0)
+        snprintf(out, n, "%s", "");
+    else if (col == 0)
+        snprintf(out, n, "line %zu", line);
+    else
+        snprintf(out, n, "line %zu, column %zu", line, col);
+    return out;
+}

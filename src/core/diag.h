@@ -39,4 +39,15 @@ ps_status ps_diag_vset(ps_diag *d, ps_status st, size_t line, size_t col, const 
 /* Clear d to "no diagnostic" but keep its file name. */
 void ps_diag_clear(ps_diag *d);
 
+/* The position that follows a file name in a message: ":LINE:COL", ":LINE"
+ * when the column is not known (0), "" when the line is not known (a file
+ * that cannot be opened), so that no message shows a position ":0:0" that
+ * does not exist. OUT: out, n bytes (PS_DIAG_POS is enough); returns out. */
+enum { PS_DIAG_POS = 48 };
+const char *ps_diag_pos(char *out, size_t n, size_t line, size_t col);
+
+/* The same in words for a sentence: "line LINE, column COL", "line LINE" or
+ * "" (nothing known). OUT: out, n bytes (PS_DIAG_POS is enough); returns out. */
+const char *ps_diag_pos_words(char *out, size_t n, size_t line, size_t col);
+
 #endif

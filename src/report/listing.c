@@ -324,8 +324,9 @@ static void plant_text(FILE *f, const ps_outcome *o)
     const ps_plant *p = o->p;
     if (o->err) {
         /* A row-level error (a short or long CSV row) names no field. */
-        fprintf(f, "%s  REJECTED  %s:%zu\n  error  %s%s%s%s\n\n", p->id[0] ? p->id : "(no id)", o->file,
-                o->err->line, o->err->text, o->err->field[0] ? " (field '" : "", o->err->field,
+        char pos[PS_DIAG_POS];
+        fprintf(f, "%s  REJECTED  %s%s\n  error  %s%s%s%s\n\n", p->id[0] ? p->id : "(no id)", o->file,
+                ps_diag_pos(pos, sizeof pos, o->err->line, 0), o->err->text, o->err->field[0] ? " (field '" : "", o->err->field,
                 o->err->field[0] ? "')" : "");
         return;
     }

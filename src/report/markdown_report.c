@@ -82,7 +82,9 @@ static void header(FILE *f, const ps_run *r)
             fputc(*p == '`' || *p == '\n' || *p == '\r' ? '?' : *p, f);
         fprintf(f, "`: ");
         if (c->failed) {
-            fprintf(f, "**not read to the end** (line %zu, column %zu: ", c->line, c->col);
+            char pos[PS_DIAG_POS];
+            ps_diag_pos_words(pos, sizeof pos, c->line, c->col);
+            fprintf(f, "**not read to the end** (%s%s", pos, pos[0] ? ": " : "");
             md_text(f, c->error);
             char unread[256];
             ps_unread_text(c->line, unread, sizeof unread);
@@ -225,7 +227,8 @@ static void requirements(FILE *f, const ps_run *r)
         md_text(f, s->id[0] ? s->id : "(no id)");
         fprintf(f, " (");
         md_text(f, catalog_of(r, s));
-        fprintf(f, ":%zu:%zu", s->err_line, s->err_col);
+        char pos[PS_DIAG_POS];
+        fputs(ps_diag_pos(pos, sizeof pos, s->err_line, s->err_col), f);
         if (s->err_field[0]) {
             fprintf(f, ", field ");
             md_text(f, s->err_field);

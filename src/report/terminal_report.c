@@ -208,8 +208,9 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
                 continue;
             const ps_summary *s = ps_run_row(r, i);
             told++;
-            fprintf(f, "  %s:%zu:%zu: %s%s%s%s%s%s\n", r->catalogs[s->file_index].file, s->err_line,
-                    s->err_col, s->id[0] ? s->id : "(no id)", ": ", s->err_text,
+            char pos[PS_DIAG_POS];
+            fprintf(f, "  %s%s: %s%s%s%s%s%s\n", r->catalogs[s->file_index].file,
+                    ps_diag_pos(pos, sizeof pos, s->err_line, s->err_col), s->id[0] ? s->id : "(no id)", ": ", s->err_text,
                     s->err_field[0] ? " (field '" : "", s->err_field, s->err_field[0] ? "')" : "");
         }
         more(f, n_unread - told, full);
