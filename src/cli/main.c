@@ -12,6 +12,7 @@
 #include <unistd.h>
 
 #include "batch/batch.h"
+#include "cli/compare_cmd.h"
 #include "catalog/catalog.h"
 #include "core/text.h"
 #include "report/json_parts.h"
@@ -55,6 +56,7 @@ static const char usage_text[] =
     "                      floor; a family id lists the family's plants\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
     "                      gain, relative degree, delay, warnings and floors\n"
+    "  compare OLD NEW     what changed between two screen runs (compare --help)\n"
     "  read CATALOG...     read every entry and discard it; print the count (the\n"
     "                      reading cost alone, for benchmarks)\n"
     "\n"
@@ -892,5 +894,6 @@ int main(int argc, char **argv)
         return cmd_screen(argc - 2, argv + 2);
     if (strcmp(cmd, "explain") == 0)
         return cmd_explain(argc - 2, argv + 2);
+    if (strcmp(cmd, "compare") == 0) return ps_cli_compare(argc - 1, argv + 1);
     return usage_error("unknown command", cmd);
 }
