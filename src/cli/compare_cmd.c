@@ -120,8 +120,10 @@ int ps_cli_compare(int argc, char **argv)
     for (int s = 0; s < 2; s++) {
         ps_diag d = {0};
         if (ps_cmp_read(c, (ps_cmp_side)s, argv[optind + s], &v.src[s], &d) != PS_OK) {
-            if (d.line)
+            if (d.line && d.col)
                 fprintf(stderr, "plantsieve: %s:%zu:%zu: %s\n", d.file, d.line, d.col, d.text);
+            else if (d.line)
+                fprintf(stderr, "plantsieve: %s:%zu: %s\n", d.file, d.line, d.text);
             else
                 fprintf(stderr, "plantsieve: %s: %s\n", d.file, d.text);
             fprintf(stderr, "plantsieve: the %s run could not be read; nothing was compared\n", s ? "new" : "old");

@@ -484,9 +484,23 @@ ps_status ps_cmp_read(ps_cmp *c, ps_cmp_side side, const char *path, ps_cmp_sour
         if (found == 1)
             return read_file(c, side, file, src, d);
     }
+    /* The directory given to screen -o: its one report set. */
+    char sub[PS_DIAG_FILE];
+    size_t found = 0;
+    if (find_in_dir(path, ".screen", sub, sizeof sub, &found) == PS_OK && found == 1) {
+        DIR *sh = opendir(sub);
+        if (sh) {
+            closedir(sh);
+            c->read[side] = false;
+            return ps_cmp_read(c, side, sub, src, d);
+        }
+    }
+    if (found > 1)
+        return ps_diag_set(d, PS_ERR_SYNTAX, 0, 0, "",
+                           "the directory holds %zu report sets (*.screen); name the one to compare", found);
     return ps_diag_set(d, PS_ERR_IO, 0, 0, "",
-                       "no *.screen.plants.jsonl or *.screen.json in this directory; expected a report set written "
-                       "by plantsieve screen");
+                       "no *.screen.plants.jsonl or *.screen.json in this directory (nor one *.screen report set); "
+                       "expected a report set written by plantsieve screen");
 }
 
 /* ---- the diff ---- */

@@ -78,7 +78,8 @@ ps_cmp *ps_cmp_new(void);
 void ps_cmp_free(ps_cmp *c);
 
 /* Read the plant rows of one run from path: a report-set directory (its one
- * *.screen.plants.jsonl, else its one *.screen.json), a screening JSON
+ * *.screen.plants.jsonl, else its one *.screen.json; a directory with
+ * neither but exactly one *.screen directory: that one), a screening JSON
  * document (schema_version 4: the summary, whose "plants_file" beside it is
  * read; 1 to 3: its "plants" array) or a JSON Lines file (name ending in
  * .jsonl). Each side is read once. JSON Lines are read one line at a time; an
