@@ -567,6 +567,7 @@ static int cmd_screen(int argc, char **argv)
             {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
             {"md", ps_write_markdown},     {"html", ps_write_html},
             {"families.csv", ps_write_families_csv},
+            {"junit.xml", ps_write_junit},
         };
         enum { N_OUT = sizeof out / sizeof out[0] };
         char retired[N_OUT][320];
