@@ -109,7 +109,7 @@ check "compare lists exactly the known changes" 0 $?
 ho=$data/hand-old.screen.json
 hn=$data/v4/hand-new.screen.json
 "$ps" compare --gate worse "$ho" "$hn" >"$tmp/h.txt" 2>"$tmp/err"; check "v3 -> v4: only better: gate worse passes" 0 $?
-"$ps" compare --gate changed "$ho" "$hn" >/dev/null 2>&1; check "v3 -> v4: gate changed trips (h-bw added)" 1 $?
+"$ps" compare --gate changed "$ho" "$hn" >/dev/null 2>&1; check "v3 -> v4: gate changed trips" 1 $?
 "$ps" compare --gate never "$ho" "$hn" >/dev/null 2>&1; check "v3 -> v4: gate never" 0 $?
 "$ps" compare --gate changed "$hn" "$data/v4" >/dev/null 2>&1; check "summary and its directory are one run" 0 $?
 "$ps" compare --gate changed "$hn" "$data/v4/hand-new.screen.plants.jsonl" >/dev/null 2>&1
@@ -123,6 +123,21 @@ contains "rows without id listed" "$tmp/h.txt" "  input-error, severity none (ol
 contains "duplicate id stated" "$tmp/h.txt" "  h-dup: 2 times in the old run, 2 in the new"
 contains "hand summary" "$tmp/h.txt" \
     "summary: 0 worse, 2 better; 1 verdict changed, 1 severity changed, 1 added, 0 removed, 4 unchanged, 2 without id (old 1, new 1)"
+# A plant removed and nothing else: not worse, but a change.
+"$py" -c '
+import json, sys
+rows = [json.loads(l) for l in open(sys.argv[1]) if "h-bw" not in l]
+for i, r in enumerate(rows):
+    r["rank"] = i + 1
+print("\n".join(json.dumps(r) for r in rows))
+' "$data/v4/hand-new.screen.plants.jsonl" >"$tmp/less.plants.jsonl"
+"$ps" compare --gate worse "$data/v4/hand-new.screen.plants.jsonl" "$tmp/less.plants.jsonl" >"$tmp/less.txt" 2>&1
+check "only a plant removed: gate worse passes" 0 $?
+contains "only removed" "$tmp/less.txt" "summary: 0 worse, 0 better; 0 verdict changed, 0 severity changed, 0 added, 1 removed, 6 unchanged"
+"$ps" compare --gate changed "$data/v4/hand-new.screen.plants.jsonl" "$tmp/less.plants.jsonl" >/dev/null 2>&1
+check "only a plant removed: gate changed trips" 1 $?
+"$ps" compare --gate changed "$tmp/less.plants.jsonl" "$data/v4/hand-new.screen.plants.jsonl" >/dev/null 2>&1
+check "only a plant added: gate changed trips" 1 $?
 # The reverse direction: every change is worse (and the added plant removed).
 "$ps" compare --json "$tmp/r.json" "$hn" "$ho" >"$tmp/r.txt" 2>&1; check "v4 -> v3: worse trips" 1 $?
 contains "reverse summary" "$tmp/r.txt" "summary: 2 worse, 0 better; 1 verdict changed, 1 severity changed, 0 added, 1 removed"
