@@ -308,12 +308,14 @@ static ps_status check_counts(const ps_cmp *c, ps_cmp_side side, json_t *doc, ps
             have[c->e[i].s[side].verdict]++;
     for (int v = 0; v < PS_VERDICT_COUNT; v++) {
         json_t *n = json_object_get(per, ps_verdict_name((ps_verdict)v));
-        if (n && (!json_is_integer(n) || json_integer_value(n) != (json_int_t)have[v]))
+        if (n && !json_is_integer(n))
+            return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "per_verdict", "counts.per_verdict.%s: expected a whole number",
+                               ps_verdict_name((ps_verdict)v));
+        if (n && json_integer_value(n) != (json_int_t)have[v])
             return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "per_verdict",
-                               "counts.per_verdict.%s is %s but %zu such plants were read: the report is "
-                               "incomplete or inconsistent",
-                               ps_verdict_name((ps_verdict)v), json_is_integer(n) ? "a different number" : "not a number",
-                               have[v]);
+                               "counts.per_verdict.%s is %lld but %zu plants with that verdict were read: the "
+                               "plant rows are incomplete or do not belong to this report",
+                               ps_verdict_name((ps_verdict)v), (long long)json_integer_value(n), have[v]);
     }
     return PS_OK;
 }
@@ -339,7 +341,7 @@ static ps_status read_jsonl(ps_cmp *c, ps_cmp_side side, const char *path, ps_di
         json_error_t err;
         json_t *o = json_loadb(buf, n, JSON_REJECT_DUPLICATES, &err);
         if (!o) {
-            st = ps_diag_set(d, PS_ERR_SYNTAX, line, (size_t)err.column > 0 ? (size_t)err.column : 0, "",
+            st = ps_diag_set(d, PS_ERR_SYNTAX, line, err.column > 0 ? (size_t)err.column : 0, "",
                              "%s; expected one JSON object per line (JSON Lines), one plant each", n ? err.text
                                                                                      : "empty line");
             break;

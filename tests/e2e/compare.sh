@@ -186,7 +186,7 @@ mkdir "$tmp/v4cut"
 cp "$hn" "$tmp/v4cut/"
 head -n 7 "$jl" >"$tmp/v4cut/hand-new.screen.plants.jsonl"
 bad "plants file cut at a line end (summary counts disagree)" "$tmp/v4cut/hand-new.screen.json" \
-    "$tmp/v4cut/hand-new.screen.json: counts.per_verdict.input-error is a different number but 1 such plants were read"
+    "$tmp/v4cut/hand-new.screen.json: counts.per_verdict.input-error is 2 but 1 plants with that verdict were read"
 rm "$tmp/v4cut/hand-new.screen.plants.jsonl"
 bad "summary without its plants file" "$tmp/v4cut/hand-new.screen.json" "hand-new.screen.plants.jsonl: cannot open"
 sed 's|"plants_file": "|"plants_file": "../|' "$hn" >"$tmp/v4cut/escape.screen.json"
