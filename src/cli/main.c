@@ -15,6 +15,7 @@
 #include <unistd.h>
 
 #include "batch/batch.h"
+#include "cli/compare_cmd.h"
 #include "catalog/catalog.h"
 #include "core/diag.h"
 #include "core/text.h"
@@ -63,6 +64,7 @@ static const char usage_text[] =
     "                      floor; a family id lists the family's plants\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
     "                      gain, relative degree, delay, warnings and floors\n"
+    "  compare OLD NEW     what changed between two screen runs (compare --help)\n"
     "  read CATALOG...     read every entry and discard it; print the count (the\n"
     "                      reading cost alone, for benchmarks)\n"
     "\n"
@@ -835,6 +837,7 @@ static int cmd_screen(int argc, char **argv)
             {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
             {"md", ps_write_markdown},     {"html", ps_write_html},
             {"families.csv", ps_write_families_csv},
+            {"junit.xml", ps_write_junit},
         };
         enum { N_OUT = sizeof out / sizeof out[0] };
         char retired[N_OUT][320];
@@ -1168,6 +1171,10 @@ static int main_help(const char *name)
     for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
         if (strcmp(name, commands[i]->name) == 0)
             return print_help(commands[i]);
+    if (strcmp(name, "compare") == 0) {
+        char *args[] = {"compare", "--help", NULL};
+        return ps_cli_compare(2, args);
+    }
     return usage_error("unknown command", name);
 }
 
@@ -1200,5 +1207,7 @@ int main(int argc, char **argv)
         return cmd_screen(argc - 1, argv + 1);
     if (strcmp(cmd, "explain") == 0)
         return cmd_explain(argc - 1, argv + 1);
+    if (strcmp(cmd, "compare") == 0)
+        return ps_cli_compare(argc - 1, argv + 1);
     return usage_error(cmd[0] == '-' ? "unknown option" : "unknown command", cmd);
 }

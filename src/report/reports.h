@@ -64,6 +64,13 @@ ps_status ps_write_families_csv(FILE *f, const ps_run *r); /* one row per bounda
 ps_status ps_write_json(FILE *f, const ps_run *r);
 ps_status ps_write_markdown(FILE *f, const ps_run *r);
 ps_status ps_write_html(FILE *f, const ps_run *r);
+/* JUnit XML (common-practice layout, src/report/junit_report.c): one
+ * <testsuite> for the run, one <testcase> per plant in rank order (name: the
+ * id, classname: the catalog); redesign and not-stabilizable as <failure>,
+ * needs-bandwidth and input errors as <error> (not judged), clear and
+ * marginal pass (a marginal plant's cause in <system-out>); a catalog not
+ * read to the end adds one <testcase> with an <error>. */
+ps_status ps_write_junit(FILE *f, const ps_run *r);
 
 typedef ps_status (*ps_writer_fn)(FILE *f, const ps_run *r);
 

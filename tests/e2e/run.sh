@@ -171,7 +171,7 @@ for t in 1 2 5; do
 done
 for t in 2 5; do
     cmp -s "$tmp/thr1.out" "$tmp/thr$t.out"; check "screen: stdout same on $t threads as on 1" 0 $?
-    for ext in txt csv json md html; do
+    for ext in txt csv json md html junit.xml; do
         cmp -s "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/thr$t/demo-variants.screen/demo-variants.screen.$ext"
         check "screen: $ext same on $t threads as on 1" 0 $?
     done
@@ -240,7 +240,7 @@ cmp -s "$tmp/keep-t1.out" "$tmp/keep-t5.out"; check "screen --no-files keep mode
 "$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
 check "screen --memory-rows 3" 0 $?
 cmp -s "$tmp/thr1.out" "$tmp/spill.out"; check "screen: stdout same with summaries on file" 0 $?
-for ext in txt csv json md html families.csv; do
+for ext in txt csv json md html families.csv junit.xml; do
     cmp -s "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen/demo-variants.screen.$ext"
     check "screen: $ext same with summaries on file" 0 $?
 done
@@ -473,7 +473,7 @@ PY
 check "band target and curve of a plant far faster than w_h stay below w_h" 0 $?
 
 (cd "$src" && "$ps" screen -o "$tmp/demo" --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
-for ext in txt csv json md html families.csv; do
+for ext in txt csv json md html families.csv junit.xml; do
     cmp -s "$tmp/demo/demo-variants.screen/demo-variants.screen.$ext" "$src/reports/demo-variants.screen/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
 done
 

@@ -5,21 +5,21 @@
 # Usage: tests/fuzz/run.sh BUILD_DIR SECONDS [FUZZER...]
 #   BUILD_DIR  a build configured with CC=clang -DPS_FUZZ=ON (fuzzers built there)
 #   SECONDS    time per fuzzer
-#   FUZZER     any of yaml csv expr screen (default: all four, one after another)
+#   FUZZER     any of yaml csv expr screen compare (default: all five, one after another)
 # Environment: PS_FUZZ_KEEP=1 merges the inputs that add coverage into
 # tests/fuzz/corpus/<fuzzer>/ (libFuzzer -merge=1); PS_FUZZ_OUT=DIR keeps the
 # work (new inputs, findings, logs) there instead of a temporary directory.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 if [ $# -lt 2 ]; then
-    echo "usage: $0 BUILD_DIR SECONDS [yaml|csv|expr|screen ...]" >&2
+    echo "usage: $0 BUILD_DIR SECONDS [yaml|csv|expr|screen|compare ...]" >&2
     exit 2
 fi
 build="$1"
 secs="$2"
 shift 2
 fuzzers=("$@")
-[ ${#fuzzers[@]} -gt 0 ] || fuzzers=(yaml csv expr screen)
+[ ${#fuzzers[@]} -gt 0 ] || fuzzers=(yaml csv expr screen compare)
 out="${PS_FUZZ_OUT:-$(mktemp -d "${TMPDIR:-/tmp}/psfuzz-run.XXXXXX")}"
 mkdir -p "$out"
 
