@@ -174,7 +174,7 @@ for n in "${SIZES[@]}"; do
     fi
     if [[ $FILES == 1 ]]; then
         # Every report written, as a user's run does (the set replaced by each repetition).
-        measure files "$n" "$reps" "0 3" "$PS" screen --gate never --quiet "${SCREEN_OPTS[@]:2}" -o "$TMP/files" "$cat"
+        measure files "$n" "$reps" "0 3" "$PS" screen --gate never --quiet "${SCREEN_OPTS[@]:3}" -o "$TMP/files" "$cat"
         F_S[$n]=$M_S; F_RSS[$n]=$M_RSS; F_CPU[$n]=$M_CPU
         stem=$(basename "${cat%.yaml}")
         for ext in txt csv json plants.jsonl md html; do
