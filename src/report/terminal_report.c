@@ -98,9 +98,10 @@ void ps_put_visible(FILE *f, const char *s)
             fputs("\\r", f);
         else if (*p < 0x20 || *p == 0x7f)
             fprintf(f, "\\x%02x", *p);
-        else if (*p == 0xc2 && p[1] >= 0x80 && p[1] <= 0x9f)
-            fprintf(f, "\\u%04x", p[1]), p++;
-        else
+        else if (*p == 0xc2 && p[1] >= 0x80 && p[1] <= 0x9f) {
+            fprintf(f, "\\u%04x", p[1]);
+            p++;
+        } else
             fputc(*p, f);
     }
 }

@@ -683,3 +683,23 @@ Test(reports, atomic_write_replaces_whole_or_not_at_all)
     cr_assert_eq(rmdir(dir), 0);
     ps_run_free(&r);
 }
+
+/* ---- catalog text in the text report ---- */
+
+/* A note or title with control characters reaches a terminal or the .txt
+ * report only as visible escapes: C0 (tab, line feed, carriage return as
+ * \t \n \r, others \xHH), DEL, and the C1 controls that UTF-8 writes as
+ * C2 80..9F (ECMA-48 reads them as commands) as \u00HH; other UTF-8 text
+ * (the verdict marks, accents) passes unchanged. */
+Test(reports, visible_text_escapes_control_characters)
+{
+    char *buf = NULL;
+    size_t n = 0;
+    FILE *f = open_memstream(&buf, &n);
+    cr_assert_not_null(f);
+    ps_put_visible(f, "a\tb\nc\rd\x01" "e\x7f" "f\xc2\x9b" "31m\xc3\xa9\xe2\x97\x8f");
+    ps_put_visible(f, NULL);
+    fclose(f);
+    cr_assert_str_eq(buf, "a\\tb\\nc\\rd\\x01e\\x7ff\\u009b31m\xc3\xa9\xe2\x97\x8f");
+    free(buf);
+}
