@@ -363,7 +363,7 @@ static void details(FILE *f, const ps_run *r)
         if (want > cap)
             fprintf(f, "; showing %zu of %zu (the cap is %d). ", cap, want, PS_MD_DETAIL_MAX);
         else
-            fprintf(f, ": %zu of %zu plants. ", cap, judged);
+            fprintf(f, ": %zu of the %zu plants that could be read. ", cap, judged);
         rest_files(f, r);
         fprintf(f, "\n\n");
     }
