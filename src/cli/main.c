@@ -836,7 +836,7 @@ static int cmd_screen(int argc, char **argv)
         struct { const char *ext; ps_writer_fn fn; } out[] = {
             {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
             {"md", ps_write_markdown},     {"html", ps_write_html},
-            {"families.csv", ps_write_families_csv},
+            {"families.csv", ps_write_families_csv}, {"plants.jsonl", ps_write_plants_jsonl},
             {"junit.xml", ps_write_junit},
         };
         enum { N_OUT = sizeof out / sizeof out[0] };

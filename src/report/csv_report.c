@@ -21,6 +21,10 @@
  *    numeric column parseable as a number by any spreadsheet or reader. An
  *    unbounded crossover_max is likewise empty (no upper limit);
  *  - effort_allowed is empty when no effort limit was given.
+ * note is the catalog's note as given (line breaks and tabs kept, inside
+ * quotes; a note starting with '=', '+', '-', '@', a tab or CR gets the
+ * leading apostrophe of csv_cells.h); unstable_controller_required is true
+ * when parity interlacing fails, empty for an input error.
  * Lines end in CRLF; a field holding a comma, a double quote, CR or LF is
  * quoted and its quotes doubled. */
 
@@ -52,8 +56,11 @@ static const char *const head_cols[] = {
     "domain",        "z_rel_degree", "sampling_zeros", "zeros_outside_circle", "ms_nyquist_floor",
 };
 _Static_assert(PS_FACTOR_COUNT == 7, "one without_ column per factor");
-/* Columns after the per-target groups. */
-static const char *const tail_cols[] = {"error_line", "error_column", "error_field", "error"};
+/* Columns after the per-target groups. note and unstable_controller_required
+ * were added last, after the error columns, so that every earlier column
+ * keeps its position: new columns are only ever appended. */
+static const char *const tail_cols[] = {"error_line", "error_column", "error_field", "error",
+                                        "note", "unstable_controller_required"};
 
 enum {
     N_HEAD = sizeof head_cols / sizeof head_cols[0],
@@ -153,6 +160,8 @@ static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t r
         cell_size(o, s->err_col);
         cell_text(o, s->err_field);
         cell_text(o, s->err_text);
+        cell_text(o, s->note[0] ? s->note : NULL);
+        cell_text(o, NULL); /* nothing was analysed */
         row_end(o);
         return;
     }
@@ -193,7 +202,11 @@ static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t r
         cell_num(o, t->state == PS_TARGET_NA ? NAN : t->now);
         cell_num(o, t->state == PS_TARGET_FOUND ? t->limit : NAN);
     }
-    pad_to(o, N_COLS);
+    pad_to(o, N_COLS - 2); /* the error columns stay empty */
+    cell_text(o, s->note[0] ? s->note : NULL);
+    /* Every stabilizing controller is itself unstable: parity interlacing
+     * fails (the survey JSON's structure.unstable_controller_required). */
+    cell_bool(o, !fl->parity_interlacing);
     row_end(o);
 }
 

@@ -1,10 +1,13 @@
-/* json_report.c - the screening run as one JSON document (schema:
- * reports/schema/plantsieve-screening.schema.json; its floors object is the
- * survey schema's $defs/floors). */
+/* json_report.c - the screening run for machines, in two files: a summary
+ * document of bounded size (<stem>.screen.json, schema
+ * reports/schema/plantsieve-screening.schema.json) and the full record of
+ * every plant as JSON Lines, one compact object a line in rank order
+ * (<stem>.screen.plants.jsonl, schema plantsieve-screening-plant.schema.json). */
 #include "report/json_parts.h"
 #include "report/reports.h"
 
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
 
 static json_t *jroots(const ps_cplx *r, size_t n)
@@ -15,16 +18,25 @@ static json_t *jroots(const ps_cplx *r, size_t n)
     return a;
 }
 
+/* A target, compact: members without a value are left out (not written as
+ * null), and the sentence the text reports build from it is not repeated.
+ * "why" is kept where it adds a figure (no value passes: the floor at the
+ * end of the search), not where it only restates the state. */
 static json_t *jtarget(const ps_summary *s, ps_target_kind k)
 {
     const ps_target *t = &s->target[k];
-    char text[320];
-    ps_target_text(s, k, text, sizeof text);
-    return json_pack("{s:s,s:o,s:o,s:o,s:b,s:o,s:o}", "state", ps_target_state_name(t->state), "now",
-                     ps_json_num(t->now), "limit", t->state == PS_TARGET_FOUND ? ps_json_num(t->limit) : json_null(), "searched_to",
-                     t->state == PS_TARGET_UNBOUNDED || t->state == PS_TARGET_NONE ? ps_json_num(t->searched)
-                                                                                   : json_null(),
-                     "passes_now", t->passes_now, "text", ps_json_str(text), "why", ps_json_str(t->why));
+    json_t *o = json_pack("{s:s}", "state", ps_target_state_name(t->state));
+    if (isfinite(t->now))
+        json_object_set_new(o, "now", json_real(t->now));
+    if (t->state == PS_TARGET_FOUND && isfinite(t->limit))
+        json_object_set_new(o, "limit", json_real(t->limit));
+    if ((t->state == PS_TARGET_UNBOUNDED || t->state == PS_TARGET_NONE) && isfinite(t->searched))
+        json_object_set_new(o, "searched_to", json_real(t->searched));
+    if (t->passes_now)
+        json_object_set_new(o, "passes_now", json_true());
+    if (t->why[0] && t->state != PS_TARGET_UNBOUNDED)
+        json_object_set_new(o, "why", ps_json_str(t->why));
+    return o;
 }
 
 /* The binding floor taken apart (screen/attribution.h): the present
@@ -63,34 +75,144 @@ static json_t *given_fields(const ps_summary *s)
     return a;
 }
 
-static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
+/* The record's floors: the survey's floors object without what is the same
+ * for every plant (the assumptions and the window's basis go once into the
+ * summary) and without the coverage sentence (it follows from
+ * structure.bode_controller_relative_degree_min). */
+static json_t *record_floors(const ps_summary *s)
 {
+    json_t *fj = ps_json_floors(&s->fl);
+    json_object_del(fj, "assumptions");
+    json_object_del(json_object_get(fj, "window"), "basis");
+    /* Of the structure only the Bode coverage's controller degree stays
+     * here: parity interlacing is the negation of the record's top-level
+     * unstable_controller_required. */
+    json_t *st = json_object_get(fj, "structure");
+    json_object_set(fj, "bode_controller_relative_degree_min",
+                    json_object_get(st, "bode_controller_relative_degree_min"));
+    json_object_del(fj, "structure");
+    /* Reasons that only say which requirement or which sampling is missing
+     * follow from "requirements" and "sampling"; the others stay. */
+    json_t *why = json_object_get(fj, "reasons");
+    const char *key;
+    json_t *v;
+    void *tmp;
+    json_object_foreach_safe(why, tmp, key, v)
+    {
+        const char *t = json_string_value(v);
+        if (t && (strncmp(t, "needs ", 6) == 0 || strcmp(t, "a continuous loop: no sample rate") == 0 ||
+                  strcmp(t, "no RHP zero and no delay: no upper limit") == 0))
+            json_object_del(why, key);
+    }
+    if (json_object_size(why) == 0)
+        json_object_del(fj, "reasons");
+    json_t *ttd = json_array();
+    for (size_t i = 0; i < s->n_growth; i++)
+        json_array_append_new(ttd, json_pack("[o,o,o]", ps_json_num(s->growth[i].re), ps_json_num(s->growth[i].im),
+                                             ps_json_num(log(2.0) / s->growth[i].re)));
+    json_object_set_new(fj, "time_to_double", ttd);
+    return fj;
+}
+
+/* The Ms floor against the band edge: the edges are a logarithmic grid
+ * (screen.c: edge_i = from * (to / from)^(i / (points - 1))), so only its
+ * ends are written. */
+static json_t *record_band_curve(const ps_summary *s)
+{
+    if (!s->n_curve)
+        return json_null();
+    /* The curve is for plotting: four significant digits. */
+    json_t *ms = json_array();
+    for (size_t i = 0; i < s->n_curve; i++) {
+        char b[32];
+        snprintf(b, sizeof b, "%.4g", s->curve_ms[i]);
+        json_array_append_new(ms, ps_json_num(isfinite(s->curve_ms[i]) ? strtod(b, NULL) : s->curve_ms[i]));
+    }
+    return json_pack("{s:o,s:o,s:o,s:I,s:o}", "attenuation", ps_json_num(s->band_eps), "band_edge_from",
+                     ps_json_num(s->curve_wb[0]), "band_edge_to", ps_json_num(s->curve_wb[s->n_curve - 1]),
+                     "points", (json_int_t)s->n_curve, "ms_floor", ms);
+}
+
+/* The requirements an entry gets when it gives none (model/plant.c), as
+ * the `requirements` object; NULL on no memory. */
+static json_t *requirement_defaults(void)
+{
+    ps_plant *p = calloc(1, sizeof *p);
+    if (!p)
+        return NULL;
+    ps_plant_reset(p);
+    json_t *q = ps_json_requirements(&p->req);
+    free(p);
+    return q;
+}
+
+/* A record's requirements: the members that differ from the defaults (the
+ * summary's "requirement_defaults"), and which fields the catalog gave. */
+static json_t *record_requirements(const ps_summary *s, const json_t *dflt)
+{
+    json_t *q = ps_json_requirements(&s->req);
+    const char *key;
+    json_t *v;
+    void *tmp;
+    json_object_foreach_safe(q, tmp, key, v)
+        if (json_equal(v, json_object_get(dflt, key)))
+            json_object_del(q, key);
+    json_object_set_new(q, "given", given_fields(s));
+    return q;
+}
+
+/* Remove the null and the false members of every object below the top of a
+ * record (not array items: their position means something); a member left
+ * out of a record is false, or has no value (not applicable, not finite,
+ * not given). The top-level members are always written. */
+static void strip_nulls(json_t *v)
+{
+    if (json_is_array(v)) {
+        size_t i;
+        json_t *x;
+        json_array_foreach(v, i, x)
+            strip_nulls(x);
+        return;
+    }
+    if (!json_is_object(v))
+        return;
+    const char *key;
+    json_t *x;
+    void *tmp;
+    json_object_foreach_safe(v, tmp, key, x)
+    {
+        if (json_is_null(x) || json_is_false(x))
+            json_object_del(v, key);
+        else
+            strip_nulls(x);
+    }
+}
+
+/* One plant's full record (a line of the JSON Lines file). */
+static json_t *plant_record(const ps_run *r, const ps_summary *s, size_t rank, const json_t *dflt)
+{
+    bool unread = s->verdict == PS_VERDICT_UNREAD;
     json_t *j = json_object();
     json_object_set_new(j, "rank", json_integer((json_int_t)rank));
     json_object_set_new(j, "id", ps_json_str(s->id));
-    json_object_set_new(j, "source", json_pack("{s:o,s:I}", "file",
-                                               ps_json_str(s->file_index < r->n_catalogs ? r->catalogs[s->file_index].file : ""),
-                                               "line", (json_int_t)s->line));
     json_object_set_new(j, "verdict", json_string(ps_verdict_name(s->verdict)));
     json_object_set_new(j, "severity", ps_json_num(s->severity));
     json_object_set_new(j, "severity_infinite", json_boolean(isinf(s->severity)));
-    json_object_set_new(j, "shares", json_pack("{s:o,s:o,s:o}", "ms", ps_json_num(s->share_ms), "mt",
-                                               ps_json_num(s->share_mt), "effort", ps_json_num(s->share_effort)));
-    json_object_set_new(j, "worst", json_string(s->worst));
-    json_object_set_new(j, "cause", ps_json_str(s->cause));
-    if (s->verdict == PS_VERDICT_UNREAD) {
-        json_object_set_new(j, "attribution", json_null());
-        json_object_set_new(j, "plant", json_null());
-        json_object_set_new(j, "requirements", json_null());
-        json_object_set_new(j, "floors", json_null());
-        json_object_set_new(j, "sampling", json_null());
-        json_object_set_new(j, "targets", json_null());
-        json_object_set_new(j, "band_curve", json_null());
+    json_object_set_new(j, "file", ps_json_str(s->file_index < r->n_catalogs ? r->catalogs[s->file_index].file : ""));
+    json_object_set_new(j, "line", json_integer((json_int_t)s->line));
+    json_object_set_new(j, "note", ps_json_str(s->note));
+    json_object_set_new(j, "unstable_controller_required",
+                        unread ? json_null() : json_boolean(!s->fl.parity_interlacing));
+    if (unread) {
         json_object_set_new(j, "error", json_pack("{s:o,s:I,s:I,s:o}", "message", ps_json_str(s->err_text), "line",
                                                   (json_int_t)s->err_line, "column", (json_int_t)s->err_col,
                                                   "field", ps_json_str(s->err_field)));
         return j;
     }
+    json_object_set_new(j, "shares", json_pack("{s:o,s:o,s:o}", "ms", ps_json_num(s->share_ms), "mt",
+                                               ps_json_num(s->share_mt), "effort", ps_json_num(s->share_effort)));
+    json_object_set_new(j, "worst", json_string(s->worst));
+    json_object_set_new(j, "cause", ps_json_str(s->cause));
     json_object_set_new(j, "plant",
                         json_pack("{s:o,s:o,s:I,s:I,s:b,s:o,s:o,s:i,s:I,s:I,s:b}", "poles",
                                   jroots(s->poles, s->n_poles), "zeros", jroots(s->zeros, s->n_zeros), "n_poles",
@@ -99,58 +221,57 @@ static json_t *plant_json(const ps_run *r, const ps_summary *s, size_t rank)
                                   "delay", ps_json_num(s->delay), "relative_degree", s->rel_degree, "rhp_poles",
                                   (json_int_t)s->n_rhp_poles, "rhp_zeros", (json_int_t)s->n_rhp_zeros,
                                   "hidden_unstable_mode", s->hidden_unstable));
-    json_t *q = ps_json_requirements(&s->req);
-    json_object_set_new(q, "given", given_fields(s));
-    json_object_set_new(j, "requirements", q);
-    json_t *fj = ps_json_floors(&s->fl);
-    ps_json_floor_extras(fj, &s->fl, &s->req, s->growth, s->n_growth);
-    json_object_set_new(j, "floors", fj);
+    json_object_set_new(j, "requirements", record_requirements(s, dflt));
+    json_object_set_new(j, "floors", record_floors(s));
     json_object_set_new(j, "sampling", ps_json_sampling(&s->fl, s->h, s->compute_delay, s->in_z));
     json_object_set_new(j, "attribution", jattribution(&s->attr));
     json_t *t = json_object();
     for (int k = 0; k < PS_TARGET_COUNT; k++)
-        json_object_set_new(t, ps_target_key((ps_target_kind)k), jtarget(s, (ps_target_kind)k));
+        if (s->target[k].state != PS_TARGET_NA) /* absent: does not apply */
+            json_object_set_new(t, ps_target_key((ps_target_kind)k), jtarget(s, (ps_target_kind)k));
     json_object_set_new(j, "targets", t);
-    json_t *wb = json_array(), *ms = json_array();
-    for (size_t i = 0; i < s->n_curve; i++) {
-        json_array_append_new(wb, ps_json_num(s->curve_wb[i]));
-        json_array_append_new(ms, ps_json_num(s->curve_ms[i]));
-    }
-    json_object_set_new(j, "band_curve", s->n_curve ? json_pack("{s:o,s:o,s:o}", "attenuation",
-                                                                ps_json_num(s->band_eps), "band_edge", wb,
-                                                                "ms_floor", ms)
-                                                    : json_null());
-    if (!s->n_curve) {
-        json_decref(wb);
-        json_decref(ms);
-    }
-    json_object_set_new(j, "error", json_null());
+    json_object_set_new(j, "band_curve", record_band_curve(s));
     return j;
 }
 
-/* One plant object at depth 2 of the document: jansson's indented form,
- * every line after the first shifted by 4 spaces (JSON strings hold no raw
- * newline, so the split is safe). */
-static int put_indented(FILE *f, const char *text)
+/* Numbers in the record carry PS_JSONL_DIGITS significant digits. */
+ps_status ps_write_plants_jsonl(FILE *f, const ps_run *r)
 {
-    for (const char *p = text; *p; p++) {
-        if (fputc(*p, f) == EOF)
-            return -1;
-        if (*p == '\n' && fputs("    ", f) == EOF)
-            return -1;
+    const size_t flags = JSON_COMPACT | JSON_REAL_PRECISION(PS_JSONL_DIGITS);
+    json_t *dflt = requirement_defaults();
+    if (!dflt)
+        return PS_ERR_NOMEM;
+    ps_status st = PS_OK;
+    for (size_t i = 0; st == PS_OK && i < r->n_rows; i++) {
+        json_t *pj = plant_record(r, ps_run_row(r, i), i + 1, dflt);
+        const char *key;
+        json_t *x;
+        json_object_foreach(pj, key, x)
+            strip_nulls(x);
+        char *pt = pj ? json_dumps(pj, flags) : NULL;
+        json_decref(pj);
+        if (!pt)
+            st = PS_ERR_NOMEM;
+        else if (fputs(pt, f) == EOF || fputc('\n', f) == EOF)
+            st = PS_ERR_IO;
+        free(pt);
     }
-    return 0;
+    json_decref(dflt);
+    if (st != PS_OK)
+        return st;
+    return ferror(f) ? PS_ERR_IO : PS_OK;
 }
 
-/* The document is written as it would be dumped whole, but plant by plant:
- * memory stays at one plant's JSON tree however long the run. */
-ps_status ps_write_json(FILE *f, const ps_run *r)
+/* The catalogs of the run with their provenance (title, SHA-256, size). */
+static json_t *jcatalogs(const ps_run *r)
 {
-    const size_t flags = JSON_INDENT(2) | JSON_REAL_PRECISION(15);
-    json_t *cats = json_array(), *per = json_object();
+    json_t *cats = json_array();
     for (size_t i = 0; i < r->n_catalogs; i++) {
         const ps_catalog_entry *c = &r->catalogs[i];
-        json_t *cj = json_pack("{s:o,s:s}", "file", ps_json_str(c->file), "status", c->failed ? "failed" : "read");
+        json_t *cj = json_pack("{s:o,s:s,s:o,s:o,s:o}", "file", ps_json_str(c->file), "status",
+                               c->failed ? "failed" : "read", "title", ps_json_str(c->title), "sha256",
+                               ps_json_str(c->sha256), "bytes",
+                               c->sha256[0] ? json_integer((json_int_t)c->bytes) : json_null());
         if (c->failed) {
             char unread[256];
             ps_unread_text(c->line, unread, sizeof unread);
@@ -162,41 +283,79 @@ ps_status ps_write_json(FILE *f, const ps_run *r)
         }
         json_array_append_new(cats, cj);
     }
+    return cats;
+}
+
+/* The first PS_JSON_WORST plants of the ranking, and the severity
+ * distribution of all of them (ps_severity_histogram). */
+static json_t *jworst(const ps_run *r)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; i < r->n_rows && i < PS_JSON_WORST; i++) {
+        const ps_summary *s = ps_run_row(r, i);
+        json_array_append_new(a, json_pack("{s:I,s:o,s:s,s:o,s:b}", "rank", (json_int_t)(i + 1), "id",
+                                           ps_json_str(s->id), "verdict", ps_verdict_name(s->verdict), "severity",
+                                           ps_json_num(s->severity), "severity_infinite", isinf(s->severity)));
+    }
+    return a;
+}
+
+static json_t *jhistogram(const ps_run *r)
+{
+    size_t count[PS_HIST_BINS];
+    ps_severity_histogram(r, count);
+    json_t *a = json_array();
+    for (int b = 0; b < PS_HIST_BINS; b++) {
+        double above, up_to;
+        ps_histogram_bin(b, &above, &up_to);
+        json_array_append_new(a, json_pack("{s:s,s:o,s:o,s:I}", "bin", ps_histogram_label(b), "above",
+                                           ps_json_num(above), "up_to", ps_json_num(up_to), "plants",
+                                           (json_int_t)count[b]));
+    }
+    return a;
+}
+
+ps_status ps_write_json(FILE *f, const ps_run *r)
+{
+    json_t *per = json_object();
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
         json_object_set_new(per, ps_verdict_name((ps_verdict)v), json_integer((json_int_t)r->per_verdict[v]));
-    json_t *doc = json_pack("{s:i,s:s,s:{s:s,s:s},s:o,s:{s:o},s:{s:I,s:I,s:I,s:o},s:s,s:o}", "schema_version",
-                            PS_SCREEN_SCHEMA_VERSION, "kind", "screening", "tool", "name", "plantsieve", "version",
-                            PS_VERSION, "catalogs", cats, "options", "marginal_at", ps_json_num(r->opt.marginal_at),
+    char plants[PS_STEM_MAX + 32], stem[PS_STEM_MAX];
+    ps_report_stem(r, stem, sizeof stem);
+    snprintf(plants, sizeof plants, "%s.screen.plants.jsonl", stem);
+    json_t *doc = json_pack("{s:i,s:s,s:{s:s,s:s},s:{s:o,s:o,s:o},s:o,s:{s:o},s:{s:I,s:I,s:I,s:o}}",
+                            "schema_version", PS_SCREEN_SCHEMA_VERSION, "kind", "screening", "tool", "name",
+                            "plantsieve", "version", PS_VERSION, "run", "title", ps_json_str(ps_run_title(r)),
+                            "date", ps_json_str(r->meta.date), "command_line", ps_json_str(r->meta.command_line),
+                            "catalogs", jcatalogs(r), "options", "marginal_at", ps_json_num(r->opt.marginal_at),
                             "counts", "entries", (json_int_t)r->counts.entries, "models",
-                            (json_int_t)r->counts.models, "errors", (json_int_t)r->counts.errors, "per_verdict", per,
-                            "caution", ps_caution_text, "plants", json_array());
+                            (json_int_t)r->counts.models, "errors", (json_int_t)r->counts.errors, "per_verdict", per);
     if (!doc)
         return PS_ERR_NOMEM;
-    json_object_set_new(doc, "families", ps_json_families(r));
-    char *text = json_dumps(doc, flags);
-    json_decref(doc);
-    if (!text)
+    json_object_set_new(doc, "severity_histogram", jhistogram(r));
+    json_object_set_new(doc, "worst", jworst(r));
+    json_object_set_new(doc, "caps", json_pack("{s:i,s:i,s:i}", "json_worst", PS_JSON_WORST, "markdown_table",
+                                               PS_MD_TABLE_MAX, "markdown_detail", PS_MD_DETAIL_MAX));
+    json_object_set_new(doc, "plants_file", json_string(plants));
+    json_object_set_new(doc, "plants_count", json_integer((json_int_t)r->n_rows));
+    json_object_set_new(doc, "record_digits", json_integer(PS_JSONL_DIGITS));
+    json_t *dflt = requirement_defaults();
+    if (!dflt) {
+        json_decref(doc);
         return PS_ERR_NOMEM;
-    static const char slot[] = "\"plants\": []";
-    char *mark = strstr(text, slot);
-    ps_status st = PS_OK;
-    if (!mark || fwrite(text, 1, (size_t)(mark - text) + sizeof slot - 2, f) != (size_t)(mark - text) + sizeof slot - 2)
-        st = mark ? PS_ERR_IO : PS_ERR_NOMEM;
-    for (size_t i = 0; st == PS_OK && i < r->n_rows; i++) {
-        json_t *pj = plant_json(r, ps_run_row(r, i), i + 1);
-        char *pt = pj ? json_dumps(pj, flags) : NULL;
-        json_decref(pj);
-        if (!pt)
-            st = PS_ERR_NOMEM;
-        else if (fputs(i ? ",\n    " : "\n    ", f) == EOF || put_indented(f, pt) != 0)
-            st = PS_ERR_IO;
-        free(pt);
     }
-    if (st == PS_OK && ((r->n_rows && fputs("\n  ", f) == EOF) || fputs(mark + sizeof slot - 2, f) == EOF ||
-                        fputc('\n', f) == EOF))
-        st = PS_ERR_IO;
-    free(text);
-    if (st != PS_OK)
-        return st;
+    json_object_set_new(doc, "requirement_defaults", dflt);
+    json_object_set_new(doc, "assumptions",
+                        json_pack("[s,s,s,s]", "internal stability: no RHP pole/zero cancellation with the controller",
+                                  "LTI SISO plant as given; the controller is any proper LTI controller",
+                                  "with delay, the Ms floor equals the Mt floor (commutant-lifting equality, "
+                                  "checked numerically, not proven here)",
+                                  "crossover window from rules of thumb, not a law"));
+    json_object_set_new(doc, "families", ps_json_families(r));
+    json_object_set_new(doc, "caution", json_string(ps_caution_text));
+    int rc = json_dumpf(doc, f, JSON_INDENT(2) | JSON_REAL_PRECISION(15));
+    json_decref(doc);
+    if (rc != 0 || fputc('\n', f) == EOF)
+        return PS_ERR_IO;
     return ferror(f) ? PS_ERR_IO : PS_OK;
 }

@@ -12,8 +12,20 @@
 #include "core/diag.h"
 #include "screen/screen.h"
 
-/* Version of the screening JSON layout. */
-#define PS_SCREEN_SCHEMA_VERSION 3
+/* Version of the screening JSON layout (the summary document and the plant
+ * records of the JSON Lines file share it). */
+#define PS_SCREEN_SCHEMA_VERSION 4
+/* Significant digits of the numbers in a JSON Lines plant record (the CSV's
+ * "%.9g" too); the summary document keeps 15. */
+#define PS_JSONL_DIGITS 9
+/* Caps of the bounded reports, whatever the number of plants:
+ * PS_JSON_WORST plants listed in the JSON summary's "worst"; the Markdown
+ * ranking table lists the first PS_MD_TABLE_MAX plants and the Markdown
+ * gives full detail (cause, targets, note, digital loop) for at most
+ * PS_MD_DETAIL_MAX plants: every flagged one (redesign, not stabilizable)
+ * and the worst of the rest up to PS_MD_WORST in all, in rank order; its
+ * first page lists at most PS_MD_BOARD_MAX plants to send back. */
+enum { PS_JSON_WORST = 20, PS_MD_TABLE_MAX = 200, PS_MD_DETAIL_MAX = 200, PS_MD_WORST = 10, PS_MD_BOARD_MAX = 20 };
 
 /* The caution every report carries (one paragraph, plain text). */
 extern const char ps_caution_text[];
@@ -22,6 +34,18 @@ extern const char ps_caution_text[];
  * without colour (colour-blind readers, greyscale print): every report puts
  * it beside the verdict word. UTF-8, one character. */
 const char *ps_verdict_mark(ps_verdict v);
+
+/* The structural flag of a plant in words, and whether a report states it
+ * for s: parity interlacing fails (src/limits/floors.c), so every
+ * stabilizing controller is itself unstable (Youla, Bongiorno and Lu,
+ * Automatica 10, 1974). Not stated for an input error or a plant no
+ * controller stabilizes (there it would say nothing). */
+extern const char ps_unstable_controller_text[];
+bool ps_unstable_controller_claim(const ps_summary *s);
+
+/* Write catalog or command-line text to a terminal or a text file with its
+ * control characters as visible escapes (\t, \n, \r, \xHH; C1 as \u00HH). */
+void ps_put_visible(FILE *f, const char *s);
 
 /* One sentence on what a verdict means (README "Verdicts"). */
 const char *ps_verdict_meaning(ps_verdict v);
@@ -54,6 +78,27 @@ void ps_zroots_text(const ps_floors *fl, bool in_z, char *buf, size_t n);
 /* The Ms floor over [wb, pi/h] from the discrete Bode area, with its source. */
 void ps_nyquist_floor_text(const ps_floors *fl, double wb, char *buf, size_t n);
 
+/* Severity distribution of a run, shared by the JSON summary and the
+ * Markdown: PS_HIST_BINS bins, each holding the severities s with
+ * above < s <= up_to (the first bin also holds 0), then one bin of the
+ * infinite severities (not stabilizable) and one of the plants without a
+ * severity (not judged for want of a bandwidth limit, input errors).
+ * ps_histogram_bin gives a bin's ends (NAN where it has none). OUT: count. */
+enum { PS_HIST_BINS = 10 };
+void ps_severity_histogram(const ps_run *r, size_t count[PS_HIST_BINS]);
+void ps_histogram_bin(int b, double *above, double *up_to);
+const char *ps_histogram_label(int b);
+
+/* The run's title: the first catalog's YAML `catalog` title, NULL when it
+ * has none. */
+const char *ps_run_title(const ps_run *r);
+
+/* The base name of a run's report files: the first catalog's file name
+ * without directory and ending ("plantsieve" when the run has no catalog).
+ * The summary and the Markdown name the other files of the set with it. */
+enum { PS_STEM_MAX = 256 };
+void ps_report_stem(const ps_run *r, char *out, size_t n);
+
 /* Writers. Each returns PS_OK or PS_ERR_IO (PS_ERR_NOMEM for JSON). */
 /* The terminal listing: at most `show` rows per section (0: all); a cut
  * section ends with a line saying how many more there are and, when `full`
@@ -61,7 +106,11 @@ void ps_nyquist_floor_text(const ps_floors *fl, double wb, char *buf, size_t n);
 ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, const char *full);
 ps_status ps_write_csv(FILE *f, const ps_run *r);
 ps_status ps_write_families_csv(FILE *f, const ps_run *r); /* one row per boundary and yield study */
+/* The JSON summary (run provenance, counts, severity distribution, the worst
+ * plants, families, the name of the plant file) and the JSON Lines file of
+ * every plant's full record, one compact object a line in rank order. */
 ps_status ps_write_json(FILE *f, const ps_run *r);
+ps_status ps_write_plants_jsonl(FILE *f, const ps_run *r);
 ps_status ps_write_markdown(FILE *f, const ps_run *r);
 ps_status ps_write_html(FILE *f, const ps_run *r);
 /* JUnit XML (common-practice layout, src/report/junit_report.c): one

@@ -83,6 +83,73 @@ static void digital(FILE *f, const ps_summary *s)
     wrap(f, text, "    ", 96);
 }
 
+/* Text from a catalog or the command line shown harmlessly: control
+ * characters (C0, DEL, and C1 as UTF-8 C2 80..9F) written as escapes (\t,
+ * \n, \r, \xHH), so that a note can neither break the layout nor send a
+ * terminal a command. */
+void ps_put_visible(FILE *f, const char *s)
+{
+    for (const unsigned char *p = (const unsigned char *)s; p && *p; p++) {
+        if (*p == '\t')
+            fputs("\\t", f);
+        else if (*p == '\n')
+            fputs("\\n", f);
+        else if (*p == '\r')
+            fputs("\\r", f);
+        else if (*p < 0x20 || *p == 0x7f)
+            fprintf(f, "\\x%02x", *p);
+        else if (*p == 0xc2 && p[1] >= 0x80 && p[1] <= 0x9f) {
+            fprintf(f, "\\u%04x", p[1]);
+            p++;
+        } else
+            fputc(*p, f);
+    }
+}
+
+/* The provenance of the run: title, date (only when set), every input with
+ * its size and SHA-256 (when taken), version, command line. */
+static void provenance(FILE *f, const ps_run *r)
+{
+    const char *title = ps_run_title(r);
+    if (title) {
+        fputs("title: ", f);
+        ps_put_visible(f, title);
+        fputc('\n', f);
+    }
+    if (r->meta.date[0])
+        fprintf(f, "date: %s\n", r->meta.date);
+    for (size_t i = 0; i < r->n_catalogs; i++) {
+        const ps_catalog_entry *c = &r->catalogs[i];
+        fputs("input: ", f);
+        ps_put_visible(f, c->file);
+        if (c->sha256[0])
+            fprintf(f, ", %llu bytes, SHA-256 %s", (unsigned long long)c->bytes, c->sha256);
+        if (c->title && c->title[0] && i > 0) {
+            fputs(", title ", f);
+            ps_put_visible(f, c->title);
+        }
+        fputc('\n', f);
+    }
+    fprintf(f, "version: plantsieve %s\n", PS_VERSION);
+    if (r->meta.command_line) {
+        fputs("command: ", f);
+        ps_put_visible(f, r->meta.command_line);
+        fputc('\n', f);
+    }
+}
+
+/* The plant's note and its structural flag, under its heading. */
+static void note_and_flags(FILE *f, const ps_summary *s)
+{
+    if (s->note[0]) {
+        fputs("    note: ", f);
+        ps_put_visible(f, s->note);
+        fputc('\n', f);
+    }
+    if (ps_unstable_controller_claim(s))
+        wrap(f, ps_unstable_controller_text, "    ", 96);
+}
+
 static bool flagged(ps_verdict v)
 {
     return v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE;
@@ -112,14 +179,16 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
             fprintf(f, " (not read to the end: %s)", unread);
         }
     }
-    fprintf(f, "\nseverity = share of the allowed log-peak used by the worst floor; marginal from %.2g, "
+    fputc('\n', f);
+    provenance(f, r);
+    fprintf(f, "severity = share of the allowed log-peak used by the worst floor; marginal from %.2g, "
                "redesign above 1\n\n",
             r->opt.marginal_at);
 
     size_t idw = r->id_len_max > 5 ? r->id_len_max : 5;
     if (idw > 40)
         idw = 40;
-    fprintf(f, "%4s  %-*s  %-16s  %8s  %-6s  %9s  %9s  %9s  %9s\n", "rank", (int)idw, "plant", "verdict",
+    fprintf(f, "%4s  %-*s  %-18s  %8s  %-6s  %9s  %9s  %9s  %9s\n", "rank", (int)idw, "plant", "verdict",
             "severity", "worst", "Ms floor", "Ms allow", "Mt floor", "Mt allow");
     for (size_t i = 0; i < r->n_rows && i < show; i++) {
         const ps_summary *s = ps_run_row(r, i);
@@ -130,8 +199,9 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
         num(msa, sizeof msa, read ? s->req.ms_allowed : NAN);
         num_big(mtf, sizeof mtf, read ? s->fl.mt : NAN, s->fl.mt_ln);
         num(mta, sizeof mta, read ? s->req.mt_allowed : NAN);
-        fprintf(f, "%4zu  %-*.*s  %s%-16s%s  %8s  %-6s  %9s  %9s  %9s  %9s\n", i + 1, (int)idw, (int)idw, s->id,
-                colour ? tint(s->verdict) : "", ps_verdict_name(s->verdict), colour ? "\033[0m" : "", sev,
+        fprintf(f, "%4zu  %-*.*s  %s%s %-16s%s  %8s  %-6s  %9s  %9s  %9s  %9s\n", i + 1, (int)idw, (int)idw, s->id,
+                colour ? tint(s->verdict) : "", ps_verdict_mark(s->verdict), ps_verdict_name(s->verdict),
+                colour ? "\033[0m" : "", sev,
                 s->worst, msf, msa, mtf, mta);
     }
     more(f, r->n_rows > show ? r->n_rows - show : 0, full);
@@ -147,9 +217,10 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
             continue;
         const ps_summary *s = ps_run_row(r, i);
         shown++;
-        fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
+        fprintf(f, "\n  %s  [%s %s]\n", s->id, ps_verdict_mark(s->verdict), ps_verdict_name(s->verdict));
         snprintf(line, sizeof line, "cause: %s", s->cause);
         wrap(f, line, "    ", 96);
+        note_and_flags(f, s);
         digital(f, s);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             ps_target_text(s, (ps_target_kind)k, line, sizeof line);
@@ -170,7 +241,9 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
             continue;
         const ps_summary *s = ps_run_row(r, i);
         n_pass++;
-        fprintf(f, "\n  %s  [%s]  largest share: %s\n", s->id, ps_verdict_name(s->verdict), s->cause);
+        fprintf(f, "\n  %s  [%s %s]  largest share: %s\n", s->id, ps_verdict_mark(s->verdict),
+                ps_verdict_name(s->verdict), s->cause);
+        note_and_flags(f, s);
         digital(f, s);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             ps_target_text(s, (ps_target_kind)k, line, sizeof line);
@@ -192,9 +265,10 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
                 continue;
             const ps_summary *s = ps_run_row(r, i);
             told++;
-            fprintf(f, "\n  %s  [%s]\n", s->id, ps_verdict_name(s->verdict));
+            fprintf(f, "\n  %s  [%s %s]\n", s->id, ps_verdict_mark(s->verdict), ps_verdict_name(s->verdict));
             snprintf(line, sizeof line, "cause: %s", s->cause);
             wrap(f, line, "    ", 96);
+            note_and_flags(f, s);
             digital(f, s);
         }
         more(f, n_nb - told, full);
@@ -220,7 +294,8 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
 
     fputs("\nCounts:", f);
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
-        fprintf(f, "%s %s %zu", v ? "," : "", ps_verdict_name((ps_verdict)v), r->per_verdict[v]);
+        fprintf(f, "%s %s %s %zu", v ? "," : "", ps_verdict_mark((ps_verdict)v), ps_verdict_name((ps_verdict)v),
+                r->per_verdict[v]);
     fputs("\n\n", f);
     wrap(f, ps_caution_text, "", 96);
     return ferror(f) ? PS_ERR_IO : PS_OK;

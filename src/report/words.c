@@ -233,3 +233,78 @@ void ps_requirements_text(const ps_summary *s, char *buf, size_t n)
         snprintf(buf + w, n - (size_t)w, ", |C S| <= %g", q->effort_allowed);
 #undef MARK
 }
+
+/* Bin ends of the severity distribution: a share of the allowed log-peak,
+ * so 1 is the pass/fail edge (redesign above 1) and stays a bin end. */
+static const double hist_edge[] = {0.0, 0.25, 0.5, 0.75, 1.0, 1.5, 2.0, 4.0};
+enum { N_EDGES = sizeof hist_edge / sizeof hist_edge[0] };
+_Static_assert(N_EDGES + 2 == PS_HIST_BINS, "finite bins, the infinite bin and the bin without a severity");
+
+void ps_histogram_bin(int b, double *above, double *up_to)
+{
+    *above = b > 0 && b < N_EDGES ? hist_edge[b] : NAN;
+    *up_to = b >= 0 && b + 1 < N_EDGES ? hist_edge[b + 1] : NAN;
+}
+
+const char *ps_histogram_label(int b)
+{
+    static const char *const label[PS_HIST_BINS] = {
+        "0 to 0.25",  "0.25 to 0.5", "0.5 to 0.75",   "0.75 to 1",  "1 to 1.5",
+        "1.5 to 2",   "2 to 4",      "above 4",       "infinite",   "none",
+    };
+    return b >= 0 && b < PS_HIST_BINS ? label[b] : "?";
+}
+
+void ps_severity_histogram(const ps_run *r, size_t count[PS_HIST_BINS])
+{
+    for (int b = 0; b < PS_HIST_BINS; b++)
+        count[b] = 0;
+    for (size_t i = 0; i < r->n_rows; i++) {
+        ps_verdict v = ps_run_verdict(r, i);
+        if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH) {
+            count[PS_HIST_BINS - 1]++;
+            continue;
+        }
+        double s = ps_run_row(r, i)->severity;
+        int b;
+        if (isnan(s))
+            b = PS_HIST_BINS - 1;
+        else if (isinf(s))
+            b = PS_HIST_BINS - 2;
+        else {
+            b = N_EDGES - 1; /* above the last finite edge */
+            for (int k = 1; k < N_EDGES; k++)
+                if (s <= hist_edge[k]) {
+                    b = k - 1;
+                    break;
+                }
+        }
+        count[b]++;
+    }
+}
+
+const char *ps_run_title(const ps_run *r)
+{
+    return r->n_catalogs && r->catalogs[0].title && r->catalogs[0].title[0] ? r->catalogs[0].title : NULL;
+}
+
+void ps_report_stem(const ps_run *r, char *out, size_t n)
+{
+    /* The same rule as the command line's report set (src/cli/main.c). */
+    const char *path = r->n_catalogs && r->catalogs[0].file ? r->catalogs[0].file : "plantsieve";
+    const char *base = strrchr(path, '/');
+    base = base ? base + 1 : path;
+    snprintf(out, n, "%s", base);
+    char *dot = strrchr(out, '.');
+    if (dot && dot != out)
+        *dot = '\0';
+}
+
+const char ps_unstable_controller_text[] =
+    "structure: every stabilizing controller is itself unstable (parity interlacing fails: an odd number of "
+    "real unstable poles lies between two real zeros in the right half plane, infinity counted as one)";
+
+bool ps_unstable_controller_claim(const ps_summary *s)
+{
+    return s->verdict != PS_VERDICT_UNREAD && s->verdict != PS_VERDICT_UNSTABILIZABLE && !s->fl.parity_interlacing;
+}

@@ -9,6 +9,10 @@
 #   screen --detail none   the same without redesign targets and band curve
 #   screen --show all      the same listing every row (every record through the run file)
 #   survey  plantsieve survey CAT > /dev/null         (floors, no targets)
+#   files   plantsieve screen --gate never -o DIR CAT  (every report written: txt, csv, json,
+#           plants.jsonl, md, html; time over read time, CPU seconds, bytes a plant per format,
+#           MET/MISS for the JSON Lines record <= 1500 bytes a plant and for a Markdown and an
+#           HTML report bounded (< 1 MiB at every N)); FILES=0 skips it
 #   numpy   np_floors.py CAT                          (vectorised baseline; compute and total)
 # For N above NUMPY_SUBSET, numpy runs on the first NUMPY_SUBSET plants (the
 # smaller catalog is a prefix of the larger one) and is extrapolated linearly
@@ -37,6 +41,7 @@ REPS_LARGE=${REPS_LARGE:-1}
 NUMPY_SUBSET=${NUMPY_SUBSET:-100000}
 NUMPY_BUDGET=${NUMPY_BUDGET:-600}
 NUMPY=${NUMPY:-1}
+FILES=${FILES:-1}
 SIZES=("$@")
 [[ ${#SIZES[@]} -gt 0 ]] || SIZES=(10000 100000 1000000)
 
@@ -76,6 +81,7 @@ run_timed() {
         /usr/bin/time -v -o "$out.tv" "$@" > "$out.stdout" 2> "$out.stderr" || rc=$?
         t1=$(date +%s%N)
         local rss=$(awk -F': ' '/Maximum resident set size/ {print $2}' "$out.tv")
+        awk -F': ' '/User time|System time/ {s += $2} END {printf "%.2f\n", s}' "$out.tv" > "$out.cpu"
     else # python fallback: getrusage(RUSAGE_CHILDREN) around the child
         t0=$(date +%s%N)
         "$PY" -c 'import resource, subprocess, sys
@@ -107,6 +113,7 @@ measure() {
     M_S=$(printf '%s\n' "${times[@]}" | median | awk '{printf "%.6f", $1 / 1e6}')
     M_RSS=$(printf '%s\n' "${rss[@]}" | maxof | awk '{printf "%.1f", $1 / 1024}')
     M_RC=$rc
+    M_CPU=$(for ((r = 1; r <= reps; r++)); do cat "$TMP/$name-$n-$r.cpu" 2>/dev/null || echo nan; done | median)
     ALL_S=$(printf '%s\n' "${times[@]}" | awk '{printf "%s%.3f", (NR > 1 ? " " : ""), $1 / 1e6}')
 }
 
@@ -129,6 +136,7 @@ measure_numpy() {
     NP_SUMMARY=$(grep '^np_floors: verdicts' "$TMP/numpy-$n-1.stdout" | sed 's/^np_floors: //')
 }
 
+verdict() { awk -v v="$1" -v lim="$2" -v dir="$3" 'BEGIN {ok = (dir == "le") ? (v <= lim) : (v >= lim); print ok ? "PASS" : "MISS"}'; }
 fmt_rate() { awk -v n="$1" -v s="$2" 'BEGIN { if (s > 0) printf "%.0f", n / s; else print "-" }'; }
 ratio() { awk -v a="$1" -v b="$2" 'BEGIN { if (b > 0 && a != "") printf "%.2f", a / b; else print "-" }'; }
 
@@ -145,7 +153,7 @@ say ""
 DETAIL=0; "$PS" --help 2>&1 | grep -q -- '--detail' && DETAIL=1
 SHOW=0; "$PS" --help 2>&1 | grep -q -- '--show' && SHOW=1
 declare -A SN_S SN_RSS SA_S SA_RSS
-declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN
+declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN F_S F_RSS F_CPU F_B F_LINES
 for n in "${SIZES[@]}"; do
     cat=$(catalog "$n") || { say "generating the N=$n catalog failed"; exit 1; }
     reps=$REPS; (( n >= LARGE_AT )) && reps=$REPS_LARGE
@@ -163,6 +171,18 @@ for n in "${SIZES[@]}"; do
     if [[ $SHOW == 1 ]]; then
         measure screen-all "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --show all "$cat"
         SA_S[$n]=$M_S; SA_RSS[$n]=$M_RSS; say "# N=$n screen --show all runs: $ALL_S s"
+    fi
+    if [[ $FILES == 1 ]]; then
+        # Every report written, as a user's run does (the set replaced by each repetition).
+        measure files "$n" "$reps" "0 3" "$PS" screen --gate never --quiet "${SCREEN_OPTS[@]:3}" -o "$TMP/files" "$cat"
+        F_S[$n]=$M_S; F_RSS[$n]=$M_RSS; F_CPU[$n]=$M_CPU
+        stem=$(basename "${cat%.yaml}")
+        for ext in txt csv json plants.jsonl md html; do
+            F_B[$n,$ext]=$(stat -c %s "$TMP/files/$stem.screen/$stem.screen.$ext" 2>/dev/null || echo 0)
+        done
+        F_LINES[$n]=$(wc -l < "$TMP/files/$stem.screen/$stem.screen.plants.jsonl")
+        say "# N=$n screen with every report runs: $ALL_S s (median CPU $M_CPU s); JSON Lines $(( F_B[$n,plants.jsonl] / n )) B a plant, ${F_LINES[$n]} lines"
+        rm -rf "$TMP/files"
     fi
     measure survey "$n" "$reps" "0 3" "$PS" survey "$cat"
     SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; say "# N=$n survey runs: $ALL_S s"
@@ -246,12 +266,45 @@ say "YAML load + compute) over screen time, np/survey:c = numpy compute over sur
 say "many times faster plantsieve is (below 1: slower). numpy computes floors and severity only, no"
 say "redesign targets; screen also computes targets and the ranking. * = numpy extrapolated linearly."
 
+if [[ $FILES == 1 ]]; then
+    say ""
+    say "Screen with every report written (-o DIR): median wall time, CPU seconds (user + sys), bytes a plant"
+    hdr=$(printf '%9s | %9s %8s %8s %8s | %7s %7s %7s %8s %7s %7s | %s' N "files s" "CPU s" "/read" "/screen" \
+        txt csv json jsonl md html "RSS MiB")
+    say "$hdr"
+    say "$(printf '%s' "$hdr" | tr -c '|' '-')"
+    for n in "${SIZES[@]}"; do
+        say "$(printf '%9s | %9.3f %8s %8s %8s | %7.0f %7.0f %7.2f %8.0f %7.1f %7.0f | %s' "$n" "${F_S[$n]}" "${F_CPU[$n]}" \
+            "$(ratio "${F_S[$n]}" "${R_S[$n]}")" "$(ratio "${F_S[$n]}" "${SC_S[$n]}")" \
+            "$(awk -v b="${F_B[$n,txt]}" -v n="$n" 'BEGIN {print b / n}')" "$(awk -v b="${F_B[$n,csv]}" -v n="$n" 'BEGIN {print b / n}')" \
+            "$(awk -v b="${F_B[$n,json]}" -v n="$n" 'BEGIN {print b / n}')" "$(awk -v b="${F_B[$n,plants.jsonl]}" -v n="$n" 'BEGIN {print b / n}')" \
+            "$(awk -v b="${F_B[$n,md]}" -v n="$n" 'BEGIN {print b / n}')" "$(awk -v b="${F_B[$n,html]}" -v n="$n" 'BEGIN {print b / n}')" \
+            "${F_RSS[$n]}")"
+    done
+    for n in "${SIZES[@]}"; do
+        say "$(printf '%9s | whole files: json %s B, md %s B, html %s B, plants.jsonl %s B (%s lines)' "$n" "${F_B[$n,json]}" "${F_B[$n,md]}" "${F_B[$n,html]}" "${F_B[$n,plants.jsonl]}" "${F_LINES[$n]}")"
+    done
+    say "  (/read, /screen: the with-files time over the parse-only read and over screen --no-files)"
+fi
+
 # ---------------------------------------------------------------- targets
 say ""
 say "Targets (misses are shown, not hidden)"
+if [[ $FILES == 1 ]]; then
+    for n in "${SIZES[@]}"; do
+        b=$(awk -v b="${F_B[$n,plants.jsonl]}" -v n="$n" 'BEGIN {printf "%.0f", b / n}')
+        say "  JSON: the full record <= 1500 bytes a plant at N=$n: $b B (summary ${F_B[$n,json]} B)  -> $(verdict "$b" 1500 le | sed 's/PASS/MET/')"
+    done
+    mdmax=0; htmax=0
+    for n in "${SIZES[@]}"; do
+        (( F_B[$n,md] > mdmax )) && mdmax=${F_B[$n,md]}
+        (( F_B[$n,html] > htmax )) && htmax=${F_B[$n,html]}
+    done
+    say "  Markdown bounded (< 1 MiB at every N): largest $mdmax B  -> $(verdict "$mdmax" 1048575 le | sed 's/PASS/MET/')"
+    say "  HTML bounded (< 1 MiB at every N): largest $htmax B  -> $(verdict "$htmax" 1048575 le | sed 's/PASS/MET/')"
+fi
 last=${SIZES[${#SIZES[@]}-1]}; first=${SIZES[0]}
 for n in "${SIZES[@]}"; do (( n > last )) && last=$n; (( n < first )) && first=$n; done
-verdict() { awk -v v="$1" -v lim="$2" -v dir="$3" 'BEGIN {ok = (dir == "le") ? (v <= lim) : (v >= lim); print ok ? "PASS" : "MISS"}'; }
 big=""
 for n in "${SIZES[@]}"; do (( n >= 1000000 )) && big=$n && break; done
 if [[ -n "$big" ]]; then

@@ -57,10 +57,13 @@ contains "caution in the text" "$tmp/c.txt" "Caution: these floors are necessary
 
 # Exactly the known changes, each with its direction, checked on the JSON
 # (against the schema) and against the two screens' own JSON reports.
-"$py" - "$schema" "$tmp/c.json" "$old/old.screen.json" "$new/new.screen.json" "$tmp/c.md" "$tmp/c.txt" \
+PS_E2E_DIR="$src/tests/e2e" "$py" - "$schema" "$tmp/c.json" "$old/old.screen.json" "$new/new.screen.json" "$tmp/c.md" "$tmp/c.txt" \
     >"$tmp/py.out" 2>&1 <<'PY'
-import json, sys, jsonschema
-schema, doc, a, b = (json.load(open(f)) for f in sys.argv[1:5])
+import json, os, sys, jsonschema
+sys.path.insert(0, os.environ["PS_E2E_DIR"])
+import screen_doc  # the summary and its JSON Lines records
+schema, doc = (json.load(open(f)) for f in sys.argv[1:3])
+a, b = (screen_doc.load(f) for f in sys.argv[3:5])
 md, txt = open(sys.argv[5]).read(), open(sys.argv[6]).read()
 jsonschema.validate(doc, schema)
 got = {(c["kind"], c["id"], c["direction"], c["words"]) for c in doc["changes"]}

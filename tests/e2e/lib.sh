@@ -13,3 +13,10 @@ check() { # check NAME EXPECTED_RC ACTUAL_RC
 contains() { # contains NAME FILE TEXT
     if grep -qF -- "$3" "$2"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: $1: '$3' not in $2:"; sed 's/^/    /' "$2"; fi
 }
+same_run() { # same_run A B: the same report or listing of two runs whose command lines differ
+    # (other -o, --threads, --memory-rows, ...): equal byte for byte once the lines quoting the
+    # command line (they hold "plantsieve screen") are left out of both.
+    grep -v "plantsieve screen" "$1" >"$tmp/same_run.a"
+    grep -v "plantsieve screen" "$2" >"$tmp/same_run.b"
+    cmp -s "$tmp/same_run.a" "$tmp/same_run.b"
+}

@@ -82,6 +82,9 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
     ps_fuzz_require(k->entries <= c.outcomes, "an entry counted without its outcome");
     ps_run_rank(&c.run);
     ps_fuzz_require(ps_write_json(sink, &c.run) == PS_OK, "the JSON writer failed");
+    ps_fuzz_require(ps_write_plants_jsonl(sink, &c.run) == PS_OK, "the JSON Lines writer failed");
+    ps_fuzz_require(ps_write_markdown(sink, &c.run) == PS_OK, "the Markdown writer failed");
+    ps_fuzz_require(ps_write_terminal(sink, &c.run, false, 0, NULL) == PS_OK, "the text writer failed");
     ps_batch_free(b);
     ps_study_ws_free(c.study);
     ps_screen_ws_free(c.ws);

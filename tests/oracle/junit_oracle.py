@@ -11,7 +11,10 @@ schema is available offline): <testsuites> holding <testsuite> elements with
 tests/failures/errors/skipped counts, <testcase name classname> holding at
 most one <failure> or <error> with message and type attributes."""
 import json
+import os
 import sys
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "e2e"))
+import screen_doc  # noqa: E402
 import xml.etree.ElementTree as ET
 
 
@@ -48,7 +51,7 @@ def layout(path):
 
 def against_screen(xml_path, json_path):
     s, cases = layout(xml_path)
-    doc = json.load(open(json_path))
+    doc = screen_doc.load(json_path)  # the summary and its JSON Lines records
     per = doc["counts"]["per_verdict"]
     unread = [c for c in doc["catalogs"] if c["status"] == "failed"]
     plants = doc["plants"]

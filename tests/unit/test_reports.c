@@ -438,26 +438,39 @@ Test(reports, markdown_one_table_row_per_plant)
     cr_assert_null(strstr(doc, "&<b>"));
     cr_assert_not_null(strstr(doc, "strider-&\\<b>'x\""));
     cr_assert_not_null(strstr(doc, "\\|S\\| cannot be shaped"));
-    /* Redesign list: both flagged plants with every target sentence, not the others. */
+    /* First page: what must change lists both flagged plants with their
+     * found targets, not the others; then the caution once, before the
+     * distribution. */
     const char *chg = strstr(doc, "## What must change");
-    const char *req = strstr(doc, "## Requirements");
-    cr_assert(chg && req && chg < req);
+    const char *dist = strstr(doc, "## Severity of all");
+    const char *det = strstr(doc, "## Plants in detail");
+    cr_assert(chg && dist && det && chg < dist && dist < det);
     char text[400];
     ps_target_text(&r.rows[1], PS_TARGET_POLE, text, sizeof text);
-    cr_assert(text[0] && strstr(chg, text) && strstr(chg, text) < req, "pole target missing: %s", text);
-    cr_assert(strstr(chg, "### 1. strider-") && strstr(chg, "### 1. strider-") < req);
-    cr_assert(strstr(chg, "### 2. glide-g5") && strstr(chg, "### 2. glide-g5") < req);
+    cr_assert(text[0] && strstr(chg, text) && strstr(chg, text) < dist, "pole target missing: %s", text);
+    cr_assert(strstr(chg, "- **strider-") && strstr(chg, "- **strider-") < dist);
+    cr_assert(strstr(chg, "- **glide-g5** (") && strstr(chg, "- **glide-g5** (") < dist);
     const char *clear_in_list = strstr(chg, "pallas-1");
-    cr_assert(clear_in_list == NULL || clear_in_list > req, "a clear plant is in the redesign list");
-    /* Requirements of each screened plant; catalogs, verdict meanings, caution. */
-    ps_requirements_text(&r.rows[3], text, sizeof text);
-    cr_assert_not_null(strstr(req, "pallas-1"));
+    cr_assert(clear_in_list == NULL || clear_in_list > dist, "a clear plant is in the redesign list");
+    /* In detail: every target sentence of a flagged plant, the requirements
+     * of each plant shown. */
+    cr_assert(strstr(det, "### 1. strider-") && strstr(det, "### 2. glide-g5"));
+    ps_target_text(&r.rows[1], PS_TARGET_BAND, text, sizeof text);
+    cr_assert(text[0] && strstr(det, text), "band target missing: %s", text);
+    cr_assert_not_null(strstr(det, "pallas-1"));
     cr_assert_not_null(strstr(doc, "`two.csv`: **not read to the end** (line 6, column 1"));
     cr_assert_not_null(strstr(doc, "`catalogs/cat,one.yaml`: read to the end"));
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
         cr_assert_not_null(strstr(doc, ps_verdict_meaning((ps_verdict)v)), "%d", v);
     cr_assert(strpbrk(ps_caution_text, "\\`*_[]<&|") == NULL, "caution needs escaping in this test");
-    cr_assert_not_null(strstr(doc, ps_caution_text));
+    /* The caution once, its own "Caution:" not doubled by a heading. */
+    const char *caution = strstr(doc, ps_caution_text + strlen("Caution:"));
+    cr_assert(caution && caution < dist, "caution on the first page");
+    size_t n_caution = 0;
+    for (const char *c = strstr(doc, "Caution"); c; c = strstr(c + 1, "Caution"))
+        n_caution++;
+    cr_assert_eq(n_caution, 1, "the word Caution %zu times", n_caution);
+    cr_assert_not_null(strstr(doc, "**Caution:** these floors"));
     cr_assert_not_null(strstr(doc, PS_VERSION));
     free(doc);
     ps_run_free(&r);
@@ -671,4 +684,24 @@ Test(reports, atomic_write_replaces_whole_or_not_at_all)
     cr_assert_eq(dir_entries(dir, name, sizeof name), 0, "left: %s", name);
     cr_assert_eq(rmdir(dir), 0);
     ps_run_free(&r);
+}
+
+/* ---- catalog text in the text report ---- */
+
+/* A note or title with control characters reaches a terminal or the .txt
+ * report only as visible escapes: C0 (tab, line feed, carriage return as
+ * \t \n \r, others \xHH), DEL, and the C1 controls that UTF-8 writes as
+ * C2 80..9F (ECMA-48 reads them as commands) as \u00HH; other UTF-8 text
+ * (the verdict marks, accents) passes unchanged. */
+Test(reports, visible_text_escapes_control_characters)
+{
+    char *buf = NULL;
+    size_t n = 0;
+    FILE *f = open_memstream(&buf, &n);
+    cr_assert_not_null(f);
+    ps_put_visible(f, "a\tb\nc\rd\x01" "e\x7f" "f\xc2\x9b" "31m\xc3\xa9\xe2\x97\x8f");
+    ps_put_visible(f, NULL);
+    fclose(f);
+    cr_assert_str_eq(buf, "a\\tb\\nc\\rd\\x01e\\x7ff\\u009b31m\xc3\xa9\xe2\x97\x8f");
+    free(buf);
 }
