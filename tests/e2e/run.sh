@@ -162,7 +162,7 @@ PY
 check "band edge target: none for a plant that fails without any band" 0 $?
 "$ps" screen -o "$tmp/scr2" --gate never "$cf" >/dev/null 2>&1
 for ext in txt csv json md html; do
-    cmp -s "$tmp/scr/closed-form.screen/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
+    same_report "$tmp/scr/closed-form.screen/closed-form.screen.$ext" "$tmp/scr2/closed-form.screen/closed-form.screen.$ext"; check "screen: $ext deterministic" 0 $?
 done
 # Thread-count invariance: the demo (with its family) on 1, 2 and 5 threads, byte for byte.
 for t in 1 2 5; do
@@ -172,10 +172,11 @@ done
 for t in 2 5; do
     cmp -s "$tmp/thr1.out" "$tmp/thr$t.out"; check "screen: stdout same on $t threads as on 1" 0 $?
     for ext in txt csv json md html; do
-        cmp -s "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/thr$t/demo-variants.screen/demo-variants.screen.$ext"
+        same_report "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/thr$t/demo-variants.screen/demo-variants.screen.$ext"
         check "screen: $ext same on $t threads as on 1" 0 $?
     done
 done
+contains "screen: the HTML first page names the command line" "$tmp/thr2/demo-variants.screen/demo-variants.screen.html" "command line: <code class=\"cmd\">plantsieve screen --threads 2 -o $tmp/thr2 --gate never $src/catalogs/demo-variants.yaml</code>"
 "$ps" screen --threads 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --threads 0 is a usage error" 2 $?
 # --detail: verdicts and ranking unchanged; targets only where asked.
 "$ps" screen --detail none -o "$tmp/dnone" --gate never "$src/catalogs/demo-variants.yaml" >/dev/null 2>&1
@@ -241,7 +242,7 @@ cmp -s "$tmp/keep-t1.out" "$tmp/keep-t5.out"; check "screen --no-files keep mode
 check "screen --memory-rows 3" 0 $?
 cmp -s "$tmp/thr1.out" "$tmp/spill.out"; check "screen: stdout same with summaries on file" 0 $?
 for ext in txt csv json md html families.csv; do
-    cmp -s "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen/demo-variants.screen.$ext"
+    same_report "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen/demo-variants.screen.$ext"
     check "screen: $ext same with summaries on file" 0 $?
 done
 # Families: a CSV of the studies next to the other reports, only when the run has families.
@@ -474,7 +475,7 @@ check "band target and curve of a plant far faster than w_h stay below w_h" 0 $?
 
 (cd "$src" && "$ps" screen -o "$tmp/demo" --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
 for ext in txt csv json md html families.csv; do
-    cmp -s "$tmp/demo/demo-variants.screen/demo-variants.screen.$ext" "$src/reports/demo-variants.screen/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
+    same_report "$tmp/demo/demo-variants.screen/demo-variants.screen.$ext" "$src/reports/demo-variants.screen/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
 done
 
 # The screening JSON validates against its schema. The floors object is the
