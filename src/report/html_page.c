@@ -124,7 +124,7 @@ static const char page_style[] =
     "article.plant{border-top:1px solid #777;margin-top:1em}\n"
     ".back{font-size:.9em;margin:.1em 0}\n"
     ".structure{font-weight:bold}\n"
-    "html,body{overflow-x:hidden}\n"
+    "body{max-width:92em}\n"
     /* Narrow screens: every ranking row becomes a block of labelled lines. */
     "@media (max-width:700px){body{padding:0 .5em;margin:.5em auto}"
     "table.stack,table.stack>tbody,table.stack>tbody>tr,table.stack td,table.stack th[scope=row]{display:block;"
@@ -141,7 +141,6 @@ static const char page_style[] =
     ".board{break-after:page;page-break-after:always}"
     "article.plant{break-inside:auto;page-break-inside:auto}article.plant h3{break-after:avoid;"
     "page-break-after:avoid}.back{display:none}"
-    "table.ranking .tok{white-space:normal;overflow-wrap:anywhere}"
     "thead{display:table-header-group}caption{break-after:avoid}}\n";
 
 void ps_html_page_style(FILE *f)
@@ -228,7 +227,7 @@ static void counts_table(FILE *f, const ps_run *r)
     for (int v = 0; v < PS_VERDICT_COUNT; v++) {
         size_t k = r->per_verdict[v];
         double share = r->n_rows ? 100.0 * (double)k / (double)r->n_rows : 0.0;
-        fprintf(f, "<tr data-verdict=\"%s\"><th scope=\"row\">", ps_verdict_name((ps_verdict)v));
+        fprintf(f, "<tr><th scope=\"row\">");
         ps_html_verdict_label(f, (ps_verdict)v);
         fprintf(f, "</th><td class=\"num\">%zu</td><td class=\"num\">%.1f %%</td><td class=\"chart\">", k, share);
         if (k > 0)

@@ -189,7 +189,24 @@ static const char style_sheet[] =
 
 /* One ranked row: the plant's id links to its section (when it has one),
  * each cell carries its column name for the stacked layout of narrow screens. */
-static void ranking_row(FILE *f, const ps_run *r, size_t i, const ps_summary *s)
+static const char *base_name(const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    return slash ? slash + 1 : path;
+}
+
+/* The ranking names a catalog by its file name alone (the first page has
+ * the paths) unless two catalogs of the run share a file name. */
+static bool short_catalog_names(const ps_run *r)
+{
+    for (size_t i = 0; i < r->n_catalogs; i++)
+        for (size_t j = i + 1; j < r->n_catalogs; j++)
+            if (strcmp(base_name(r->catalogs[i].file), base_name(r->catalogs[j].file)) == 0)
+                return false;
+    return true;
+}
+
+static void ranking_row(FILE *f, const ps_run *r, size_t i, const ps_summary *s, bool short_names)
 {
     bool unread = s->verdict == PS_VERDICT_UNREAD;
     char anchor[16 + 3 * PS_ID_MAX], row[32];
@@ -243,8 +260,10 @@ static void ranking_row(FILE *f, const ps_run *r, size_t i, const ps_summary *s)
     }
     fprintf(f, "<td class=\"cause\" data-label=\"Cause\">");
     h_text(f, s->cause);
-    fprintf(f, "</td><td class=\"src\" data-label=\"Source\"><code class=\"tok\">");
+    fprintf(f, "</td><td class=\"src\" data-label=\"Source\"><code class=\"tok\" title=\"");
     h_text(f, catalog_of(r, s));
+    fprintf(f, "\">");
+    h_text(f, short_names ? base_name(catalog_of(r, s)) : catalog_of(r, s));
     fprintf(f, ":%zu</code></td></tr>\n", s->line);
 }
 
@@ -277,8 +296,9 @@ static void ranking(FILE *f, const ps_run *r)
                "<th scope=\"col\">Ms floor</th><th scope=\"col\">Ms allowed</th><th scope=\"col\">Mt floor</th>"
                "<th scope=\"col\">Mt allowed</th><th scope=\"col\">Limiting</th><th scope=\"col\">Cause</th>"
                "<th scope=\"col\">Source</th></tr></thead>\n<tbody>\n");
+    bool short_names = short_catalog_names(r);
     for (size_t i = 0; i < shown; i++)
-        ranking_row(f, r, i, ps_run_row(r, i));
+        ranking_row(f, r, i, ps_run_row(r, i), short_names);
     fprintf(f, "</tbody>\n</table>\n</section>\n");
 }
 
@@ -1225,13 +1245,14 @@ static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *
         fprintf(f, ".</p>\n</article>\n");
         return;
     }
+    size_t len = strlen(s->cause);
     fprintf(f, "<p>Cause: ");
     h_text(f, s->cause);
-    fprintf(f, "</p>\n");
+    fprintf(f, "%s</p>\n", len && s->cause[len - 1] != '.' ? "." : "");
     if (unstable_controller_required(s))
         fprintf(f, "<p class=\"structure\">Every stabilizing controller is itself unstable (parity interlacing "
-                   "fails: an odd number of real unstable poles lies between two real zeros in the right half "
-                   "plane or at infinity).</p>\n");
+                   "fails: an odd number of real unstable poles lies between two real zeros on [0, +infinity], "
+                   "infinity counting as a zero of a strictly proper or delayed plant).</p>\n");
     fprintf(f, "<ul class=\"targets\">\n");
     bool any_target = false;
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
@@ -1287,10 +1308,11 @@ static void plant_sections(FILE *f, const ps_run *r)
         ps_html_files_sentence(f, r);
         fprintf(f, " ");
     }
-    fprintf(f, "Each section gives the plant's note, source line, cause, the targets (the value each quantity "
-               "alone must reach for every floor to pass), the requirements it was screened against and its "
-               "figures: poles and zeros in the s-plane, and the Ms floor against the band edge where it was "
-               "computed.</p>\n");
+    fprintf(f, "Each section gives the plant's note, source line, cause, its targets (one quantity changed at a "
+               "time, the value with which every floor passes), the requirements it was screened against and its "
+               "figures. Pole/zero maps: poles x, zeros o, the right half plane shaded, symmetric-log axes. Ms floor "
+               "against band edge: the floor forced by keeping |S| small up to the band edge, both axes log, the "
+               "allowed Ms dashed; drawn where the curve was computed.</p>\n");
     for (size_t i = 0; i < shown; i++)
         plant_section(f, r, i, ps_run_row(r, i));
     fprintf(f, "</section>\n");
