@@ -1,6 +1,7 @@
 /* html_report.c - the screening run as one self-contained HTML5 page: inline
  * style, no script, no external assets, figures as inline SVG; prints in black on white. */
 #include "report/reports.h"
+#include "report/html_page.h"
 #include "core/text.h"
 #include "report/plot.h"
 
@@ -133,47 +134,86 @@ static const char style_sheet[] =
     "*{-webkit-print-color-adjust:exact;print-color-adjust:exact}}\n"
     "@page{margin:14mm}\n";
 
-/* ---- header, tables and lists ---- */
+/* ---- ranking ---- */
 
-static void header(FILE *f, const ps_run *r)
+/* One ranked row: the plant's id links to its section (when it has one),
+ * each cell carries its column name for the stacked layout of narrow screens. */
+static const char *base_name(const char *path)
 {
-    fprintf(f, "<header>\n<h1>Screening report</h1>\n");
-    fprintf(f, "<p class=\"meta\">Written by plantsieve ");
-    h_text(f, PS_VERSION);
-    fprintf(f, ". A plant is marginal from a share of %.3g of the allowed log-peak.</p>\n", r->opt.marginal_at);
-    fprintf(f, "<h2>Catalogs</h2>\n<ul class=\"catalogs\">\n");
-    if (r->n_catalogs == 0)
-        fprintf(f, "<li>none</li>\n");
-    for (size_t i = 0; i < r->n_catalogs; i++) {
-        const ps_catalog_entry *c = &r->catalogs[i];
-        fprintf(f, "<li><code>");
-        h_text(f, c->file);
-        fprintf(f, "</code>: ");
-        if (c->failed) {
-            fprintf(f, "<strong>not read to the end</strong> (line %zu, column %zu: ", c->line, c->col);
-            h_text(f, c->error);
-            char unread[256];
-            ps_unread_text(c->line, unread, sizeof unread);
-            fprintf(f, "); ");
-            h_text(f, unread);
-        } else
-            fprintf(f, "read to the end");
-        fprintf(f, "</li>\n");
-    }
-    fprintf(f, "</ul>\n<h2>Counts</h2>\n<p>Entries: %zu; screened: %zu; input errors: %zu.</p>\n",
-            r->counts.entries, r->counts.models, r->counts.errors);
-    fprintf(f, "<table class=\"counts\">\n<thead><tr><th>Verdict</th><th>Plants</th></tr></thead>\n<tbody>\n");
-    for (int v = 0; v < PS_VERDICT_COUNT; v++)
-        fprintf(f, "<tr><td>%s</td><td class=\"num\">%zu</td></tr>\n", ps_verdict_name((ps_verdict)v),
-                r->per_verdict[v]);
-    fprintf(f, "</tbody>\n</table>\n</header>\n");
+    const char *slash = strrchr(path, '/');
+    return slash ? slash + 1 : path;
 }
 
-static void caution(FILE *f)
+/* The ranking names a catalog by its file name alone (the first page has
+ * the paths) unless two catalogs of the run share a file name. */
+static bool short_catalog_names(const ps_run *r)
 {
-    fprintf(f, "<section class=\"caution\" id=\"caution\">\n<h2>Caution</h2>\n<p>");
-    h_text(f, ps_caution_text);
-    fprintf(f, "</p>\n</section>\n");
+    for (size_t i = 0; i < r->n_catalogs; i++)
+        for (size_t j = i + 1; j < r->n_catalogs; j++)
+            if (strcmp(base_name(r->catalogs[i].file), base_name(r->catalogs[j].file)) == 0)
+                return false;
+    return true;
+}
+
+static void ranking_row(FILE *f, const ps_run *r, size_t i, const ps_summary *s, bool short_names)
+{
+    bool unread = s->verdict == PS_VERDICT_UNREAD;
+    char anchor[16 + 3 * PS_ID_MAX], row[32];
+    ps_html_row_anchor(row, sizeof row, i + 1);
+    fprintf(f, "<tr class=\"plant-row\" id=\"%s\" data-id=\"", row);
+    h_text(f, s->id);
+    fprintf(f, "\" data-verdict=\"%s\"><td class=\"num\" data-label=\"Rank\">%zu</td>"
+               "<th scope=\"row\" class=\"id\" data-label=\"Plant\">",
+            ps_verdict_name(s->verdict), i + 1);
+    if (ps_html_has_section(r, i)) {
+        ps_html_plant_anchor(anchor, sizeof anchor, i + 1, s->id);
+        fprintf(f, "<a class=\"tok\" href=\"#%s\">", anchor);
+        h_text(f, s->id[0] ? s->id : "(no id)");
+        fprintf(f, "</a>");
+    } else {
+        fprintf(f, "<span class=\"tok\">");
+        h_text(f, s->id[0] ? s->id : "(no id)");
+        fprintf(f, "</span>");
+    }
+    if (s->note[0]) {
+        char note[200];
+        fit_label(note, sizeof note, s->note, 60);
+        fprintf(f, "<span class=\"note-short\">");
+        h_text(f, note);
+        fprintf(f, "</span>");
+    }
+    fprintf(f, "</th><td class=\"verdict\" data-label=\"Verdict\">");
+    ps_html_verdict_label(f, s->verdict);
+    fprintf(f, "</td><td class=\"num\" data-label=\"Severity\">");
+    if (isfinite(s->severity))
+        fprintf(f, "%.3f", s->severity);
+    else
+        fputs(isinf(s->severity) ? "infinite" : "n/a", f);
+    fprintf(f, "</td><td data-label=\"Worst\">%s</td>", unread ? "n/a" : s->worst);
+    if (unread)
+        fprintf(f, "<td class=\"num\" data-label=\"Ms floor\">n/a</td><td class=\"num\" data-label=\"Ms allowed\">n/a"
+                   "</td><td class=\"num\" data-label=\"Mt floor\">n/a</td><td class=\"num\" data-label=\"Mt allowed\">"
+                   "n/a</td><td data-label=\"Limiting\">n/a</td>");
+    else {
+        fprintf(f, "<td class=\"num\" data-label=\"Ms floor\">");
+        h_big(f, s->fl.ms, s->fl.ms_ln);
+        fprintf(f, "</td><td class=\"num\" data-label=\"Ms allowed\">");
+        h_num(f, s->req.ms_allowed);
+        fprintf(f, "</td><td class=\"num\" data-label=\"Mt floor\">");
+        h_big(f, s->fl.mt, s->fl.mt_ln);
+        fprintf(f, "</td><td class=\"num\" data-label=\"Mt allowed\">");
+        h_num(f, s->req.mt_allowed);
+        fprintf(f, "</td><td data-label=\"Limiting\">");
+        h_text(f, s->fl.limiting ? s->fl.limiting : "none");
+        fprintf(f, "</td>");
+    }
+    fprintf(f, "<td class=\"cause\" data-label=\"Cause\">");
+    h_text(f, s->cause);
+    fprintf(f, "</td><td class=\"src\" data-label=\"Source\"><code class=\"tok\" title=\"");
+    h_text(f, catalog_of(r, s));
+    fprintf(f, "\">");
+    h_text(f, short_names ? base_name(catalog_of(r, s)) : catalog_of(r, s));
+    fprintf(f, ":%zu</code></td></tr>\n", s->line);
 }
 
 static void ranking(FILE *f, const ps_run *r)
@@ -183,47 +223,31 @@ static void ranking(FILE *f, const ps_run *r)
         fprintf(f, "<p>No plants.</p>\n</section>\n");
         return;
     }
+    size_t shown = r->n_rows < PS_HTML_RANK_ROWS ? r->n_rows : PS_HTML_RANK_ROWS;
+    size_t sections = r->n_rows < PS_HTML_SECTIONS ? r->n_rows : PS_HTML_SECTIONS;
     fprintf(f, "<p>Worst first: not stabilizable, then by severity (the largest share of the allowed log-peak), "
-               "then the plants not judged for want of a bandwidth limit, input errors last, each in catalog order.</p>\n");
-    fprintf(f, "<table class=\"ranking\">\n<thead><tr><th>Rank</th><th>Plant</th><th>Verdict</th><th>Severity</th>"
-               "<th>Worst</th><th>Ms floor</th><th>Ms allowed</th><th>Mt floor</th><th>Mt allowed</th>"
-               "<th>Limiting</th><th>Cause</th><th>Source</th></tr></thead>\n<tbody>\n");
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        bool unread = s->verdict == PS_VERDICT_UNREAD;
-        fprintf(f, "<tr class=\"plant-row\" data-id=\"");
-        h_text(f, s->id);
-        fprintf(f, "\" data-verdict=\"%s\"><td class=\"num\">%zu</td><td class=\"id\">", ps_verdict_name(s->verdict),
-                i + 1);
-        h_text(f, s->id);
-        fprintf(f, "</td><td class=\"verdict\">%s</td><td class=\"num\">", ps_verdict_name(s->verdict));
-        if (isfinite(s->severity))
-            fprintf(f, "%.3f", s->severity);
-        else
-            fputs(isinf(s->severity) ? "infinite" : "n/a", f);
-        fprintf(f, "</td><td>%s</td>", unread ? "n/a" : s->worst);
-        if (unread)
-            fprintf(f, "<td class=\"num\">n/a</td><td class=\"num\">n/a</td><td class=\"num\">n/a</td>"
-                       "<td class=\"num\">n/a</td><td>n/a</td>");
-        else {
-            fprintf(f, "<td class=\"num\">");
-            h_big(f, s->fl.ms, s->fl.ms_ln);
-            fprintf(f, "</td><td class=\"num\">");
-            h_num(f, s->req.ms_allowed);
-            fprintf(f, "</td><td class=\"num\">");
-            h_big(f, s->fl.mt, s->fl.mt_ln);
-            fprintf(f, "</td><td class=\"num\">");
-            h_num(f, s->req.mt_allowed);
-            fprintf(f, "</td><td>");
-            h_text(f, s->fl.limiting ? s->fl.limiting : "none");
-            fprintf(f, "</td>");
-        }
-        fprintf(f, "<td class=\"cause\">");
-        h_text(f, s->cause);
-        fprintf(f, "</td><td class=\"src\">");
-        h_text(f, catalog_of(r, s));
-        fprintf(f, ":%zu</td></tr>\n", s->line);
+               "then the plants not judged for want of a bandwidth limit, input errors last, each in catalog order. ");
+    if (sections == r->n_rows)
+        fprintf(f, "Each plant's id links to its section below.");
+    else
+        fprintf(f, "The ids of the first %zu link to their sections below.", sections);
+    fprintf(f, "</p>\n");
+    if (shown < r->n_rows) {
+        fprintf(f, "<p><span class=\"cap\">Showing %zu of %zu plants.</span> ", shown, r->n_rows);
+        ps_html_files_sentence(f, r);
+        fprintf(f, "</p>\n");
     }
+    fprintf(f, "<table class=\"ranking stack\">\n<caption>Plants ranked worst first");
+    if (shown < r->n_rows)
+        fprintf(f, " (the first %zu of %zu)", shown, r->n_rows);
+    fprintf(f, "</caption>\n<thead><tr><th scope=\"col\">Rank</th><th scope=\"col\">Plant</th>"
+               "<th scope=\"col\">Verdict</th><th scope=\"col\">Severity</th><th scope=\"col\">Worst</th>"
+               "<th scope=\"col\">Ms floor</th><th scope=\"col\">Ms allowed</th><th scope=\"col\">Mt floor</th>"
+               "<th scope=\"col\">Mt allowed</th><th scope=\"col\">Limiting</th><th scope=\"col\">Cause</th>"
+               "<th scope=\"col\">Source</th></tr></thead>\n<tbody>\n");
+    bool short_names = short_catalog_names(r);
+    for (size_t i = 0; i < shown; i++)
+        ranking_row(f, r, i, ps_run_row(r, i), short_names);
     fprintf(f, "</tbody>\n</table>\n</section>\n");
 }
 
@@ -429,52 +453,6 @@ static void pz_map(FILE *f, const ps_summary *s)
     if (s->delay > 0)
         fprintf(f, " The delay of %.4g s is not a root and is not drawn.", s->delay);
     fprintf(f, "</figcaption>\n</figure>\n");
-}
-
-/* ---- redesign list ---- */
-
-static void changes(FILE *f, const ps_run *r)
-{
-    fprintf(f, "<section id=\"changes\">\n<h2>What must change</h2>\n");
-    bool any = false;
-    size_t maps = 0;
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (!is_flagged(s))
-            continue;
-        any = true;
-        fprintf(f, "<article class=\"flagged\" data-id=\"");
-        h_text(f, s->id);
-        fprintf(f, "\">\n<h3>%zu. ", i + 1);
-        h_text(f, s->id);
-        fprintf(f, " (%s)</h3>\n<p>Cause: ", ps_verdict_name(s->verdict));
-        h_text(f, s->cause);
-        fprintf(f, "</p>\n<ul class=\"targets\">\n");
-        bool any_target = false;
-        for (int k = 0; k < PS_TARGET_COUNT; k++) {
-            char text[400];
-            ps_target_text(s, (ps_target_kind)k, text, sizeof text);
-            if (!text[0])
-                continue;
-            any_target = true;
-            fprintf(f, "<li>");
-            h_text(f, text);
-            fprintf(f, "</li>\n");
-        }
-        if (!any_target)
-            fprintf(f, "<li>no single change of pole, zero, delay or bandwidth applies</li>\n");
-        fprintf(f, "</ul>\n");
-        if (s->in_z)
-            fprintf(f, "<p>(the plant is given in z: its roots are listed under Digital loops, not drawn in the s-plane)</p>\n");
-        else if (maps++ < PS_HTML_FIGURES)
-            pz_map(f, s);
-        else
-            fprintf(f, "<p>(pole/zero map drawn for the %d worst flagged plants only)</p>\n", PS_HTML_FIGURES);
-        fprintf(f, "</article>\n");
-    }
-    if (!any)
-        fprintf(f, "<p>No plant needs a hardware change.</p>\n");
-    fprintf(f, "</section>\n");
 }
 
 /* ---- families: boundary along each swept parameter, yield bar ---- */
@@ -864,8 +842,8 @@ static void families(FILE *f, const ps_run *r)
         return;
     fprintf(f, "<section id=\"families\">\n<h2>Families</h2>\n<p>Boundaries: one swept parameter at a time, the "
                "others at nominal; the verdict at the sweep points, one change located by bisection. Yield: seeded "
-               "samples of the toleranced parameters, 95 %% Wilson intervals. The grid plants are in the ranking "
-               "above like any other plant.</p>\n");
+               "samples of the toleranced parameters, 95 %% Wilson intervals. The grid plants are screened and "
+               "ranked like any other plant.</p>\n");
     for (size_t i = 0; i < r->n_families; i++) {
         const ps_family_result *fr = &r->families[i];
         fprintf(f, "<article class=\"family\" data-id=\"");
@@ -1111,97 +1089,154 @@ static void budget_figure(FILE *f, const ps_summary *s)
     fprintf(f, "</figcaption>\n</figure>\n");
 }
 
-static void band_figures(FILE *f, const ps_run *r)
+/* ---- plant sections ---- */
+
+/* The structural flag holds where the floors were computed for a plant
+ * given in s (not for an infinite floor or a plant given in z, where the
+ * terminal listing leaves it out too). */
+static bool unstable_controller_required(const ps_summary *s)
 {
-    bool any = false;
-    size_t drawn = 0;
-    for (size_t i = 0; i < r->n_rows && drawn < PS_HTML_FIGURES; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (s->verdict == PS_VERDICT_UNREAD || s->n_curve == 0)
-            continue;
-        drawn++;
-        if (!any)
-            fprintf(f, "<section id=\"band\">\n<h2>Ms floor against band edge</h2>\n<div class=\"figs\">\n");
-        any = true;
-        band_figure(f, s);
-        if (s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_MARGINAL)
-            budget_figure(f, s);
-    }
-    if (any && drawn == PS_HTML_FIGURES && r->n_rows > drawn)
-        fprintf(f, "</div>\n<p>Drawn for the %d worst plants; every plant's curve is in the JSON report "
-                   "(band_curve).</p>\n</section>\n", PS_HTML_FIGURES);
-    else if (any)
-        fprintf(f, "</div>\n</section>\n");
+    return s->verdict != PS_VERDICT_UNREAD && !s->fl.infinite && !s->in_z && !s->fl.parity_interlacing;
 }
 
-/* ---- digital loops ---- */
-
-/* The sampled plants (section absent when every loop is continuous). */
-static void digital_loops(FILE *f, const ps_run *r)
+static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *s)
 {
-    bool any = false;
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (s->verdict == PS_VERDICT_UNREAD || !(s->h > 0))
-            continue;
-        if (!any)
-            fprintf(f, "<section id=\"digital\">\n<h2>Digital loops</h2>\n<table class=\"digital\">\n<thead><tr>"
-                       "<th>Plant</th><th>Sampling</th><th>Roots in z</th><th>Nyquist floor</th></tr></thead>\n"
-                       "<tbody>\n");
-        any = true;
-        char text[1200];
-        fprintf(f, "<tr data-id=\"");
-        h_text(f, s->id);
-        fprintf(f, "\"><td class=\"id\">");
-        h_text(f, s->id);
-        fprintf(f, "</td><td>");
-        ps_sampling_text(s->h, s->compute_delay, s->in_z, text, sizeof text);
-        h_text(f, text);
-        fprintf(f, "</td><td>");
-        ps_zroots_text(&s->fl, s->in_z, text, sizeof text);
-        h_text(f, text);
-        fprintf(f, "</td><td>");
-        ps_nyquist_floor_text(&s->fl, s->req.wb, text, sizeof text);
-        h_text(f, text);
-        fprintf(f, "</td></tr>\n");
+    char anchor[16 + 3 * PS_ID_MAX], row[32], text[1200];
+    ps_html_plant_anchor(anchor, sizeof anchor, i + 1, s->id);
+    ps_html_row_anchor(row, sizeof row, i + 1);
+    fprintf(f, "<article class=\"plant%s\" id=\"%s\" data-id=\"", is_flagged(s) ? " flagged" : "", anchor);
+    h_text(f, s->id);
+    fprintf(f, "\" data-verdict=\"%s\">\n<h3>%zu. <span class=\"tok\">", ps_verdict_name(s->verdict), i + 1);
+    h_text(f, s->id[0] ? s->id : "(no id)");
+    fprintf(f, "</span> ");
+    ps_html_verdict_label(f, s->verdict);
+    fprintf(f, "</h3>\n");
+    if (ps_html_has_row(r, i))
+        fprintf(f, "<p class=\"back\"><a href=\"#%s\">Back to row %zu of the ranking</a></p>\n", row, i + 1);
+    if (s->note[0]) {
+        fprintf(f, "<p class=\"note\">Note: ");
+        h_text(f, s->note);
+        fprintf(f, "</p>\n");
     }
-    if (any)
-        fprintf(f, "</tbody>\n</table>\n</section>\n");
-}
-
-/* ---- requirements, errors, meanings ---- */
-
-static void requirements(FILE *f, const ps_run *r)
-{
-    fprintf(f, "<section id=\"requirements\">\n<h2>Requirements screened against</h2>\n");
-    fprintf(f, "<table class=\"requirements\">\n<thead><tr><th>Plant</th><th>Requirements</th></tr></thead>\n<tbody>\n");
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (s->verdict == PS_VERDICT_UNREAD)
-            continue;
-        char text[512];
-        ps_requirements_text(s, text, sizeof text);
-        fprintf(f, "<tr><td>");
-        h_text(f, s->id);
-        fprintf(f, "</td><td>");
-        h_text(f, text);
-        fprintf(f, "</td></tr>\n");
-    }
-    fprintf(f, "</tbody>\n</table>\n</section>\n");
-    if (r->per_verdict[PS_VERDICT_UNREAD] == 0)
-        return;
-    fprintf(f, "<section id=\"errors\">\n<h2>Input errors</h2>\n<ul>\n");
-    for (size_t i = 0; i < r->n_rows; i++) {
-        const ps_summary *s = ps_run_row(r, i);
-        if (s->verdict != PS_VERDICT_UNREAD)
-            continue;
-        fprintf(f, "<li>");
-        h_text(f, s->id[0] ? s->id : "(no id)");
-        fprintf(f, " (<code>");
+    fprintf(f, "<p>Source: <code class=\"tok\">");
+    h_text(f, catalog_of(r, s));
+    fprintf(f, ":%zu</code></p>\n", s->line);
+    if (s->verdict == PS_VERDICT_UNREAD) {
+        fprintf(f, "<p>Input error at <code class=\"tok\">");
         h_text(f, catalog_of(r, s));
         fprintf(f, ":%zu:%zu</code>", s->err_line, s->err_col);
         if (s->err_field[0]) {
-            fprintf(f, ", field <code>");
+            fprintf(f, ", field <code class=\"tok\">");
+            h_text(f, s->err_field);
+            fprintf(f, "</code>");
+        }
+        fprintf(f, ": ");
+        h_text(f, s->err_text);
+        fprintf(f, ".</p>\n</article>\n");
+        return;
+    }
+    size_t len = strlen(s->cause);
+    fprintf(f, "<p>Cause: ");
+    h_text(f, s->cause);
+    fprintf(f, "%s</p>\n", len && s->cause[len - 1] != '.' ? "." : "");
+    if (unstable_controller_required(s))
+        fprintf(f, "<p class=\"structure\">Every stabilizing controller is itself unstable (parity interlacing "
+                   "fails: an odd number of real unstable poles lies between two real zeros on [0, +infinity], "
+                   "infinity counting as a zero of a strictly proper or delayed plant).</p>\n");
+    fprintf(f, "<ul class=\"targets\">\n");
+    bool any_target = false;
+    for (int k = 0; k < PS_TARGET_COUNT; k++) {
+        ps_target_text(s, (ps_target_kind)k, text, sizeof text);
+        if (!text[0])
+            continue;
+        any_target = true;
+        fprintf(f, "<li>");
+        h_text(f, text);
+        fprintf(f, "</li>\n");
+    }
+    if (!any_target)
+        fprintf(f, "<li>no single change of pole, zero, delay or bandwidth applies</li>\n");
+    fprintf(f, "</ul>\n<p>Requirements: ");
+    ps_requirements_text(s, text, sizeof text);
+    h_text(f, text);
+    fprintf(f, ".</p>\n");
+    if (s->h > 0) {
+        fprintf(f, "<p>Digital loop: ");
+        ps_sampling_text(s->h, s->compute_delay, s->in_z, text, sizeof text);
+        h_text(f, text);
+        fprintf(f, ".</p>\n<p>");
+        ps_zroots_text(&s->fl, s->in_z, text, sizeof text);
+        h_text(f, text);
+        fprintf(f, ".</p>\n<p>");
+        ps_nyquist_floor_text(&s->fl, s->req.wb, text, sizeof text);
+        h_text(f, text);
+        fprintf(f, ".</p>\n");
+    }
+    bool map = !s->in_z, band = s->n_curve > 0;
+    if (s->in_z)
+        fprintf(f, "<p>The plant is given in z: its roots are listed above, not drawn in the s-plane.</p>\n");
+    if (map || band) {
+        fprintf(f, "<div class=\"figs\">\n");
+        if (map)
+            pz_map(f, s);
+        if (band)
+            band_figure(f, s);
+        if (band && (s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_MARGINAL))
+            budget_figure(f, s);
+        fprintf(f, "</div>\n");
+    }
+    fprintf(f, "</article>\n");
+}
+
+static void plant_sections(FILE *f, const ps_run *r)
+{
+    if (r->n_rows == 0)
+        return;
+    size_t shown = r->n_rows < PS_HTML_SECTIONS ? r->n_rows : PS_HTML_SECTIONS;
+    fprintf(f, "<section id=\"plants\">\n<h2>Plant details</h2>\n<p>");
+    if (shown < r->n_rows) {
+        fprintf(f, "<span class=\"cap\">Showing %zu of %zu plants</span>: the first of the ranking. ", shown,
+                r->n_rows);
+        ps_html_files_sentence(f, r);
+        fprintf(f, " ");
+    }
+    fprintf(f, "Each section gives the plant's note, source line, cause, its targets (one quantity changed at a "
+               "time, the value with which every floor passes), the requirements it was screened against and its "
+               "figures. Pole/zero maps: poles x, zeros o, the right half plane shaded, symmetric-log axes. Ms floor "
+               "against band edge: the floor forced by keeping |S| small up to the band edge, both axes log, the "
+               "allowed Ms dashed; drawn where the curve was computed.</p>\n");
+    for (size_t i = 0; i < shown; i++)
+        plant_section(f, r, i, ps_run_row(r, i));
+    fprintf(f, "</section>\n");
+}
+
+/* ---- input errors, meanings ---- */
+
+static void input_errors(FILE *f, const ps_run *r)
+{
+    size_t n = r->per_verdict[PS_VERDICT_UNREAD];
+    if (n == 0)
+        return;
+    fprintf(f, "<section id=\"errors\">\n<h2>Input errors</h2>\n");
+    if (n > PS_HTML_ERRORS) {
+        fprintf(f, "<p><span class=\"cap\">Showing %d of %zu input errors.</span> ", PS_HTML_ERRORS, n);
+        ps_html_files_sentence(f, r);
+        fprintf(f, "</p>\n");
+    }
+    fprintf(f, "<ul>\n");
+    size_t listed = 0;
+    for (size_t i = 0; i < r->n_rows && listed < PS_HTML_ERRORS; i++) {
+        if (ps_run_verdict(r, i) != PS_VERDICT_UNREAD)
+            continue;
+        const ps_summary *s = ps_run_row(r, i);
+        listed++;
+        fprintf(f, "<li><span class=\"tok\">");
+        h_text(f, s->id[0] ? s->id : "(no id)");
+        fprintf(f, "</span> (<code class=\"tok\">");
+        h_text(f, catalog_of(r, s));
+        fprintf(f, ":%zu:%zu</code>", s->err_line, s->err_col);
+        if (s->err_field[0]) {
+            fprintf(f, ", field <code class=\"tok\">");
             h_text(f, s->err_field);
             fprintf(f, "</code>");
         }
@@ -1216,7 +1251,9 @@ static void meanings(FILE *f)
 {
     fprintf(f, "<section id=\"verdicts\">\n<h2>What the verdicts mean</h2>\n<dl>\n");
     for (int v = 0; v < PS_VERDICT_COUNT; v++) {
-        fprintf(f, "<dt>%s</dt><dd>", ps_verdict_name((ps_verdict)v));
+        fprintf(f, "<dt>");
+        ps_html_verdict_label(f, (ps_verdict)v);
+        fprintf(f, "</dt><dd>");
         h_text(f, ps_verdict_meaning((ps_verdict)v));
         fprintf(f, "</dd>\n");
     }
@@ -1227,17 +1264,16 @@ ps_status ps_write_html(FILE *f, const ps_run *r)
 {
     fprintf(f, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
                "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
-               "<title>Screening report (plantsieve)</title>\n<style>\n%s</style>\n</head>\n<body>\n",
+               "<title>Screening report (plantsieve)</title>\n<style>\n%s",
             style_sheet);
-    header(f, r);
-    caution(f);
+    ps_html_page_style(f);
+    fprintf(f, "</style>\n</head>\n<body>\n");
+    ps_html_board(f, r);
     ranking(f, r);
     severity_figure(f, r);
-    changes(f, r);
-    digital_loops(f, r);
     families(f, r);
-    band_figures(f, r);
-    requirements(f, r);
+    plant_sections(f, r);
+    input_errors(f, r);
     meanings(f);
     fprintf(f, "</body>\n</html>\n");
     return ferror(f) ? PS_ERR_IO : PS_OK;

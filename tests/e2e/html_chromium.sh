@@ -3,10 +3,15 @@
 # Chromium renders it to PNG and PDF and dumps the DOM, whose plant rows must
 # match the CSV report one for one; with the JSON report beside the CSV, the
 # family section holds one boundary figure per evaluated boundary and one
-# yield bar per yield study.
-# Usage: html_chromium.sh PLANTSIEVE CATALOG   (runs plantsieve screen)
-#        html_chromium.sh --report HTML CSV    (checks an existing pair)
-# Exit 0 pass, 1 fail, 77 skipped (no Chromium, or no Debian python3).
+# yield bar per yield study. Screenshots at 1280 and 390 px wide are kept in
+# OUTDIR (default ./html_chromium.out; paths printed). At 390 px the page is
+# measured in the browser (narrow_view.py): no horizontal overflow of the page
+# or the ranking. Every in-page link resolves; the
+# printed PDF (pdftotext) holds every plant id of the ranking. With
+# PLANTSIEVE, a generated catalog larger than the ranking cap shows the cap.
+# Usage: html_chromium.sh PLANTSIEVE CATALOG [SOURCE_DIR]   (runs plantsieve screen)
+#        html_chromium.sh --report HTML CSV                  (checks an existing pair)
+# Exit 0 pass, 1 fail, 77 skipped (no Chromium, pdftotext or Debian python3).
 set -u
 
 browser=""
@@ -17,6 +22,10 @@ if [ -z "$browser" ]; then
     echo "SKIPPED: chromium not installed"
     exit 77
 fi
+if ! command -v pdftotext >/dev/null 2>&1; then
+    echo "SKIPPED: pdftotext (poppler-utils) not installed"
+    exit 77
+fi
 py=$(command -p -v python3 2>/dev/null || true)
 if [ -z "$py" ]; then
     echo "SKIPPED: Debian python3 not found on the default PATH"
@@ -25,6 +34,8 @@ fi
 
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT
+outdir=${OUTDIR:-$(pwd)/html_chromium.out}
+mkdir -p "$outdir" || exit 1
 fail=0
 ok() { echo "ok: $1"; }
 bad() { echo "FAIL: $1"; fail=1; }
@@ -34,9 +45,10 @@ if [ "${1:-}" = "--report" ]; then
     html=$2
     csv=$3
 else
-    [ $# -eq 2 ] || { echo "usage: $0 PLANTSIEVE CATALOG" >&2; exit 2; }
+    [ $# -eq 2 ] || [ $# -eq 3 ] || { echo "usage: $0 PLANTSIEVE CATALOG [SOURCE_DIR]" >&2; exit 2; }
     ps=$1
     catalog=$2
+    src=${3:-}
     stem=$(basename "$catalog")
     stem=${stem%.*}
     "$ps" screen -o "$tmp/out" --gate never "$catalog" >"$tmp/stdout" 2>"$tmp/stderr"
@@ -62,12 +74,12 @@ esac
 # nothing is read from or left in the user's home.
 sandbox=""
 [ "$(id -u)" -eq 0 ] && sandbox="--no-sandbox"
-render() { # render WHAT OUTPUT_FLAG... ; stdout to $tmp/chromium.out
+render() { # render WHAT OUTPUT_FLAG... ; stdout to $tmp/chromium.out; the page is $page (default $url)
     what=$1
     shift
     HOME=$tmp timeout 120 "$browser" --headless $sandbox --disable-gpu --disable-dev-shm-usage \
         --no-first-run --disable-extensions --disable-background-networking --hide-scrollbars \
-        --user-data-dir="$tmp/profile" "$@" "$url" >"$tmp/chromium.out" 2>"$tmp/chromium.err"
+        --user-data-dir="$tmp/profile" "$@" "${page:-$url}" >"$tmp/chromium.out" 2>"$tmp/chromium.err"
     rc=$?
     if [ $rc -eq 0 ]; then
         ok "$what"
@@ -78,17 +90,34 @@ render() { # render WHAT OUTPUT_FLAG... ; stdout to $tmp/chromium.out
     fi
 }
 
-render "screenshot" --window-size=1280,2400 --screenshot="$tmp/report.png"
-render "print to PDF" --no-pdf-header-footer --print-to-pdf="$tmp/report.pdf"
+render "screenshot 1280 px wide" --window-size=1280,2400 --screenshot="$outdir/report-1280.png"
+# Headless Chromium makes no window narrower than 500 px: the 390 px view is
+# set through the DevTools protocol (narrow_view.py), which also measures it.
+HOME=$tmp timeout 120 "$py" "$(dirname "$0")/narrow_view.py" "$browser" "$url" 390 2400 "$outdir/report-390.png" \
+    "$tmp/profile390" >"$tmp/measure390.txt" 2>"$tmp/narrow.err"
+if [ $? -eq 0 ]; then ok "view and screenshot 390 px wide"; else bad "view 390 px wide"; tail -5 "$tmp/narrow.err"; fi
+echo "screenshots: $outdir/report-1280.png $outdir/report-390.png"
+cp "$outdir/report-1280.png" "$tmp/report.png"
+render "print to PDF" --no-pdf-header-footer --print-to-pdf="$outdir/report.pdf"
+echo "PDF: $outdir/report.pdf"
+cp "$outdir/report.pdf" "$tmp/report.pdf"
+pdftotext -enc UTF-8 "$tmp/report.pdf" "$tmp/report.txt" || bad "pdftotext reads the PDF"
+# The ranking as printed, alone: the same page with every other part of the
+# body left out of print, so that the ids found come from the printed table.
+sed 's|</head>|<style>@media print{body>*:not(#ranking){display:none}}</style></head>|' "$html" >"$tmp/ranking-only.html"
+page="file://$tmp/ranking-only.html" render "print the ranking alone to PDF" --no-pdf-header-footer \
+    --print-to-pdf="$tmp/ranking.pdf"
+pdftotext -enc UTF-8 "$tmp/ranking.pdf" "$tmp/ranking.txt" || bad "pdftotext reads the ranking's PDF"
 render "dump DOM" --dump-dom
 cp "$tmp/chromium.out" "$tmp/dom.html"
 
+
 json=${csv%.csv}.json
-"$py" - "$tmp/report.png" "$tmp/report.pdf" "$tmp/dom.html" "$csv" "$json" <<'PY'
+"$py" - "$tmp/report.png" "$tmp/report.pdf" "$tmp/dom.html" "$csv" "$json" "$tmp/ranking.txt" "$tmp/measure390.txt" <<'PY'
 import csv, json, os, re, struct, sys
 from html.parser import HTMLParser
 
-png, pdf, dom, csv_path, json_path = sys.argv[1:6]
+png, pdf, dom, csv_path, json_path, pdf_text, measured = sys.argv[1:8]
 failed = False
 def check(cond, what):
     global failed
@@ -126,6 +155,7 @@ class Rows(HTMLParser):
         super().__init__()
         self.ids, self.svgs, self.caution, self.scripts = [], 0, False, 0
         self.families, self.bound_svgs, self.yield_svgs, self.figure = False, [], [], None
+        self.anchors, self.links = [], []
     def handle_starttag(self, tag, attrs):
         a = dict(attrs)
         classes = (a.get("class") or "").split()
@@ -139,6 +169,10 @@ class Rows(HTMLParser):
             self.yield_svgs.append(a.get("aria-label"))
         if tag == "tr" and "plant-row" in classes:
             self.ids.append(a.get("data-id"))
+        if a.get("id") is not None:
+            self.anchors.append(a["id"])
+        if tag == "a" and (a.get("href") or "").startswith("#"):
+            self.links.append(a["href"][1:])
         if tag == "svg":
             self.svgs += 1
         if tag == "script":
@@ -152,8 +186,34 @@ with open(csv_path, newline="", encoding="utf-8") as f:
 header, body = rows[0], rows[1:]
 ids = [r[header.index("id")] for r in body]
 check(len(body) > 0, "CSV has plants (%d)" % len(body))
-check(len(parser.ids) == len(body), "DOM plant rows %d == CSV plants %d" % (len(parser.ids), len(body)))
-check(parser.ids == ids, "DOM plant rows in CSV rank order")
+# The ranking cap (PS_HTML_RANK_ROWS in src/report/html_page.h): the first
+# 500 plants of the CSV, and a sentence saying so when the run is larger.
+CAP = 500
+want = ids[:CAP]
+check(len(parser.ids) == len(want), "DOM plant rows %d == CSV plants %d (cap %d)" % (len(parser.ids), len(body), CAP))
+check(parser.ids == want, "DOM plant rows in CSV rank order")
+text = open(dom, encoding="utf-8").read()
+if len(body) > CAP:
+    check("Showing %d of %d plants." % (CAP, len(body)) in text, "the page says it shows %d of %d plants" % (CAP, len(body)))
+# In-page links: every href="#x" names an element id; ids are unique.
+dup = sorted(set(x for x in parser.anchors if parser.anchors.count(x) > 1)) if len(parser.anchors) < 5000 else []
+check(not dup, "element ids unique (%d ids)%s" % (len(parser.anchors), " repeated: %s" % dup[:5] if dup else ""))
+known = set(parser.anchors)
+missing = [l for l in parser.links if l not in known]
+check(parser.links and not missing, "%d in-page links resolve%s" % (len(parser.links), " (missing: %s)" % missing[:5] if missing else ""))
+# At 390 px: the page does not scroll sideways and the ranking ends inside the viewport.
+m = re.fullmatch(r"(viewport=\d+ scroll=\d+ body=\d+ table=-?\d+ cells=\d+)\n?", open(measured, encoding="utf-8").read())
+check(m is not None, "measurement at 390 px made by the browser")
+if m:
+    v = {k: int(x) for k, x in (p.split("=") for p in m.group(1).split())}
+    print("measured at 390 px: %s" % m.group(1))
+    check(v["viewport"] == 390, "viewport 390 px wide (%d)" % v["viewport"])
+    check(v["scroll"] <= v["viewport"] and v["body"] <= v["viewport"], "no horizontal scroll at 390 px (page %d, body %d)" % (v["scroll"], v["body"]))
+    check(0 < v["table"] <= v["viewport"] and v["cells"] <= v["viewport"], "ranking inside 390 px (table right edge %d, cells %d)" % (v["table"], v["cells"]))
+# The printed ranking: every plant id of its rows is in the PDF's text, whole.
+printed = open(pdf_text, encoding="utf-8", errors="replace").read()
+lost = [i for i in want if i not in printed]
+check(not lost, "printed ranking (PDF text) holds all %d ranking ids%s" % (len(want), " (missing: %s)" % lost[:5] if lost else ""))
 check(parser.caution, "caution section present")
 check(parser.svgs >= 1, "figures present (%d svg)" % parser.svgs)
 check(parser.scripts == 0, "no script")
@@ -170,6 +230,22 @@ if os.path.exists(json_path):
 sys.exit(1 if failed else 0)
 PY
 [ $? -eq 0 ] || fail=1
+
+# A run larger than the ranking cap: 620 generated plants (tests/bench/gen_catalog.py),
+# the same checks on its report (screenshots in OUTDIR/large).
+if [ -n "${ps:-}" ] && [ -n "${src:-}" ]; then
+    if "$py" "$src/tests/bench/gen_catalog.py" 620 "$tmp/large.yaml" --seed 2385 >/dev/null &&
+        "$ps" screen -o "$tmp/large" --gate never --quiet --detail none "$tmp/large.yaml" >/dev/null 2>&1; then
+        ok "plantsieve screen of 620 generated plants"
+        echo "--- 620 plants (more than the ranking cap) ---"
+        OUTDIR="$outdir/large" sh "$0" --report "$tmp/large/large.screen/large.screen.html" "$tmp/large/large.screen/large.screen.csv"
+        [ $? -eq 0 ] || bad "checks of the 620-plant report"
+        hb=$(wc -c <"$tmp/large/large.screen/large.screen.html")
+        echo "HTML of 620 plants: $hb bytes"
+    else
+        bad "plantsieve screen of 620 generated plants"
+    fi
+fi
 [ $fail -eq 0 ] || exit 1
 echo "PASS: html_chromium"
 exit 0

@@ -180,6 +180,7 @@ for t in 2 5; do
         check "screen: $ext same on $t threads as on 1" 0 $?
     done
 done
+contains "screen: the HTML first page names the command line" "$tmp/thr2/demo-variants.screen/demo-variants.screen.html" "command line: <code class=\"cmd\">plantsieve screen --threads 2 -o $tmp/thr2 --gate never $src/catalogs/demo-variants.yaml</code>"
 "$ps" screen --threads 0 --no-files "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen: --threads 0 is a usage error" 2 $?
 # --detail: verdicts and ranking unchanged; targets only where asked.
 "$ps" screen --detail none -o "$tmp/dnone" --gate never "$src/catalogs/demo-variants.yaml" >/dev/null 2>&1

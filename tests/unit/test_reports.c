@@ -490,7 +490,7 @@ Test(reports, html_escapes_and_has_one_plant_row_per_plant)
     cr_assert(strncmp(doc, "<!DOCTYPE html>", 15) == 0);
     cr_assert_eq(count_of(doc, "<tr class=\"plant-row\""), N_PLANTS);
     cr_assert_eq(count_of(doc, "class=\"plant-row\""), N_PLANTS);
-    cr_assert_not_null(strstr(doc, "<tr class=\"plant-row\" data-id=\"strider-&amp;&lt;b&gt;&#39;x&quot;\""));
+    cr_assert_not_null(strstr(doc, "<tr class=\"plant-row\" id=\"r1\" data-id=\"strider-&amp;&lt;b&gt;&#39;x&quot;\""));
     cr_assert_null(strstr(doc, "&<b>"));
     cr_assert_null(strstr(doc, "<b>'x"));
     cr_assert_not_null(strstr(doc, "cancelled by the &quot;zero&quot; at 4.27"));
@@ -505,13 +505,14 @@ Test(reports, html_escapes_and_has_one_plant_row_per_plant)
     cr_assert_null(strstr(doc, "src="));
     cr_assert_null(strstr(doc, "https:"));
     cr_assert_eq(count_of(doc, "http:"), count_of(doc, "xmlns=\"http://www.w3.org/2000/svg\""));
-    /* Figures: severity bars, a map for each of the two flagged plants, a band
-     * figure for each of the two plants with a curve, a log-area budget for
-     * the one of those that is marginal or redesign. */
-    cr_assert_eq(count_of(doc, "<svg "), 1 + 2 + 2 + 1);
-    cr_assert_eq(count_of(doc, "</svg>"), 1 + 2 + 2 + 1);
+    /* Figures: severity bars, a map in the section of each of the four
+     * screened plants, a band figure for each of the two plants with a curve,
+     * a log-area budget for the one of those that is marginal or redesign. */
+    cr_assert_eq(count_of(doc, "<svg "), 1 + 4 + 2 + 1);
+    cr_assert_eq(count_of(doc, "</svg>"), 1 + 4 + 2 + 1);
     cr_assert_eq(count_of(doc, "<figure class=\"budget\""), 1);
-    cr_assert_eq(count_of(doc, "<article class=\"flagged\""), 2);
+    cr_assert_eq(count_of(doc, "<article class=\"plant flagged\""), 2);
+    cr_assert_eq(count_of(doc, "<article class=\"plant"), N_PLANTS);
     cr_assert_not_null(strstr(doc, "not stabilizable (off-scale)"));
     cr_assert_not_null(strstr(doc, "input error, no bar: bad-row"));
     cr_assert_not_null(strstr(doc, "Symmetric-log axes"));
@@ -543,7 +544,7 @@ Test(reports, html_figures_are_well_formed_svg)
         "import re, sys, xml.etree.ElementTree as ET\n"
         "doc = open(sys.argv[1], encoding='utf-8').read()\n"
         "svgs = re.findall(r'<svg .*?</svg>', doc, re.S)\n"
-        "assert len(svgs) == 6, len(svgs)\n"
+        "assert len(svgs) == 8, len(svgs)\n"
         "for s in svgs:\n"
         "    s = s.replace('&plusmn;', '+-').replace('&le;', '<=')\n"
         "    root = ET.fromstring(s)\n"
