@@ -377,8 +377,8 @@ static void severity_figure(FILE *f, const ps_run *r)
                "no bar.",
             r->opt.marginal_at, top);
     if (r->n_rows > n_bars + n_errors)
-        fprintf(f, " Only the %d worst plants are drawn; all %zu are in the ranking table.", PS_HTML_FIGURES,
-                r->n_rows);
+        fprintf(f, " Only the %d worst plants are drawn; all %zu are in the CSV report and the JSON Lines records.",
+                PS_HTML_FIGURES, r->n_rows);
     fprintf(f, "</figcaption>\n");
     fprintf(f, "</section>\n");
 }
@@ -439,11 +439,10 @@ static void pz_map(FILE *f, const ps_summary *s)
     snprintf(buf, sizeof buf, "linear within \xc2\xb1%g rad/s, log beyond", pz_linear);
     ps_plot_text_px(&p, 350, 390, "end", "small pz-linear", 0, buf);
     ps_plot_close(&p);
+    /* What every map shares is said once, above the plant sections. */
     fprintf(f, "<figcaption>Poles (x) and zeros (o) of ");
     h_text(f, s->id);
-    fprintf(f, "; the right half plane is shaded. Symmetric-log axes, the same on Re and Im and on every map of this "
-               "report: linear within &plusmn;%g rad/s, logarithmic beyond (u = sign(x) log10(1 + |x| / %g rad/s)).",
-            pz_linear, pz_linear);
+    fprintf(f, ".");
     if (s->n_poles > PS_MAP_MAX || s->n_zeros > PS_MAP_MAX)
         fprintf(f, " Only the first %d of %zu poles and %zu zeros are drawn.", PS_MAP_MAX, s->n_poles, s->n_zeros);
     if (small < 0.05 * pz_linear)
@@ -967,13 +966,13 @@ static void band_figure(FILE *f, const ps_summary *s)
     ps_plot_close(&p);
     char text[400];
     ps_target_text(s, PS_TARGET_BAND, text, sizeof text);
-    fprintf(f, "<figcaption>Ms floor forced by |S| &le; %.3g up to the band edge w_b, against w_b (both axes log). "
-               "Dashed: the allowed Ms.",
-            s->band_eps);
+    fprintf(f, "<figcaption>Ms floor of ");
+    h_text(f, s->id);
+    fprintf(f, " with |S| &le; %.3g up to the band edge.", s->band_eps);
     if (required)
         fprintf(f, " Dotted: the required band edge.");
     if (widest)
-        fprintf(f, " Solid with a triangle: the widest band edge with which every floor passes.");
+        fprintf(f, " Triangle: the widest band edge that passes.");
     if (clipped)
         fprintf(f, " Values above %.3g are drawn on the top edge.", ytop);
     if (text[0]) {
@@ -1068,15 +1067,9 @@ static void budget_figure(FILE *f, const ps_summary *s)
     ps_plot_close(&p);
     fprintf(f, "<figcaption>Log-area budget of ");
     h_text(f, s->id);
-    fprintf(f, ": log-area is ln|S| (nepers) integrated over frequency (rad/s). For a stable loop of relative degree "
-               "2 or more, ln|S| integrates to %s over all frequencies%s (Bode's sensitivity integral). The band "
-               "requirement takes w_b ln(1/&epsilon;) more; the roll-off bound |L| &le; &delta; (w_h/w)<sup>1+k</sup> "
-               "can give back at most I = w_h &Sigma; &delta;<sup>n</sup> / (n (n (1+k) - 1))%s; the rest must fit "
-               "under the peak between w_b and w_h: (w_h - w_b) ln Ms &ge; F + w_b ln(1/&epsilon;) - I, the band "
-               "floor's own numbers.",
-            sampled ? "(&pi;/h) &Sigma; ln|p_d| of the poles outside the unit circle" : "&pi; &Sigma; Re p of the "
-                                                                                        "unstable poles",
-            sampled ? " up to &pi;/h" : "", sampled ? ", each term cut at &pi;/h" : "");
+    fprintf(f, ": F = %s%s.", sampled ? "(&pi;/h) &Sigma; ln|p_d| of the poles outside the unit circle"
+                                     : "&pi; &Sigma; Re p of the unstable poles",
+            sampled ? " on [0, &pi;/h], the roll-off tail cut at &pi;/h" : "");
     if (!band)
         fprintf(f, " No band requirement: w_b = 0, nothing taken.");
     if (!tail && nyq)
@@ -1084,8 +1077,7 @@ static void budget_figure(FILE *f, const ps_summary *s)
     else if (!tail)
         fprintf(f, " No roll-off start: the rest may spread over every frequency past w_b, so the area sets no floor.");
     if (room)
-        fprintf(f, " Last bar (dashed): the room the allowed Ms leaves on that interval, (width) ln Ms allowed; the "
-                   "requirement passes this floor when the rest fits in it.");
+        fprintf(f, " Last bar (dashed): the room the allowed Ms leaves.");
     fprintf(f, "</figcaption>\n</figure>\n");
 }
 
@@ -1202,9 +1194,28 @@ static void plant_sections(FILE *f, const ps_run *r)
     }
     fprintf(f, "Each section gives the plant's note, source line, cause, its targets (one quantity changed at a "
                "time, the value with which every floor passes), the requirements it was screened against and its "
-               "figures. Pole/zero maps: poles x, zeros o, the right half plane shaded, symmetric-log axes. Ms floor "
-               "against band edge: the floor forced by keeping |S| small up to the band edge, both axes log, the "
-               "allowed Ms dashed; drawn where the curve was computed.</p>\n");
+               "figures.</p>\n<p><strong>Pole/zero maps</strong> (plants given in s): poles x, zeros o, the right half "
+               "plane shaded. Symmetric-log axes, the same on Re and Im and on every map of this report: linear "
+               "within &plusmn;%g rad/s, logarithmic beyond (u = sign(x) log10(1 + |x| / %g rad/s)). A delay is "
+               "not a root and is not drawn.</p>\n",
+            pz_linear, pz_linear);
+    fprintf(f, "<p><strong>Ms floor against band edge</strong> (where the curve was computed): the Ms floor forced "
+               "by keeping |S| below the attenuation up to the band edge w_b, against w_b, both axes log; dashed the "
+               "allowed Ms, dotted the required band edge, a triangle on the widest band edge with which every floor "
+               "passes.</p>\n");
+    bool sampled = false; /* say how a sampled loop differs only when one is shown */
+    for (size_t i = 0; i < shown && !sampled; i++)
+        sampled = ps_run_row(r, i)->h > 0;
+    fprintf(f, "<p><strong>Log-area budget</strong> (marginal and redesign plants with that curve): log-area is "
+               "ln|S| (nepers) integrated over frequency (rad/s). For a stable loop of relative degree 2 or more, "
+               "ln|S| integrates to F = &pi; &Sigma; Re p of the unstable poles over all frequencies (Bode's "
+               "sensitivity integral%s). The band requirement "
+               "takes w_b ln(1/&epsilon;) more; the roll-off bound |L| &le; &delta; (w_h/w)<sup>1+k</sup> can give "
+               "back at most I = w_h &Sigma; &delta;<sup>n</sup> / (n (n (1+k) - 1))%s; the rest must fit under the peak between w_b and w_h: (w_h - w_b) ln Ms &ge; F + w_b "
+               "ln(1/&epsilon;) - I, the band floor's own numbers. A dashed last bar is the room the allowed Ms "
+               "leaves there: the band floor passes when the rest fits in it.</p>\n",
+            sampled ? "; a sampled loop: (&pi;/h) &Sigma; ln|p_d| on [0, &pi;/h]" : "",
+            sampled ? " (each term cut at &pi;/h in a sampled loop)" : "");
     for (size_t i = 0; i < shown; i++)
         plant_section(f, r, i, ps_run_row(r, i));
     fprintf(f, "</section>\n");
