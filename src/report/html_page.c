@@ -351,7 +351,11 @@ void ps_html_board(FILE *f, const ps_run *r)
     inputs_table(f, r);
     counts_table(f, r);
     flagged_list(f, r);
-    fprintf(f, "<section class=\"caution\" id=\"caution\">\n<h2>Caution</h2>\n<p>");
-    ps_html_text(f, ps_caution_text);
+    /* The caution's text begins with its own "Caution:", set in bold here
+     * rather than repeated by a heading. */
+    static const char lead[] = "Caution: ";
+    bool led = strncmp(ps_caution_text, lead, sizeof lead - 1) == 0;
+    fprintf(f, "<section class=\"caution\" id=\"caution\">\n<p><strong>Caution:</strong> ");
+    ps_html_text(f, led ? ps_caution_text + sizeof lead - 1 : ps_caution_text);
     fprintf(f, "</p>\n</section>\n</header>\n");
 }

@@ -315,7 +315,13 @@ Test(html_page, first_page_holds_the_run_facts)
     cr_assert_not_null(strstr(doc, ">23859</td>"));
     cr_assert_not_null(strstr(doc, PS_VERSION));
     cr_assert_not_null(strstr(doc, "<code class=\"cmd\">plantsieve screen -o &#39;out dir&#39; data/big\\ run.yaml</code>"));
-    cr_assert_not_null(strstr(doc, ps_caution_text));
+    /* The caution once, its own "Caution:" in bold, no heading repeating the word. */
+    cr_assert_not_null(strstr(doc, "<strong>Caution:</strong> ") );
+    cr_assert_not_null(strstr(doc, ps_caution_text + strlen("Caution: ")));
+    size_t n_caution = 0;
+    for (const char *c = strstr(doc, "Caution"); c; c = strstr(c + 1, "Caution"))
+        n_caution++;
+    cr_assert_eq(n_caution, 1, "the word Caution %zu times", n_caution);
     /* Counts per verdict: word, mark and a bar whose width is the share. */
     for (int v = 0; v < PS_VERDICT_COUNT; v++) {
         char label[200];

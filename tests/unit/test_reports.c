@@ -496,7 +496,8 @@ Test(reports, html_escapes_and_has_one_plant_row_per_plant)
     cr_assert_not_null(strstr(doc, "cancelled by the &quot;zero&quot; at 4.27"));
     cr_assert_not_null(strstr(doc, "expected a number, got &quot;7,3.x&quot;"));
     cr_assert(strpbrk(ps_caution_text, "&<>\"'") == NULL, "caution needs escaping in this test");
-    cr_assert_not_null(strstr(doc, ps_caution_text));
+    cr_assert_not_null(strstr(doc, ps_caution_text + strlen("Caution: ")));
+    cr_assert_not_null(strstr(doc, "<strong>Caution:</strong>"));
     for (int v = 0; v < PS_VERDICT_COUNT; v++)
         cr_assert_not_null(strstr(doc, ps_verdict_meaning((ps_verdict)v)), "%d", v);
     /* Self-contained: no script, no external resources. */
