@@ -55,8 +55,8 @@ say() { printf '%s\n' "$*" | tee -a "$LOG"; }
 
 # Threads: only when this binary's help mentions the option.
 SCREEN_OPTS=(--no-files --gate never)
-THREADS_NOTE="single-threaded (no --threads in plantsieve --help)"
-if "$PS" --help 2>&1 | grep -q -- '--threads'; then
+THREADS_NOTE="single-threaded (no --threads in plantsieve screen --help)"
+if "$PS" screen --help 2>&1 | grep -q -- '--threads'; then
     SCREEN_OPTS+=(--threads "$(nproc)")
     THREADS_NOTE="screen --threads $(nproc)"
 fi
@@ -150,8 +150,8 @@ say "python:  $PY $("$PY" -c 'import numpy, scipy, yaml; print("numpy", numpy.__
 say "catalogs: gen_catalog.py seed $SEED (cache $BENCH_DIR); repetitions: $REPS (N >= $LARGE_AT: $REPS_LARGE), median wall time, peak RSS = max over runs"
 say ""
 
-DETAIL=0; "$PS" --help 2>&1 | grep -q -- '--detail' && DETAIL=1
-SHOW=0; "$PS" --help 2>&1 | grep -q -- '--show' && SHOW=1
+DETAIL=0; "$PS" screen --help 2>&1 | grep -q -- '--detail' && DETAIL=1
+SHOW=0; "$PS" screen --help 2>&1 | grep -q -- '--show' && SHOW=1
 declare -A SN_S SN_RSS SA_S SA_RSS
 declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN F_S F_RSS F_CPU F_B F_LINES
 for n in "${SIZES[@]}"; do
