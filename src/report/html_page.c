@@ -5,6 +5,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "report/plot.h"
 #include "report/reports.h"
 
 /* ---- verdict colours ----
@@ -38,22 +39,7 @@ ps_html_colour ps_html_verdict_colour(ps_verdict v)
 
 void ps_html_text(FILE *f, const char *s)
 {
-    if (!s)
-        return;
-    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
-        switch (*c) {
-        case '&': fputs("&amp;", f); break;
-        case '<': fputs("&lt;", f); break;
-        case '>': fputs("&gt;", f); break;
-        case '"': fputs("&quot;", f); break;
-        case '\'': fputs("&#39;", f); break;
-        default:
-            if ((*c < 0x20 && *c != '\n' && *c != '\t') || *c == 0x7f)
-                fputc(' ', f);
-            else
-                fputc(*c, f);
-        }
-    }
+    ps_plot_escape(f, s); /* one escaper for page and figures */
 }
 
 void ps_html_plant_anchor(char *out, size_t n, size_t rank, const char *id)

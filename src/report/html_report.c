@@ -21,22 +21,7 @@ enum { PS_HTML_FIGURES = 300 };
 
 static void h_text(FILE *f, const char *s)
 {
-    if (!s)
-        return;
-    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
-        switch (*c) {
-        case '&': fputs("&amp;", f); break;
-        case '<': fputs("&lt;", f); break;
-        case '>': fputs("&gt;", f); break;
-        case '"': fputs("&quot;", f); break;
-        case '\'': fputs("&#39;", f); break;
-        default:
-            if ((*c < 0x20 && *c != '\n' && *c != '\t') || *c == 0x7f)
-                fputc(' ', f);
-            else
-                fputc(*c, f);
-        }
-    }
+    ps_html_text(f, s);
 }
 
 /* A value for a table cell: "%.4g", or a word when it has no finite value. */
