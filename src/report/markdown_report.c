@@ -230,7 +230,8 @@ static void distribution(FILE *f, const ps_run *r)
         md_bar(f, count[b], max);
         fprintf(f, " |\n");
     }
-    fprintf(f, "\nA bin holds the severities above its lower end up to and including its upper end.\n\n");
+    fprintf(f, "\nA bin holds the severities above its lower end up to and including its upper end; the first bin "
+               "also holds 0.\n\n");
 }
 
 /* The sentence naming the files that hold every plant. */
