@@ -16,6 +16,13 @@
 
 void ps_test_init(void) { gsl_set_error_handler_off(); }
 
+char *ps_test_temp_name(char *buf, size_t n, const char *stem)
+{
+    const char *dir = getenv("TMPDIR");
+    snprintf(buf, n, "%s/%sXXXXXX", dir && dir[0] ? dir : "/tmp", stem);
+    return buf;
+}
+
 const char *ps_test_write_temp(const char *suffix, const char *text)
 {
     static char path[256];

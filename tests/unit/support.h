@@ -10,6 +10,9 @@ void ps_test_init(void);
 /* Write text to a fresh temporary file whose name ends in suffix; returns a
  * static path (valid until the next call). */
 const char *ps_test_write_temp(const char *suffix, const char *text);
+/* A template "$TMPDIR/<stem>XXXXXX" (TMPDIR, else /tmp) in buf, for
+ * mkstemp or mkdtemp; returns buf. */
+char *ps_test_temp_name(char *buf, size_t n, const char *stem);
 
 /* A CSV file read back by Debian's python3 csv module (strict mode): every
  * cell byte for byte (the script prints each field as hex). Fails the test

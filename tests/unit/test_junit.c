@@ -29,7 +29,8 @@ static void screen_and_check(const char *stem, const char *catalogs)
 {
     if (!PS_ORACLE_PYTHON[0])
         cr_skip_test("no Debian python3");
-    char dir[] = "/tmp/ps_junit_XXXXXX";
+    char dir[256];
+    ps_test_temp_name(dir, sizeof dir, "ps_junit_");
     cr_assert_not_null(mkdtemp(dir));
     char cmd[2048], xml[512], json[512];
     snprintf(cmd, sizeof cmd, "cd %s && %s screen --gate never --quiet --memory-rows 4 -o %s %s >/dev/null 2>&1",
@@ -99,7 +100,8 @@ Test(junit, hostile_strings_escaped)
     ps_run_commit(&r);
     ps_run_rank(&r);
 
-    char path[] = "/tmp/ps_junit_XXXXXX";
+    char path[256];
+    ps_test_temp_name(path, sizeof path, "ps_junit_");
     int fd = mkstemp(path);
     cr_assert_geq(fd, 0);
     FILE *f = fdopen(fd, "w");

@@ -231,7 +231,8 @@ static void check_run(const char *catalog, bool want_band)
 {
     if (!PS_ORACLE_PYTHON[0])
         cr_skip_test("no Debian python3");
-    char dir[] = "/tmp/ps_plot_XXXXXX";
+    char dir[256];
+    ps_test_temp_name(dir, sizeof dir, "ps_plot_");
     cr_assert_not_null(mkdtemp(dir));
     char cmd[2048], spath[256];
     snprintf(cmd, sizeof cmd, "'%s' screen -o '%s' --gate never '%s' >/dev/null 2>&1", PS_CLI_PATH, dir, catalog);
@@ -263,7 +264,8 @@ Test(plot, demo_figures_are_well_formed_with_one_linear_region_and_units)
 
 Test(plot, budget_adds_up_to_the_band_floor)
 {
-    char dir[] = "/tmp/ps_budget_XXXXXX", path[64];
+    char dir[256], path[320];
+    ps_test_temp_name(dir, sizeof dir, "ps_budget_");
     cr_assert_not_null(mkdtemp(dir));
     snprintf(path, sizeof path, "%s/budget.yaml", dir);
     FILE *f = fopen(path, "w");

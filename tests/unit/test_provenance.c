@@ -72,7 +72,8 @@ Test(provenance, catalog_title_read_from_yaml)
                                         &d, title, sizeof title), PS_OK, "%s", d.text);
     cr_expect_str_empty(title, "a CSV catalog has no title");
 
-    char dir[] = "/tmp/ps_title_XXXXXX", path[64];
+    char dir[256], path[320];
+    ps_test_temp_name(dir, sizeof dir, "ps_title_");
     cr_assert_not_null(mkdtemp(dir));
     snprintf(path, sizeof path, "%s/t.yaml", dir);
     FILE *f = fopen(path, "w");

@@ -59,7 +59,8 @@ Test(sha256, agrees_with_python_hashlib)
 {
     if (!PS_ORACLE_PYTHON[0])
         cr_skip_test("no Debian python3");
-    char path[] = "/tmp/ps_sha_XXXXXX";
+    char path[256];
+    ps_test_temp_name(path, sizeof path, "ps_sha_");
     int fd = mkstemp(path);
     cr_assert_geq(fd, 0);
     FILE *f = fdopen(fd, "w");
