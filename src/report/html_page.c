@@ -6,6 +6,7 @@
 #include <string.h>
 
 #include "report/plot.h"
+#include "core/diag.h"
 #include "report/reports.h"
 
 /* ---- verdict colours ----
@@ -189,7 +190,9 @@ static void inputs_table(FILE *f, const ps_run *r)
             fprintf(f, "not taken</td><td class=\"num\" data-label=\"Bytes\">n/a</td>");
         fprintf(f, "<td data-label=\"Read\">");
         if (c->failed) {
-            fprintf(f, "<strong>not read to the end</strong> (line %zu, column %zu: ", c->line, c->col);
+            char pos[PS_DIAG_POS];
+            ps_diag_pos_words(pos, sizeof pos, c->line, c->col);
+            fprintf(f, "<strong>not read to the end</strong> (%s%s", pos, pos[0] ? ": " : "");
             ps_html_text(f, c->error);
             char unread[256];
             ps_unread_text(c->line, unread, sizeof unread);

@@ -2,6 +2,7 @@
  * style, no script, no external assets, figures as inline SVG; prints in black on white. */
 #include "report/reports.h"
 #include "report/html_page.h"
+#include "core/diag.h"
 #include "core/text.h"
 #include "report/plot.h"
 
@@ -1076,6 +1077,21 @@ static bool unstable_controller_required(const ps_summary *s)
     return s->verdict != PS_VERDICT_UNREAD && !s->fl.infinite && !s->in_z && !s->fl.parity_interlacing;
 }
 
+/* Where an input error is: FILE:LINE:COL as far as it is known (no made-up
+ * ":0"), and the field. */
+static void error_where(FILE *f, const ps_run *r, const ps_summary *s)
+{
+    char pos[PS_DIAG_POS];
+    fprintf(f, "<code class=\"tok\">");
+    h_text(f, catalog_of(r, s));
+    fprintf(f, "%s</code>", ps_diag_pos(pos, sizeof pos, s->err_line, s->err_col));
+    if (s->err_field[0]) {
+        fprintf(f, ", field <code class=\"tok\">");
+        h_text(f, s->err_field);
+        fprintf(f, "</code>");
+    }
+}
+
 static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *s)
 {
     char anchor[16 + 3 * PS_ID_MAX], row[32], text[1200];
@@ -1099,14 +1115,8 @@ static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *
     h_text(f, catalog_of(r, s));
     fprintf(f, ":%zu</code></p>\n", s->line);
     if (s->verdict == PS_VERDICT_UNREAD) {
-        fprintf(f, "<p>Input error at <code class=\"tok\">");
-        h_text(f, catalog_of(r, s));
-        fprintf(f, ":%zu:%zu</code>", s->err_line, s->err_col);
-        if (s->err_field[0]) {
-            fprintf(f, ", field <code class=\"tok\">");
-            h_text(f, s->err_field);
-            fprintf(f, "</code>");
-        }
+        fprintf(f, "<p>Input error at ");
+        error_where(f, r, s);
         fprintf(f, ": ");
         h_text(f, s->err_text);
         fprintf(f, ".</p>\n</article>\n");
@@ -1228,14 +1238,8 @@ static void input_errors(FILE *f, const ps_run *r)
         listed++;
         fprintf(f, "<li><span class=\"tok\">");
         h_text(f, s->id[0] ? s->id : "(no id)");
-        fprintf(f, "</span> (<code class=\"tok\">");
-        h_text(f, catalog_of(r, s));
-        fprintf(f, ":%zu:%zu</code>", s->err_line, s->err_col);
-        if (s->err_field[0]) {
-            fprintf(f, ", field <code class=\"tok\">");
-            h_text(f, s->err_field);
-            fprintf(f, "</code>");
-        }
+        fprintf(f, "</span> (");
+        error_where(f, r, s);
         fprintf(f, "): ");
         h_text(f, s->err_text);
         fprintf(f, "</li>\n");

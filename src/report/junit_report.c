@@ -1,6 +1,7 @@
 /* junit_report.c - the screening run as JUnit XML for CI servers: one
  * <testsuite> for the run, one <testcase> per plant (and per catalog not read
  * to the end), failing verdicts as <failure>, plants not judged as <error>. */
+#include "core/diag.h"
 #include "report/reports.h"
 
 #include <math.h>
@@ -217,8 +218,9 @@ ps_status ps_write_junit(FILE *f, const ps_run *r)
             continue;
         char unread[256], msg[PS_DIAG_TEXT + 320];
         ps_unread_text(c->line, unread, sizeof unread);
-        snprintf(msg, sizeof msg, "%s:%zu:%zu: %s; %s", c->file, c->line, c->col, c->error ? c->error : "",
-                 unread);
+        char pos[PS_DIAG_POS];
+        snprintf(msg, sizeof msg, "%s%s: %s; %s", c->file, ps_diag_pos(pos, sizeof pos, c->line, c->col),
+                 c->error ? c->error : "", unread);
         fputs("    <testcase name=\"(catalog not read to the end)\"", f);
         xml_attr(f, "classname", c->file);
         fputs(">\n      <error type=\"catalog-unread\"", f);

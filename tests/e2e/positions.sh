@@ -25,7 +25,7 @@ for c in survey read "screen --no-files" "explain some-id"; do
 done
 "$ps" screen -o "$tmp/m" --gate never "$miss" "$cf" >"$tmp/out" 2>"$tmp/err"; check "screen, a missing and a good catalog" 4 $?
 set_dir="$tmp/m/missing.screen"
-for ext in txt md; do
+for ext in txt md html junit.xml; do
     [ -s "$set_dir/missing.screen.$ext" ]; check "report $ext written" 0 $?
     lacks "$ext report: no line 0" "$set_dir/missing.screen.$ext" "line 0|:0:0|missing.yaml:0"
 done
@@ -41,7 +41,9 @@ contains "survey text: FILE:LINE" "$tmp/out" "blind-rig  REJECTED  $ztf:5"
 contains "screen stderr: FILE:LINE:" "$tmp/err" "plantsieve: $ztf:5: plant 'blind-rig': "
 contains "txt report: FILE:LINE:" "$tmp/z/zero-tf.screen/zero-tf.screen.txt" "$ztf:5: blind-rig: "
 contains "md report: FILE:LINE" "$tmp/z/zero-tf.screen/zero-tf.screen.md" "blind-rig ($ztf:5, field c)"
-for f in "$tmp/err" "$tmp/out" "$tmp/z/zero-tf.screen/zero-tf.screen.txt" "$tmp/z/zero-tf.screen/zero-tf.screen.md"; do
+contains "html report: FILE:LINE" "$tmp/z/zero-tf.screen/zero-tf.screen.html" "$ztf:5</code>, field"
+for f in "$tmp/err" "$tmp/out" "$tmp/z/zero-tf.screen/zero-tf.screen.txt" "$tmp/z/zero-tf.screen/zero-tf.screen.md" \
+         "$tmp/z/zero-tf.screen/zero-tf.screen.html"; do
     lacks "no column 0 in $(basename "$f")" "$f" "zero-tf.yaml:5:0"
 done
 "$ps" explain blind-rig "$ztf" >"$tmp/out" 2>"$tmp/err"; check "explain of the rejected plant" 3 $?
