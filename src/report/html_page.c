@@ -43,6 +43,24 @@ void ps_html_text(FILE *f, const char *s)
     ps_plot_escape(f, s); /* one escaper for page and figures */
 }
 
+void ps_html_path(FILE *f, const char *path)
+{
+    char part[256];
+    const char *p = path ? path : "";
+    while (*p) {
+        size_t n = strcspn(p, "/");
+        size_t take = n < sizeof part - 1 ? n : sizeof part - 1;
+        if (p[take] == '/')
+            take++;
+        memcpy(part, p, take);
+        part[take] = '\0';
+        ps_html_text(f, part);
+        p += take;
+        if (take && part[take - 1] == '/' && *p)
+            fputs("<wbr>", f);
+    }
+}
+
 void ps_html_plant_anchor(char *out, size_t n, size_t rank, const char *id)
 {
     static const char hex[] = "0123456789ABCDEF";
@@ -95,6 +113,7 @@ static const char page_style[] =
     "a{color:#003a70}a:visited{color:#4b1d6b}\n"
     "caption{text-align:left;font-weight:bold;padding:.2em 0}\n"
     ".tok{white-space:nowrap;word-break:normal;overflow-wrap:normal}\n"
+    ".path{white-space:normal;word-break:normal;overflow-wrap:normal}\n"
     "td.id,th.id,td.src{word-break:normal;overflow-wrap:normal;min-width:0}\n"
     "th[scope=row]{font-weight:normal;border-bottom:1px solid #777}\n"
     ".verdict-label{display:inline-block;padding:0 .35em;border:1px solid #000;border-radius:.2em;"
@@ -114,6 +133,8 @@ static const char page_style[] =
     "body{max-width:92em}\n"
     /* Narrow screens: every ranking row becomes a block of labelled lines. */
     "@media (max-width:700px){body{padding:0 .5em;margin:.5em auto}"
+    /* an id wider than the screen folds rather than widening the page */
+    ".tok{white-space:normal;overflow-wrap:anywhere}"
     "table.stack,table.stack>tbody,table.stack>tbody>tr,table.stack td,table.stack th[scope=row]{display:block;"
     "width:auto}"
     "table.stack>caption{display:block}"
@@ -177,8 +198,8 @@ static void inputs_table(FILE *f, const ps_run *r)
         fprintf(f, "<tr><td colspan=\"5\">none</td></tr>\n");
     for (size_t i = 0; i < r->n_catalogs; i++) {
         const ps_catalog_entry *c = &r->catalogs[i];
-        fprintf(f, "<tr><th scope=\"row\" data-label=\"File\"><code class=\"tok\">");
-        ps_html_text(f, c->file);
+        fprintf(f, "<tr><th scope=\"row\" data-label=\"File\"><code class=\"path\">");
+        ps_html_path(f, c->file);
         fprintf(f, "</code></th><td data-label=\"Title\">");
         ps_html_text(f, c->title && c->title[0] ? c->title : "none");
         fprintf(f, "</td><td data-label=\"SHA-256\">");

@@ -36,6 +36,10 @@ ps_html_colour ps_html_verdict_colour(ps_verdict v);
 /* Write s escaped for HTML text and attribute values; control characters
  * other than tab and newline become spaces. */
 void ps_html_text(FILE *f, const char *s);
+/* Write a file path as ps_html_text does, with a line-break opportunity
+ * (<wbr>) after each '/' so a long path folds at its directories on a narrow
+ * screen; the copied text is unchanged. Used inside class "path". */
+void ps_html_path(FILE *f, const char *path);
 
 /* The element id of the plant section of ranked row `rank` (1-based):
  * "p<rank>-" then the id with every byte outside [A-Za-z0-9-] written as

@@ -195,10 +195,10 @@ static void ranking_row(FILE *f, const ps_run *r, size_t i, const ps_summary *s,
     }
     fprintf(f, "<td class=\"cause\" data-label=\"Cause\">");
     h_text(f, s->cause);
-    fprintf(f, "</td><td class=\"src\" data-label=\"Source\"><code class=\"tok\" title=\"");
+    fprintf(f, "</td><td class=\"src\" data-label=\"Source\"><code class=\"path\" title=\"");
     h_text(f, catalog_of(r, s));
     fprintf(f, "\">");
-    h_text(f, short_names ? base_name(catalog_of(r, s)) : catalog_of(r, s));
+    ps_html_path(f, short_names ? base_name(catalog_of(r, s)) : catalog_of(r, s));
     fprintf(f, ":%zu</code></td></tr>\n", s->line);
 }
 
@@ -1082,8 +1082,8 @@ static bool unstable_controller_required(const ps_summary *s)
 static void error_where(FILE *f, const ps_run *r, const ps_summary *s)
 {
     char pos[PS_DIAG_POS];
-    fprintf(f, "<code class=\"tok\">");
-    h_text(f, catalog_of(r, s));
+    fprintf(f, "<code class=\"path\">");
+    ps_html_path(f, catalog_of(r, s));
     fprintf(f, "%s</code>", ps_diag_pos(pos, sizeof pos, s->err_line, s->err_col));
     if (s->err_field[0]) {
         fprintf(f, ", field <code class=\"tok\">");
@@ -1111,8 +1111,8 @@ static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *
         h_text(f, s->note);
         fprintf(f, "</p>\n");
     }
-    fprintf(f, "<p>Source: <code class=\"tok\">");
-    h_text(f, catalog_of(r, s));
+    fprintf(f, "<p>Source: <code class=\"path\">");
+    ps_html_path(f, catalog_of(r, s));
     fprintf(f, ":%zu</code></p>\n", s->line);
     if (s->verdict == PS_VERDICT_UNREAD) {
         fprintf(f, "<p>Input error at ");

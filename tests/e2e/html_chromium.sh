@@ -51,6 +51,12 @@ else
     src=${3:-}
     stem=$(basename "$catalog")
     stem=${stem%.*}
+    # The catalog is read from a deep directory, so that the page shows a file
+    # path longer than a phone's width wherever it names one (the path must
+    # fold there, not widen the page), whatever the checkout's own path.
+    deep=$tmp/a-directory-with-a-long-name-of-its-own/and-another-one-below-it/and-a-third-level-here
+    mkdir -p "$deep" && cp "$catalog" "$deep/" || { echo "FAIL: copy the catalog"; exit 1; }
+    catalog=$deep/$(basename "$catalog")
     "$ps" screen -o "$tmp/out" --gate never "$catalog" >"$tmp/stdout" 2>"$tmp/stderr"
     rc=$?
     if [ $rc -ne 0 ]; then
@@ -202,13 +208,13 @@ known = set(parser.anchors)
 missing = [l for l in parser.links if l not in known]
 check(parser.links and not missing, "%d in-page links resolve%s" % (len(parser.links), " (missing: %s)" % missing[:5] if missing else ""))
 # At 390 px: the page does not scroll sideways and the ranking ends inside the viewport.
-m = re.fullmatch(r"(viewport=\d+ scroll=\d+ body=\d+ table=-?\d+ cells=\d+)\n?", open(measured, encoding="utf-8").read())
+m = re.fullmatch(r"(viewport=\d+ scroll=\d+ body=\d+ table=-?\d+ cells=\d+) widest=(.*)\n?", open(measured, encoding="utf-8").read())
 check(m is not None, "measurement at 390 px made by the browser")
 if m:
     v = {k: int(x) for k, x in (p.split("=") for p in m.group(1).split())}
     print("measured at 390 px: %s" % m.group(1))
     check(v["viewport"] == 390, "viewport 390 px wide (%d)" % v["viewport"])
-    check(v["scroll"] <= v["viewport"] and v["body"] <= v["viewport"], "no horizontal scroll at 390 px (page %d, body %d)" % (v["scroll"], v["body"]))
+    check(v["scroll"] <= v["viewport"] and v["body"] <= v["viewport"], "no horizontal scroll at 390 px (page %d, body %d%s)" % (v["scroll"], v["body"], "" if v["scroll"] <= v["viewport"] or m.group(2) == "none" else "; past the edge: " + m.group(2)))
     check(0 < v["table"] <= v["viewport"] and v["cells"] <= v["viewport"], "ranking inside 390 px (table right edge %d, cells %d)" % (v["table"], v["cells"]))
 # The printed ranking: every plant id of its rows is in the PDF's text, whole.
 printed = open(pdf_text, encoding="utf-8", errors="replace").read()
@@ -234,9 +240,14 @@ PY
 # A run larger than the ranking cap: 620 generated plants (tests/bench/gen_catalog.py),
 # the same checks on its report (screenshots in OUTDIR/large).
 if [ -n "${ps:-}" ] && [ -n "${src:-}" ]; then
+    # Ten of its plants get ids of 90 characters (the longest allowed is 96),
+    # wider than a phone's screen: they must fold on the narrow view.
+    long=with-an-identifier-far-longer-than-a-narrow-screen-is-wide-0123456789-abcdefghijklmnopq
     if "$py" "$src/tests/bench/gen_catalog.py" 620 "$tmp/large.yaml" --seed 2385 >/dev/null &&
+        sed -i "s/^  - id: b\([0-9]\)\$/  - id: b\1-$long/" "$tmp/large.yaml" &&
+        [ "$(grep -c -- "-$long\$" "$tmp/large.yaml")" -eq 10 ] &&
         "$ps" screen -o "$tmp/large" --gate never --quiet --detail none "$tmp/large.yaml" >/dev/null 2>&1; then
-        ok "plantsieve screen of 620 generated plants"
+        ok "plantsieve screen of 620 generated plants (10 with 90-character ids)"
         echo "--- 620 plants (more than the ranking cap) ---"
         OUTDIR="$outdir/large" sh "$0" --report "$tmp/large/large.screen/large.screen.html" "$tmp/large/large.screen/large.screen.csv"
         [ $? -eq 0 ] || bad "checks of the 620-plant report"

@@ -30,8 +30,16 @@ MEASURE = r"""(function () {
   document.querySelectorAll("table.ranking caption, table.ranking tbody tr, table.ranking tbody td, "
       + "table.ranking tbody th, table.ranking tbody code, table.ranking tbody a")
     .forEach(function (e) { m = Math.max(m, e.getBoundingClientRect().right); });
+  /* the innermost element reaching past the viewport, named for the failure message */
+  var wide = "none";
+  document.querySelectorAll("body *").forEach(function (e) {
+    if (e.getBoundingClientRect().right > d.clientWidth + 0.5 && !e.querySelector("*"))
+      wide = e.tagName.toLowerCase() + (e.className && e.className.baseVal === undefined ? "." + e.className : "")
+        + ":" + JSON.stringify((e.textContent || "").slice(0, 60));
+  });
   return "viewport=" + d.clientWidth + " scroll=" + d.scrollWidth + " body=" + document.body.scrollWidth +
-    " table=" + (t ? Math.ceil(t.getBoundingClientRect().right) : -1) + " cells=" + Math.ceil(m);
+    " table=" + (t ? Math.ceil(t.getBoundingClientRect().right) : -1) + " cells=" + Math.ceil(m) +
+    " widest=" + wide;
 })()"""
 
 

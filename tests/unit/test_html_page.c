@@ -390,3 +390,44 @@ Test(html_page, note_and_structural_flag)
     free(doc);
     ps_run_free(&r);
 }
+
+/* A path folds only at its directories: <wbr> after each '/' that is followed
+ * by more text, the text itself escaped and otherwise unchanged. */
+static char *path_html(const char *path)
+{
+    char *buf = NULL;
+    size_t len = 0;
+    FILE *f = open_memstream(&buf, &len);
+    cr_assert_not_null(f);
+    ps_html_path(f, path);
+    fclose(f);
+    return buf;
+}
+
+Test(html_page, path_breaks_only_after_slashes)
+{
+    struct {
+        const char *in, *want;
+    } cases[] = {
+        {"/tmp/a b/c.yaml", "/<wbr>tmp/<wbr>a b/<wbr>c.yaml"},
+        {"plain.yaml", "plain.yaml"},
+        {"dir/", "dir/"},
+        {"x<&>/y\"z", "x&lt;&amp;&gt;/<wbr>y&quot;z"},
+        {"", ""},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        char *got = path_html(cases[i].in);
+        cr_expect_str_eq(got, cases[i].want, "path %zu", i);
+        free(got);
+    }
+    /* a directory name longer than the copy buffer comes out whole */
+    char longp[700];
+    memset(longp, 'd', 600);
+    strcpy(longp + 600, "/f");
+    char *got = path_html(longp);
+    char want[720];
+    memcpy(want, longp, 600);
+    strcpy(want + 600, "/<wbr>f");
+    cr_expect_str_eq(got, want);
+    free(got);
+}
