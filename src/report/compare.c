@@ -9,6 +9,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "report/reports.h"
+
 /* One plant as one run has it, packed: 24 bytes. */
 typedef struct side_rec {
     double severity;
@@ -383,9 +385,9 @@ static ps_status read_document(ps_cmp *c, ps_cmp_side side, const char *path, ps
     if (!json_is_object(doc) || !json_is_string(kind) || strcmp(json_string_value(kind), "screening") != 0)
         st = ps_diag_set(d, PS_ERR_SYNTAX, 0, 0, "kind",
                          "expected a screening report: a JSON object with \"kind\": \"screening\"");
-    else if (!json_is_integer(ver) || json_integer_value(ver) < 1 || json_integer_value(ver) > 4)
-        st = ps_diag_set(d, PS_ERR_SYNTAX, 0, 0, "schema_version", "expected schema_version 1 to 4");
-    else if (json_integer_value(ver) == 4) {
+    else if (!json_is_integer(ver) || json_integer_value(ver) < 1 || json_integer_value(ver) > PS_SCREEN_SCHEMA_VERSION)
+        st = ps_diag_set(d, PS_ERR_SYNTAX, 0, 0, "schema_version", "expected schema_version 1 to %d", PS_SCREEN_SCHEMA_VERSION);
+    else if (json_integer_value(ver) >= 4) { /* a summary and its JSON Lines file */
         json_t *pf = json_object_get(doc, "plants_file");
         const char *name = json_string_value(pf);
         if (!name || !name[0] || strchr(name, '/'))
@@ -401,7 +403,7 @@ static ps_status read_document(ps_cmp *c, ps_cmp_side side, const char *path, ps
                 st = read_jsonl(c, side, jl, d);
                 if (st == PS_OK) {
                     snprintf(src->path, sizeof src->path, "%s", jl);
-                    snprintf(src->format, sizeof src->format, "jsonl-v4-summary");
+                    snprintf(src->format, sizeof src->format, "jsonl-v%d-summary", (int)json_integer_value(ver));
                     st = check_counts(c, side, doc, d);
                     if (st != PS_OK) /* the summary holds the counts: name it */
                         snprintf(d->file, sizeof d->file, "%s", path);

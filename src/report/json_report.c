@@ -10,11 +10,13 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* Roots: a real root as its number, a complex one as [re, im]. */
 static json_t *jroots(const ps_cplx *r, size_t n)
 {
     json_t *a = json_array();
     for (size_t i = 0; i < n && i < PS_MAP_MAX; i++)
-        json_array_append_new(a, json_pack("[oo]", ps_json_num(r[i].re), ps_json_num(r[i].im)));
+        json_array_append_new(a, r[i].im == 0 ? ps_json_num(r[i].re)
+                                              : json_pack("[oo]", ps_json_num(r[i].re), ps_json_num(r[i].im)));
     return a;
 }
 
@@ -188,6 +190,65 @@ static void strip_nulls(json_t *v)
     }
 }
 
+/* A real whose value at PS_JSONL_DIGITS significant digits is a whole
+ * number, as that whole number without a fraction ("1" for 1.0 and for
+ * 0.9999999999: JSON has one number type, and a record of many unit floors
+ * is the shorter for it); every member and element, recursively. */
+static json_t *whole_number(const json_t *x)
+{
+    if (!json_is_real(x))
+        return NULL;
+    double v = json_real_value(x), w = nearbyint(v);
+    if (!(fabs(v) < 1e9) || fabs(v - w) > 1e-8 * fabs(v) || (w == 0 && v != 0) || signbit(v) != signbit(w))
+        return NULL;
+    if (v != w) { /* written as a whole number at that precision? */
+        char b[40];
+        snprintf(b, sizeof b, "%.*g", PS_JSONL_DIGITS, v);
+        if (strpbrk(b, ".eEni"))
+            return NULL;
+        w = strtod(b, NULL);
+    }
+    return w == 0 && signbit(w) ? NULL : json_integer((json_int_t)w);
+}
+
+static void whole_numbers(json_t *v)
+{
+    json_t *x, *w;
+    if (json_is_array(v)) {
+        size_t i;
+        json_array_foreach(v, i, x)
+        {
+            if ((w = whole_number(x)))
+                json_array_set_new(v, i, w);
+            else
+                whole_numbers(x);
+        }
+        return;
+    }
+    if (!json_is_object(v))
+        return;
+    const char *key;
+    void *tmp;
+    json_object_foreach_safe(v, tmp, key, x)
+    {
+        if ((w = whole_number(x)))
+            json_object_set_new(v, key, w);
+        else
+            whole_numbers(x);
+    }
+}
+
+/* The top-level members of a record written even when null or false; any
+ * other member, at any depth, is left out when null or false. */
+static bool always_present(const char *key)
+{
+    static const char *const keep[] = {"rank", "id", "verdict", "severity", "severity_infinite", "file", "line", "note"};
+    for (size_t i = 0; i < sizeof keep / sizeof keep[0]; i++)
+        if (strcmp(key, keep[i]) == 0)
+            return true;
+    return false;
+}
+
 /* One plant's full record (a line of the JSON Lines file). */
 static json_t *plant_record(const ps_run *r, const ps_summary *s, size_t rank, const json_t *dflt)
 {
@@ -246,8 +307,15 @@ ps_status ps_write_plants_jsonl(FILE *f, const ps_run *r)
         json_t *pj = plant_record(r, ps_run_row(r, i), i + 1, dflt);
         const char *key;
         json_t *x;
-        json_object_foreach(pj, key, x)
-            strip_nulls(x);
+        void *tmp;
+        json_object_foreach_safe(pj, tmp, key, x)
+        {
+            if (!always_present(key) && (json_is_null(x) || json_is_false(x)))
+                json_object_del(pj, key);
+            else
+                strip_nulls(x);
+        }
+        whole_numbers(pj);
         char *pt = pj ? json_dumps(pj, flags) : NULL;
         json_decref(pj);
         if (!pt)

@@ -1,8 +1,9 @@
 """screen_doc.py - the screening JSON of a report set read back for the end-to-end checks: the
 summary document and the plant records of the JSON Lines file it names (plants_file), each record
 expanded to every member (the file leaves out members that are null or false, requirements equal
-to the summary's requirement_defaults, and targets that do not apply) and given the older nested
-names the checks use (source, band_curve.band_edge, time_to_double items)."""
+to the summary's requirement_defaults, and targets that do not apply), every root as [re, im],
+and given the older nested names the checks use (source, band_curve.band_edge, time_to_double
+items)."""
 import json
 import os
 
@@ -26,12 +27,24 @@ def read_records(summary_path):
 def expand(doc, r):
     p = dict(r)
     p["source"] = {"file": r["file"], "line": r["line"]}
+    # Beyond rank, id, verdict, severity, severity_infinite, file, line and
+    # note, a top-level member is left out when null or false.
+    for k in ("shares", "worst", "cause", "plant", "requirements", "floors", "sampling", "attribution",
+              "targets", "band_curve"):
+        p.setdefault(k, None)
+        r = dict(r, **{k: r.get(k)})
+    p.setdefault("unstable_controller_required", None if r["verdict"] == "input-error" else False)
     if r["verdict"] == "input-error":
         for k in ("shares", "worst", "cause", "plant", "requirements", "floors", "sampling",
                   "attribution", "targets", "band_curve"):
             p[k] = None
         return p
     p["error"] = None
+    # A real root is written as its number, a complex one as [re, im]: every root as [re, im].
+    pl = dict(r["plant"])
+    for k in ("poles", "zeros"):
+        pl[k] = [[z, 0.0] if isinstance(z, (int, float)) else z for z in pl.get(k, [])]
+    p["plant"] = pl
     p["shares"] = {k: r["shares"].get(k) for k in ("ms", "mt", "effort")}
     q = dict(doc["requirement_defaults"])
     q.update(r["requirements"])

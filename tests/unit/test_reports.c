@@ -707,3 +707,38 @@ Test(reports, visible_text_escapes_control_characters)
     cr_assert_str_eq(buf, "a\\tb\\nc\\rd\\x01e\\x7ff\\u009b31m\xc3\xa9\xe2\x97\x8f");
     free(buf);
 }
+
+/* The JSON Lines record's number shapes (plantsieve-screening-plant.schema.json):
+ * a value that is whole at 9 significant digits without a fraction, a real
+ * root as its number and a complex one as [re, im]; other values unchanged. */
+Test(reports, jsonl_numbers_whole_and_roots_compact)
+{
+    ps_screen_opts opt = {.marginal_at = 0.8};
+    ps_run r;
+    ps_run_init(&r, &opt);
+    cr_assert_eq(ps_run_add_catalog(&r, "c.yaml", NULL), PS_OK);
+    ps_summary *s = add_screened(&r, "shapes", PS_VERDICT_CLEAR, 0.25, 1.0, 0.99999999999, 3);
+    s->fl.effort = 2.5;
+    s->fl.bode_area = 1.0000001; /* 8 digits: not whole */
+    s->fl.crossover_min = -0.0;  /* a negative zero keeps its sign */
+    s->fl.parity_interlacing = true;
+    ps_run_commit(&r);
+    r.counts = (ps_batch_counts){.entries = 1, .models = 1};
+    ps_run_rank(&r);
+    char *text = render(ps_write_plants_jsonl, &r, NULL);
+    cr_expect(strstr(text, "\"ms\":1,") != NULL, "unit floor written as 1: %s", text);
+    cr_expect(strstr(text, "\"mt\":1,") != NULL, "0.99999999999 is 1 at 9 digits: %s", text);
+    cr_expect(strstr(text, "\"effort\":2.5,") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"bode_area\":1.0000001,") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"crossover_min\":-0.0") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"poles\":[62.64,-62.64,[-0.0413,2.9]]") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"zeros\":[1730]") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"line\":3,") != NULL, "%s", text);
+    /* false and null members left out at the top too, except the fixed eight */
+    cr_expect(strstr(text, "unstable_controller_required") == NULL, "%s", text);
+    cr_expect(strstr(text, "\"sampling\"") == NULL, "%s", text);
+    cr_expect(strstr(text, "\"severity_infinite\":false") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"note\":null") != NULL, "%s", text);
+    free(text);
+    ps_run_free(&r);
+}
