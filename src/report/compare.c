@@ -237,8 +237,8 @@ static ps_status take_row(ps_cmp *c, ps_cmp_side side, json_t *o, bool v3, const
                          "expected one of clear, marginal, redesign, not-stabilizable, needs-bandwidth, input-error");
     if (!sev || !(json_is_number(sev) || json_is_null(sev)))
         return row_error(d, at, "severity", sev ? "expected a number or null" : "missing");
-    if (!inf || !json_is_boolean(inf))
-        return row_error(d, at, "severity_infinite", inf ? "expected true or false" : "missing");
+    if (inf && !json_is_boolean(inf)) /* absent: false (a plants file leaves out a false member) */
+        return row_error(d, at, "severity_infinite", "expected true or false, or no member (false)");
     if (json_is_true(inf) && !json_is_null(sev))
         return row_error(d, at, "severity", "expected null when severity_infinite is true");
     if (json_is_null(sev) && (v == PS_VERDICT_CLEAR || v == PS_VERDICT_MARGINAL || v == PS_VERDICT_REDESIGN))

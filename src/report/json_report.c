@@ -242,7 +242,7 @@ static void whole_numbers(json_t *v)
  * other member, at any depth, is left out when null or false. */
 static bool always_present(const char *key)
 {
-    static const char *const keep[] = {"rank", "id", "verdict", "severity", "severity_infinite", "file", "line", "note"};
+    static const char *const keep[] = {"rank", "id", "verdict", "severity", "file", "line", "note"};
     for (size_t i = 0; i < sizeof keep / sizeof keep[0]; i++)
         if (strcmp(key, keep[i]) == 0)
             return true;

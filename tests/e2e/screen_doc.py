@@ -27,12 +27,13 @@ def read_records(summary_path):
 def expand(doc, r):
     p = dict(r)
     p["source"] = {"file": r["file"], "line": r["line"]}
-    # Beyond rank, id, verdict, severity, severity_infinite, file, line and
-    # note, a top-level member is left out when null or false.
+    # Beyond rank, id, verdict, severity, file, line and note, a top-level
+    # member is left out when null or false.
     for k in ("shares", "worst", "cause", "plant", "requirements", "floors", "sampling", "attribution",
               "targets", "band_curve"):
         p.setdefault(k, None)
         r = dict(r, **{k: r.get(k)})
+    p.setdefault("severity_infinite", False)
     p.setdefault("unstable_controller_required", None if r["verdict"] == "input-error" else False)
     if r["verdict"] == "input-error":
         for k in ("shares", "worst", "cause", "plant", "requirements", "floors", "sampling",
