@@ -97,40 +97,44 @@ print(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss, file=sys.stderr); 
 median() { sort -g | awk '{a[NR]=$1} END {if (NR == 0) print "nan"; else if (NR % 2) print a[(NR+1)/2]; else print (a[NR/2]+a[NR/2+1])/2}'; }
 maxof() { sort -g | tail -1; }
 
-# measure NAME N REPS OKCODES CMD... -> sets M_S (median s), M_RSS (MiB), M_RC
-measure() {
-    local name=$1 n=$2 reps=$3 ok=$4; shift 4
-    local times=() rss=() rc=0 r
+# run_one NAME N R OKCODES CMD... : repetition R of NAME (warns on an unexpected exit code)
+run_one() {
+    local name=$1 n=$2 r=$3 ok=$4; shift 4
+    run_timed "$TMP/$name-$n-$r" "$@"
+    local us kb code
+    read -r us kb code < "$TMP/$name-$n-$r.t"
+    [[ " $ok " == *" $code "* ]] || say "# WARNING: $name N=$n run $r exited $code: $(head -c 300 "$TMP/$name-$n-$r.stderr")"
+}
+
+# summarize NAME N REPS -> M_S (median s), M_RSS (MiB, max), M_CPU (median CPU s), ALL_S
+summarize() {
+    local name=$1 n=$2 reps=$3 times=() rss=() r us kb code
     for ((r = 1; r <= reps; r++)); do
-        run_timed "$TMP/$name-$n-$r" "$@"
         read -r us kb code < "$TMP/$name-$n-$r.t"
         times+=("$us"); rss+=("$kb")
-        if [[ " $ok " != *" $code "* ]]; then
-            rc=$code
-            say "# WARNING: $name N=$n run $r exited $code: $(head -c 300 "$TMP/$name-$n-$r.stderr")"
-        fi
     done
     M_S=$(printf '%s\n' "${times[@]}" | median | awk '{printf "%.6f", $1 / 1e6}')
     M_RSS=$(printf '%s\n' "${rss[@]}" | maxof | awk '{printf "%.1f", $1 / 1024}')
-    M_RC=$rc
     M_CPU=$(for ((r = 1; r <= reps; r++)); do cat "$TMP/$name-$n-$r.cpu" 2>/dev/null || echo nan; done | median)
     ALL_S=$(printf '%s\n' "${times[@]}" | awk '{printf "%s%.3f", (NR > 1 ? " " : ""), $1 / 1e6}')
 }
 
 # numpy on CAT: median compute and total over reps -> NP_C, NP_T, NP_RSS
 measure_numpy() {
-    local cat=$1 n=$2 reps=$3 r comp=() tot=() rss=()
+    local cat=$1 n=$2 reps=$3 r comp=() tot=() rss=() flo=()
     for ((r = 1; r <= reps; r++)); do
         run_timed "$TMP/numpy-$n-$r" "$PY" "$HERE/np_floors.py" "$cat"
         read -r us kb code < "$TMP/numpy-$n-$r.t"
         [[ $code == 0 ]] || say "# WARNING: numpy N=$n exited $code: $(tail -c 300 "$TMP/numpy-$n-$r.stderr")"
         local line=$(grep '^NP_TIMES' "$TMP/numpy-$n-$r.stdout")
         comp+=("$(sed -E 's/.* compute=([0-9.]+).*/\1/' <<< "$line")")
+        flo+=("$(sed -E 's/.* floors=([0-9.]+).*/\1/' <<< "$line")")
         tot+=("$(awk -v us="$us" 'BEGIN {printf "%.6f", us / 1e6}')")    # process wall time
         rss+=("$kb")
         NP_LOAD=$(sed -E 's/.* load=([0-9.]+).*/\1/' <<< "$line")
     done
     NP_C=$(printf '%s\n' "${comp[@]}" | median)
+    NP_F=$(printf '%s\n' "${flo[@]}" | median)
     NP_T=$(printf '%s\n' "${tot[@]}" | median)
     NP_RSS=$(printf '%s\n' "${rss[@]}" | maxof | awk '{printf "%.1f", $1 / 1024}')
     NP_SUMMARY=$(grep '^np_floors: verdicts' "$TMP/numpy-$n-1.stdout" | sed 's/^np_floors: //')
@@ -153,28 +157,41 @@ say ""
 DETAIL=0; "$PS" screen --help 2>&1 | grep -q -- '--detail' && DETAIL=1
 SHOW=0; "$PS" screen --help 2>&1 | grep -q -- '--show' && SHOW=1
 declare -A SN_S SN_RSS SA_S SA_RSS
+declare -A R_CPU SC_CPU SV_CPU NPF
 declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN F_S F_RSS F_CPU F_B F_LINES
 for n in "${SIZES[@]}"; do
     cat=$(catalog "$n") || { say "generating the N=$n catalog failed"; exit 1; }
     reps=$REPS; (( n >= LARGE_AT )) && reps=$REPS_LARGE
     REPN[$n]=$reps
-    measure read "$n" "$reps" "0" "$PS" read "$cat"
+    # The commands take turns, repetition by repetition (read, screen, ..., survey, then
+    # again), so that a change of the machine's load falls on all of them alike.
+    for ((r = 1; r <= reps; r++)); do
+        run_one read "$n" "$r" "0" "$PS" read "$cat"
+        run_one screen "$n" "$r" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" "$cat"
+        [[ $DETAIL == 1 ]] && run_one screen-none "$n" "$r" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --detail none "$cat"
+        [[ $SHOW == 1 ]] && run_one screen-all "$n" "$r" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --show all "$cat"
+        if [[ $FILES == 1 ]]; then # every report written, as a user's run does (the set replaced each time)
+            run_one files "$n" "$r" "0 3" "$PS" screen --gate never --quiet "${SCREEN_OPTS[@]:3}" -o "$TMP/files" "$cat"
+        fi
+        run_one survey "$n" "$r" "0 3" "$PS" survey "$cat"
+    done
+    summarize read "$n" "$reps"
     got=$(grep -oE '[0-9]+ entries read' "$TMP/read-$n-1.stdout" | cut -d' ' -f1)
     [[ "$got" == "$n" ]] || say "# WARNING: read counted ${got:-?} entries, expected $n"
-    R_S[$n]=$M_S; R_RSS[$n]=$M_RSS; say "# N=$n read   runs: $ALL_S s"
-    measure screen "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" "$cat"
-    SC_S[$n]=$M_S; SC_RSS[$n]=$M_RSS; say "# N=$n screen runs: $ALL_S s; $(grep -m1 '^Counts' "$TMP/screen-$n-1.stdout" || true)"
+    R_S[$n]=$M_S; R_RSS[$n]=$M_RSS; R_CPU[$n]=$M_CPU; say "# N=$n read   runs: $ALL_S s (median CPU $M_CPU s)"
+    summarize screen "$n" "$reps"
+    SC_S[$n]=$M_S; SC_RSS[$n]=$M_RSS; SC_CPU[$n]=$M_CPU
+    say "# N=$n screen runs: $ALL_S s (median CPU $M_CPU s); $(grep -m1 '^Counts' "$TMP/screen-$n-1.stdout" || true)"
     if [[ $DETAIL == 1 ]]; then
-        measure screen-none "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --detail none "$cat"
+        summarize screen-none "$n" "$reps"
         SN_S[$n]=$M_S; SN_RSS[$n]=$M_RSS; say "# N=$n screen --detail none runs: $ALL_S s"
     fi
     if [[ $SHOW == 1 ]]; then
-        measure screen-all "$n" "$reps" "0 3" "$PS" screen "${SCREEN_OPTS[@]}" --show all "$cat"
+        summarize screen-all "$n" "$reps"
         SA_S[$n]=$M_S; SA_RSS[$n]=$M_RSS; say "# N=$n screen --show all runs: $ALL_S s"
     fi
     if [[ $FILES == 1 ]]; then
-        # Every report written, as a user's run does (the set replaced by each repetition).
-        measure files "$n" "$reps" "0 3" "$PS" screen --gate never --quiet "${SCREEN_OPTS[@]:3}" -o "$TMP/files" "$cat"
+        summarize files "$n" "$reps"
         F_S[$n]=$M_S; F_RSS[$n]=$M_RSS; F_CPU[$n]=$M_CPU
         stem=$(basename "${cat%.yaml}")
         for ext in txt csv json plants.jsonl md html; do
@@ -184,13 +201,13 @@ for n in "${SIZES[@]}"; do
         say "# N=$n screen with every report runs: $ALL_S s (median CPU $M_CPU s); JSON Lines $(( F_B[$n,plants.jsonl] / n )) B a plant, ${F_LINES[$n]} lines"
         rm -rf "$TMP/files"
     fi
-    measure survey "$n" "$reps" "0 3" "$PS" survey "$cat"
-    SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; say "# N=$n survey runs: $ALL_S s"
+    summarize survey "$n" "$reps"
+    SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; SV_CPU[$n]=$M_CPU; say "# N=$n survey runs: $ALL_S s (median CPU $M_CPU s)"
     if [[ $NUMPY == 1 ]]; then
         if (( n > NUMPY_SUBSET )); then
             sub=$(catalog "$NUMPY_SUBSET") || { say "generating the N=$NUMPY_SUBSET catalog failed"; exit 1; }
             if [[ -n "${NPN[$NUMPY_SUBSET]:-}" && "${NPX[$NUMPY_SUBSET]}" == measured ]]; then
-                NP_C=${NPC[$NUMPY_SUBSET]}; NP_T=${NPT[$NUMPY_SUBSET]}; NP_RSS=${NPRSS[$NUMPY_SUBSET]}
+                NP_C=${NPC[$NUMPY_SUBSET]}; NP_T=${NPT[$NUMPY_SUBSET]}; NP_RSS=${NPRSS[$NUMPY_SUBSET]}; NP_F=${NPF[$NUMPY_SUBSET]}
                 say "# N=$n numpy: reusing the N=$NUMPY_SUBSET measurement as the subset"
             else
                 measure_numpy "$sub" "$NUMPY_SUBSET" "$REPS"
@@ -200,17 +217,18 @@ for n in "${SIZES[@]}"; do
             if (( est > NUMPY_BUDGET )); then
                 NPC[$n]=$(awk -v t="$NP_C" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
                 NPT[$n]=$(awk -v t="$NP_T" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
+                NPF[$n]=$(awk -v t="$NP_F" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
                 NPX[$n]="extrapolated x$((n / NUMPY_SUBSET)) from the first $NUMPY_SUBSET plants"
                 NPRSS[$n]="$NP_RSS@$NUMPY_SUBSET"
                 say "# N=$n numpy: full run estimated ${est} s > NUMPY_BUDGET ${NUMPY_BUDGET} s: extrapolated linearly from N=$NUMPY_SUBSET"
             else
                 measure_numpy "$cat" "$n" "$reps"
-                NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
+                NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPF[$n]=$NP_F; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
                 say "# N=$n numpy runs: compute $NP_C s, total $NP_T s (medians); $NP_SUMMARY"
             fi
         else
             measure_numpy "$cat" "$n" "$reps"
-            NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
+            NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPF[$n]=$NP_F; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
             say "# N=$n numpy runs: compute $NP_C s, total $NP_T s (medians), YAML load $NP_LOAD s (last run); $NP_SUMMARY"
         fi
         NPN[$n]=$n
@@ -307,28 +325,38 @@ last=${SIZES[${#SIZES[@]}-1]}; first=${SIZES[0]}
 for n in "${SIZES[@]}"; do (( n > last )) && last=$n; (( n < first )) && first=$n; done
 big=""
 for n in "${SIZES[@]}"; do (( n >= 1000000 )) && big=$n && break; done
-if [[ -n "$big" ]]; then
-    r=$(ratio "${SC_S[$big]}" "${R_S[$big]}")
-    say "  screen within 2x of read time at N=$big: screen/read = $r  -> $(verdict "$r" 2 le)"
-    if [[ $DETAIL == 1 ]]; then
-        r=$(ratio "${SN_S[$big]}" "${R_S[$big]}")
-        say "    the same with --detail none (floors, verdicts, ranking; no targets): $r  -> $(verdict "$r" 2 le)"
-    fi
-    if [[ $SHOW == 1 ]]; then
-        r=$(ratio "${SA_S[$big]}" "${R_S[$big]}")
-        say "    the same with --show all (every record through the run file): $r  -> $(verdict "$r" 2 le)"
-    fi
-    rss=$(printf '%s\n' "${R_RSS[$big]}" "${SC_RSS[$big]}" "${SV_RSS[$big]}" | maxof)
-    say "  peak RSS < 256 MiB at N=$big: read ${R_RSS[$big]}, screen ${SC_RSS[$big]}, survey ${SV_RSS[$big]} MiB  -> $(verdict "$rss" 255.999 le)"
-else
-    say "  screen within 2x of read time at 1M: not measured (largest N = $last; there screen/read = $(ratio "${SC_S[$last]}" "${R_S[$last]}"))"
-    say "  peak RSS < 256 MiB at 1M: not measured (largest N = $last: screen ${SC_RSS[$last]} MiB)"
-fi
+load_now=$(cut -d' ' -f1-3 /proc/loadavg)
+# Compute against compute: plantsieve's floors = survey CPU - read CPU (the survey is the
+# read plus the floors of every plant, one thread); numpy's = its "compute" (prepare: YAML
+# mappings to arrays, then floors: roots, every floor incl. the joint Pick/Chen floors,
+# severity, verdict) and, stricter, its vectorised floors alone.
 for n in "${SIZES[@]}"; do
     [[ -n "${NPC[$n]:-}" ]] || continue
-    c=$(ratio "${NPC[$n]}" "${SC_S[$n]}"); t=$(ratio "${NPT[$n]}" "${SC_S[$n]}")
-    say "  >= 50x faster than numpy at N=$n: compute-only ${c}x -> $(verdict "$c" 50 ge), with YAML load ${t}x -> $(verdict "$t" 50 ge)$([[ "${NPX[$n]}" == measured ]] || echo " (numpy ${NPX[$n]})")"
+    pc=$(awk -v a="${SV_CPU[$n]}" -v b="${R_CPU[$n]}" 'BEGIN {d = a - b; printf "%.3f", d > 0.001 ? d : 0.001}')
+    c=$(ratio "${NPC[$n]}" "$pc"); f=$(ratio "${NPF[$n]}" "$pc")
+    say "  floors, compute only, at N=$n: numpy compute ${NPC[$n]} s (of it vectorised floors ${NPF[$n]} s), plantsieve survey CPU - read CPU = ${SV_CPU[$n]} - ${R_CPU[$n]} = $pc s: ${c}x (floors alone ${f}x), at least 5x -> $(verdict "$c" 5 ge | sed 's/PASS/MET/')$([[ "${NPX[$n]}" == measured ]] || echo " (numpy ${NPX[$n]})")"
 done
+if [[ -n "$big" ]]; then
+    r=$(ratio "${SC_S[$big]}" "${R_S[$big]}"); rc=$(ratio "${SC_CPU[$big]}" "${R_CPU[$big]}")
+    say "  full screen (targets, band curve), no report files, within 1.5x of parse-only at N=$big: wall ${SC_S[$big]} / ${R_S[$big]} s = $r (CPU ${SC_CPU[$big]} / ${R_CPU[$big]} s = $rc; screen on $(nproc) threads, read on one), load $load_now  -> $(verdict "$r" 1.5 le | sed 's/PASS/MET/')"
+    if [[ $DETAIL == 1 ]]; then
+        say "    (--detail none, floors, verdicts and ranking without targets: $(ratio "${SN_S[$big]}" "${R_S[$big]}"))"
+    fi
+    if [[ $FILES == 1 ]]; then
+        r=$(ratio "${F_S[$big]}" "${R_S[$big]}"); rc=$(ratio "${F_CPU[$big]}" "${R_CPU[$big]}")
+        say "  full screen writing every report within 3x of parse-only at N=$big: wall ${F_S[$big]} / ${R_S[$big]} s = $r (CPU ${F_CPU[$big]} / ${R_CPU[$big]} s = $rc)  -> $(verdict "$r" 3 le | sed 's/PASS/MET/')"
+    fi
+else
+    say "  full screen within 1.5x, and with every report within 3x, of parse-only at 1M: not measured (largest N = $last; there screen/read = $(ratio "${SC_S[$last]}" "${R_S[$last]}"))"
+fi
+big3=""
+for n in "${SIZES[@]}"; do (( n >= 3000000 )) && big3=$n && break; done
+if [[ -n "$big3" ]]; then
+    rss=$(printf '%s\n' "${R_RSS[$big3]}" "${SC_RSS[$big3]}" "${SV_RSS[$big3]}" "${F_RSS[$big3]:-0}" | maxof)
+    say "  peak RSS < 256 MiB at N=$big3: read ${R_RSS[$big3]}, screen ${SC_RSS[$big3]}, survey ${SV_RSS[$big3]}, with reports ${F_RSS[$big3]:--} MiB  -> $(verdict "$rss" 255.999 le | sed 's/PASS/MET/')"
+else
+    say "  peak RSS < 256 MiB at 3M: not measured (largest N = $last: screen ${SC_RSS[$last]} MiB, with reports ${F_RSS[$last]:--} MiB); give 3000000 among the sizes"
+fi
 if (( ${#SIZES[@]} > 1 )); then
     for cmd in read screen survey; do
         line=""; worst=1
@@ -339,7 +367,7 @@ if (( ${#SIZES[@]} > 1 )); then
             line+=" N=$n ${g}"
             worst=$(printf '%s\n' "$worst" "$g" | maxof)
         done
-        say "  linear growth, $cmd: time per plant relative to N=$first:$line -> $(verdict "$worst" 1.25 le) (limit 1.25)"
+        say "  linear growth, $cmd: time per plant relative to N=$first:$line -> $(verdict "$worst" 1.25 le | sed 's/PASS/MET/') (limit 1.25)"
     done
     prev=""
     for n in "${SIZES[@]}"; do
