@@ -14,6 +14,12 @@
 #           MET/MISS for the JSON Lines record <= 1500 bytes a plant and for a Markdown and an
 #           HTML report bounded (< 8 MiB at every N, its caps)); FILES=0 skips it
 #   numpy   np_floors.py CAT                          (vectorised baseline; compute and total)
+# The commands take turns (read, screen, ..., survey, then the next repetition).
+# Targets printed with MET/MISS (the speed issue): floors compute (survey CPU -
+# read CPU) at least 5x faster than numpy's compute; at 1M, screen --no-files
+# within 1.5x and every report within 3x of the parse-only read (wall; CPU and
+# the load average beside it); linear growth (per-plant time within 1.25x of the
+# smallest N); peak RSS under 256 MiB at 3M (give 3000000 among the sizes).
 # For N above NUMPY_SUBSET, numpy runs on the first NUMPY_SUBSET plants (the
 # smaller catalog is a prefix of the larger one) and is extrapolated linearly
 # when the full run would exceed NUMPY_BUDGET seconds; the table says so.
@@ -332,7 +338,7 @@ load_now=$(cut -d' ' -f1-3 /proc/loadavg)
 # severity, verdict) and, stricter, its vectorised floors alone.
 for n in "${SIZES[@]}"; do
     [[ -n "${NPC[$n]:-}" ]] || continue
-    pc=$(awk -v a="${SV_CPU[$n]}" -v b="${R_CPU[$n]}" 'BEGIN {d = a - b; printf "%.3f", d > 0.001 ? d : 0.001}')
+    pc=$(awk -v a="${SV_CPU[$n]}" -v b="${R_CPU[$n]}" 'BEGIN {d = a - b; printf "%.3f", (d > 0.001 ? d : 0.001)}')
     c=$(ratio "${NPC[$n]}" "$pc"); f=$(ratio "${NPF[$n]}" "$pc")
     say "  floors, compute only, at N=$n: numpy compute ${NPC[$n]} s (of it vectorised floors ${NPF[$n]} s), plantsieve survey CPU - read CPU = ${SV_CPU[$n]} - ${R_CPU[$n]} = $pc s: ${c}x (floors alone ${f}x), at least 5x -> $(verdict "$c" 5 ge | sed 's/PASS/MET/')$([[ "${NPX[$n]}" == measured ]] || echo " (numpy ${NPX[$n]})")"
 done
