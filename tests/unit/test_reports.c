@@ -2,6 +2,7 @@
  * a hand-built run: CSV read back by a real CSV reader, escaping, one row per
  * plant, write errors, and atomic replacement of report files. */
 #include <criterion/criterion.h>
+#include <jansson.h>
 #include <ctype.h>
 #include <dirent.h>
 #include <math.h>
@@ -739,6 +740,45 @@ Test(reports, jsonl_numbers_whole_and_roots_compact)
     cr_expect(strstr(text, "\"sampling\"") == NULL, "%s", text);
     cr_expect(strstr(text, "severity_infinite") == NULL, "%s", text);
     cr_expect(strstr(text, "\"note\":null") != NULL, "%s", text);
+    free(text);
+    ps_run_free(&r);
+}
+
+/* The record's strings and numbers read back by a JSON parser (jansson's):
+ * control characters, quotes and backslashes escaped, text that is not
+ * valid UTF-8 written as null (or left out), every number as written. */
+Test(reports, jsonl_strings_and_numbers_parse_back)
+{
+    ps_screen_opts opt = {.marginal_at = 0.8};
+    ps_run r;
+    ps_run_init(&r, &opt);
+    cr_assert_eq(ps_run_add_catalog(&r, "dir/\"odd\"\\cat.yaml", NULL), PS_OK);
+    ps_summary *s = add_screened(&r, "ctl\x01\x1f\t\"q\"\\b\x7f-\xc3\xa9", PS_VERDICT_REDESIGN, 1.5, 3.0, 1.2, 7);
+    snprintf(s->note, sizeof s->note, "bad \xc3\x28 byte");          /* not UTF-8: null */
+    snprintf(s->cause, sizeof s->cause, "overlong \xc0\xaf slash"); /* not UTF-8: left out */
+    s->fl.effort = 1.23456789012e-7;
+    s->fl.bode_area = 6.02214076e23;
+    s->gain = -0.0;
+    ps_run_commit(&r);
+    r.counts = (ps_batch_counts){.entries = 1, .models = 1};
+    ps_run_rank(&r);
+    char *text = render(ps_write_plants_jsonl, &r, NULL);
+    cr_assert(strchr(text, '\n') == text + strlen(text) - 1, "one line: %s", text);
+    json_error_t err;
+    json_t *j = json_loads(text, 0, &err);
+    cr_assert_not_null(j, "parse: %s at %d: %s", err.text, err.position, text);
+    cr_expect_str_eq(json_string_value(json_object_get(j, "id")), "ctl\x01\x1f\t\"q\"\\b\x7f-\xc3\xa9");
+    cr_expect_str_eq(json_string_value(json_object_get(j, "file")), "dir/\"odd\"\\cat.yaml");
+    cr_expect(json_is_null(json_object_get(j, "note")), "%s", text);
+    cr_expect_null(json_object_get(j, "cause"), "%s", text);
+    cr_expect(strstr(text, "\\u0001\\u001F\\t\\\"q\\\"\\\\b\x7f") != NULL, "escapes: %s", text);
+    json_t *fl = json_object_get(j, "floors");
+    cr_expect_eq(json_number_value(json_object_get(fl, "effort")), 1.23456789e-7, "%s", text);
+    cr_expect(strstr(text, "\"effort\":1.23456789e-7") != NULL, "exponent without '+' or leading zeros: %s", text);
+    cr_expect(strstr(text, "\"bode_area\":6.02214076e23") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"gain\":-0.0") != NULL, "%s", text);
+    cr_expect_eq(json_real_value(json_object_get(j, "severity")), 1.5);
+    json_decref(j);
     free(text);
     ps_run_free(&r);
 }
