@@ -25,19 +25,57 @@
 
 /* ---- a small writer: members and items, separators where they belong ---- */
 
-enum { JW_DEPTH = 8 };
+enum { JW_DEPTH = 8, JW_BUF = 1 << 16 };
 
+/* A record is put together in buf and written with one fwrite (a stream's
+ * lock taken per character costs more than the record's numbers). */
 typedef struct jw {
     FILE *f;
     int depth;
     bool first[JW_DEPTH]; /* no member or item written yet at this depth */
+    size_t len;
+    bool failed;          /* a write to f failed */
+    char buf[JW_BUF];
 } jw;
+
+static void jw_flush(jw *w)
+{
+    if (w->len && fwrite(w->buf, 1, w->len, w->f) != w->len)
+        w->failed = true;
+    w->len = 0;
+}
+
+static void jw_put(jw *w, const char *s, size_t n)
+{
+    if (w->len + n > sizeof w->buf) {
+        jw_flush(w);
+        if (n > sizeof w->buf) {
+            if (fwrite(s, 1, n, w->f) != n)
+                w->failed = true;
+            return;
+        }
+    }
+    memcpy(w->buf + w->len, s, n);
+    w->len += n;
+}
+
+static void jw_puts(jw *w, const char *s)
+{
+    jw_put(w, s, strlen(s));
+}
+
+static void jw_putc(jw *w, char c)
+{
+    if (w->len == sizeof w->buf)
+        jw_flush(w);
+    w->buf[w->len++] = c;
+}
 
 static void jw_sep(jw *w)
 {
     if (w->depth > 0) {
         if (!w->first[w->depth - 1])
-            putc(',', w->f);
+            jw_putc(w, ',');
         w->first[w->depth - 1] = false;
     }
 }
@@ -47,16 +85,16 @@ static void jw_key(jw *w, const char *key)
 {
     jw_sep(w);
     if (key) {
-        putc('"', w->f);
-        fputs(key, w->f); /* member names are our own ASCII words */
-        fputs("\":", w->f);
+        jw_putc(w, '"');
+        jw_puts(w, key); /* member names are our own ASCII words */
+        jw_put(w, "\":", 2);
     }
 }
 
 static void jw_open(jw *w, const char *key, char c)
 {
     jw_key(w, key);
-    putc(c, w->f);
+    jw_putc(w, c);
     if (w->depth < JW_DEPTH)
         w->first[w->depth] = true;
     w->depth++;
@@ -64,7 +102,7 @@ static void jw_open(jw *w, const char *key, char c)
 
 static void jw_close(jw *w, char c)
 {
-    putc(c, w->f);
+    jw_putc(w, c);
     w->depth--;
 }
 
@@ -93,24 +131,26 @@ static bool utf8_ok(const unsigned char *s)
 /* A string value: ", \ and control characters escaped; everything else as is. */
 static void jw_quoted(jw *w, const char *s)
 {
-    putc('"', w->f);
+    jw_putc(w, '"');
     for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
         switch (*c) {
-        case '"': fputs("\\\"", w->f); break;
-        case '\\': fputs("\\\\", w->f); break;
-        case '\b': fputs("\\b", w->f); break;
-        case '\f': fputs("\\f", w->f); break;
-        case '\n': fputs("\\n", w->f); break;
-        case '\r': fputs("\\r", w->f); break;
-        case '\t': fputs("\\t", w->f); break;
+        case '"': jw_put(w, "\\\"", 2); break;
+        case '\\': jw_put(w, "\\\\", 2); break;
+        case '\b': jw_put(w, "\\b", 2); break;
+        case '\f': jw_put(w, "\\f", 2); break;
+        case '\n': jw_put(w, "\\n", 2); break;
+        case '\r': jw_put(w, "\\r", 2); break;
+        case '\t': jw_put(w, "\\t", 2); break;
         default:
-            if (*c < 0x20)
-                fprintf(w->f, "\\u%04X", *c);
-            else
-                putc(*c, w->f);
+            if (*c < 0x20) {
+                char u[8];
+                snprintf(u, sizeof u, "\\u%04X", *c);
+                jw_put(w, u, 6);
+            } else
+                jw_putc(w, (char)*c);
         }
     }
-    putc('"', w->f);
+    jw_putc(w, '"');
 }
 
 /* A string member: left out when empty or not valid UTF-8. */
@@ -139,7 +179,7 @@ static void jw_str_or_null(jw *w, const char *key, const char *s)
     if (s && *s && utf8_ok((const unsigned char *)s))
         jw_quoted(w, s);
     else
-        fputs("null", w->f);
+        jw_put(w, "null", 4);
 }
 
 /* x at PS_JSONL_DIGITS significant digits: a whole number at that precision
@@ -180,12 +220,12 @@ static void jw_item(jw *w, double x)
 {
     jw_key(w, NULL);
     if (!isfinite(x)) {
-        fputs("null", w->f);
+        jw_put(w, "null", 4);
         return;
     }
     char b[48];
     num_text(b, sizeof b, x);
-    fputs(b, w->f);
+    jw_puts(w, b);
 }
 
 /* A number member: left out when not finite. */
@@ -196,13 +236,15 @@ static void jw_num(jw *w, const char *key, double x)
     char b[48];
     num_text(b, sizeof b, x);
     jw_key(w, key);
-    fputs(b, w->f);
+    jw_puts(w, b);
 }
 
 static void jw_int(jw *w, const char *key, long long v)
 {
+    char b[24];
+    int n = snprintf(b, sizeof b, "%lld", v);
     jw_key(w, key);
-    fprintf(w->f, "%lld", v);
+    jw_put(w, b, (size_t)n);
 }
 
 /* A flag member: written only when true. */
@@ -210,7 +252,7 @@ static void jw_true(jw *w, const char *key, bool b)
 {
     if (b) {
         jw_key(w, key);
-        fputs("true", w->f);
+        jw_put(w, "true", 4);
     }
 }
 
@@ -517,9 +559,9 @@ static void record(jw *w, const ps_run *r, const ps_summary *s, size_t rank, con
     if (isfinite(s->severity)) {
         char b[48];
         num_text(b, sizeof b, s->severity);
-        fputs(b, w->f);
+        jw_puts(w, b);
     } else
-        fputs("null", w->f);
+        jw_put(w, "null", 4);
     jw_true(w, "severity_infinite", isinf(s->severity));
     jw_str_or_null(w, "file", s->file_index < r->n_catalogs ? r->catalogs[s->file_index].file : "");
     jw_int(w, "line", (long long)s->line);
@@ -560,12 +602,19 @@ ps_status ps_write_plants_jsonl(FILE *f, const ps_run *r)
     ps_plant_reset(p); /* the requirements an entry gets when it gives none */
     ps_requirements dflt = p->req;
     free(p);
-    jw w = {.f = f};
-    for (size_t i = 0; i < r->n_rows; i++) {
-        w.depth = 0;
-        record(&w, r, ps_run_row(r, i), i + 1, &dflt);
-        if (putc('\n', f) == EOF)
-            return PS_ERR_IO;
+    jw *w = malloc(sizeof *w);
+    if (!w)
+        return PS_ERR_NOMEM;
+    *w = (jw){.f = f};
+    for (size_t i = 0; i < r->n_rows && !w->failed; i++) {
+        w->depth = 0;
+        record(w, r, ps_run_row(r, i), i + 1, &dflt);
+        jw_putc(w, '\n');
+        if (w->len > sizeof w->buf / 2)
+            jw_flush(w);
     }
-    return ferror(f) ? PS_ERR_IO : PS_OK;
+    jw_flush(w);
+    bool failed = w->failed;
+    free(w);
+    return failed || ferror(f) ? PS_ERR_IO : PS_OK;
 }
