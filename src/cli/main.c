@@ -6,7 +6,9 @@
 #include <limits.h>
 #include <locale.h>
 #include <math.h>
+#include <pthread.h>
 #include <signal.h>
+#include <stdatomic.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -131,8 +133,9 @@ static const cli_option screen_opts[] = {
                                           "marginal, a number in (0, 1] (default 0.8)"},
     {"no-files", OPT_NO_FILES, NULL, "print the listing only, write no report files; past\n"
                                      "--memory-rows only the rows it can print are kept"},
-    {"threads", OPT_THREADS, "N", "assess plants on N threads, 1 to 64 (default: the\n"
-                                  "online CPUs); the reports are the same for any N"},
+    {"threads", OPT_THREADS, "N", "assess plants, then write the report files, on N\n"
+                                  "threads, 1 to 64 (default: the online CPUs); the\n"
+                                  "reports are the same for any N"},
     {"quiet", OPT_QUIET, NULL, "no progress line on stderr (shown only on a terminal)"},
     {"show", OPT_SHOW, "N", "rows per section of the listing on stdout (default\n"
                             SHOW_TEXT "; all: every row); the .txt report has them all"},
@@ -462,6 +465,78 @@ static void progress_tick(progress *pg, bool final)
         fputc('\n', stderr);
 }
 
+/* The report files of a screen, written at once on up to `threads` threads
+ * (the calling one among them): each file is one writer over the ranked
+ * run, and the longest go first. */
+typedef struct report_job {
+    const char *name;
+    ps_writer_fn fn;
+    int cost;            /* order of dispatch: 0 first */
+    FILE *f;
+    int slot;
+    ps_report_fill fill;
+} report_job;
+
+typedef struct report_work {
+    report_job **order; /* the jobs, longest first */
+    size_t n;
+    const ps_run *run;
+    atomic_size_t next;
+} report_work;
+
+static void fill_jobs(report_work *w)
+{
+    for (size_t i; (i = atomic_fetch_add(&w->next, 1)) < w->n;)
+        w->order[i]->fill = ps_report_set_fill(w->order[i]->f, w->order[i]->fn, w->run);
+}
+
+typedef struct report_thread {
+    pthread_t tid;
+    report_work *work;
+    bool read_failed;
+} report_thread;
+
+static void *fill_thread(void *arg)
+{
+    report_thread *t = arg;
+    if (ps_run_reader_begin(t->work->run) == PS_OK) /* else the other threads take the files */
+        fill_jobs(t->work);
+    t->read_failed = ps_run_reader_end();
+    return NULL;
+}
+
+static int by_cost(const void *a, const void *b)
+{
+    const report_job *x = *(report_job *const *)a, *y = *(report_job *const *)b;
+    return (x->cost > y->cost) - (x->cost < y->cost);
+}
+
+/* Fill every job's file; returns whether some row could not be read back. */
+static bool fill_reports(report_job *jobs, size_t n, ps_run *run, size_t threads)
+{
+    report_job *order[16];
+    report_thread th[16];
+    assert(n <= 16);
+    for (size_t i = 0; i < n; i++)
+        order[i] = &jobs[i];
+    qsort(order, n, sizeof order[0], by_cost);
+    report_work w = {.order = order, .n = n, .run = run};
+    atomic_init(&w.next, 0);
+    size_t extra = threads > 1 ? (threads - 1 < n ? threads - 1 : n - 1) : 0, started = 0;
+    for (; started < extra; started++) {
+        th[started] = (report_thread){.work = &w};
+        if (pthread_create(&th[started].tid, NULL, fill_thread, &th[started]) != 0)
+            break; /* the threads that started, and this one, do the rest */
+    }
+    fill_jobs(&w);
+    bool read_failed = false;
+    for (size_t i = 0; i < started; i++) {
+        pthread_join(th[i].tid, NULL);
+        read_failed = read_failed || th[i].read_failed;
+    }
+    return read_failed;
+}
+
 typedef struct screen_ctx {
     ps_run run;
     ps_screen_ws *ws;
@@ -785,7 +860,7 @@ static int cmd_screen(int argc, char **argv)
     size_t show = a.show, threads = a.threads;
     if (!files)
         opt.keep_top = show; /* only the cut listing reads the rows (0: all) */
-    char stem[256], name[320], full[PS_SET_PATH + 600];
+    char stem[256], full[PS_SET_PATH + 600];
     stem_of(cats[0], stem, sizeof stem);
     if (files) {
         /* The lock is taken before the work, so a concurrent run is refused at once. */
@@ -833,28 +908,49 @@ static int cmd_screen(int argc, char **argv)
         io_failed = true;
     if (files) {
         /* The whole set is staged, then published at once, or nothing is. */
-        struct { const char *ext; ps_writer_fn fn; } out[] = {
-            {"txt", write_terminal_plain}, {"csv", ps_write_csv}, {"json", ps_write_json},
-            {"md", ps_write_markdown},     {"html", ps_write_html},
-            {"families.csv", ps_write_families_csv}, {"plants.jsonl", ps_write_plants_jsonl},
-            {"junit.xml", ps_write_junit},
+        /* cost: the order in which the files are handed to the threads,
+         * the ones that grow with the run first (the longest first). */
+        struct { const char *ext; ps_writer_fn fn; int cost; } out[] = {
+            {"txt", write_terminal_plain, 2}, {"csv", ps_write_csv, 1}, {"json", ps_write_json, 6},
+            {"md", ps_write_markdown, 5},     {"html", ps_write_html, 4},
+            {"families.csv", ps_write_families_csv, 7}, {"plants.jsonl", ps_write_plants_jsonl, 0},
+            {"junit.xml", ps_write_junit, 3},
         };
         enum { N_OUT = sizeof out / sizeof out[0] };
-        char retired[N_OUT][320];
+        _Static_assert(N_OUT <= 16, "fill_reports takes at most 16 files");
+        char retired[N_OUT][320], names[N_OUT][320];
         const char *retired_names[N_OUT];
+        report_job jobs[N_OUT];
+        size_t n_jobs = 0;
         bool staged = true;
         ps_diag d = {0};
         for (size_t i = 0; i < N_OUT; i++) {
-            snprintf(name, sizeof name, "%s.screen.%s", stem, out[i].ext);
-            snprintf(retired[i], sizeof retired[i], "%s", name); /* the flat layout before sets */
+            snprintf(names[i], sizeof names[i], "%s.screen.%s", stem, out[i].ext);
+            snprintf(retired[i], sizeof retired[i], "%s.screen.%s", stem, out[i].ext); /* the flat layout before sets */
             retired_names[i] = retired[i];
             if (!staged || (out[i].fn == ps_write_families_csv && c.run.n_families == 0))
                 continue;
-            if (ps_report_set_write(&screen_set, name, out[i].fn, &c.run, &d) != PS_OK) {
+            report_job *j = &jobs[n_jobs];
+            *j = (report_job){.name = names[i], .fn = out[i].fn, .cost = out[i].cost};
+            if (ps_report_set_create(&screen_set, j->name, &j->f, &j->slot, &d) != PS_OK) {
+                fprintf(stderr, "plantsieve: %s\n", d.text);
+                staged = false;
+            } else
+                n_jobs++;
+        }
+        if (staged) {
+            if (fill_reports(jobs, n_jobs, &c.run, threads))
+                ps_run_mark_failed(&c.run);
+        } else
+            for (size_t i = 0; i < n_jobs; i++) { /* not written: the set is dropped */
+                fclose(jobs[i].f);
+                jobs[i].fill = (ps_report_fill){PS_ERR_IO, ECANCELED};
+            }
+        for (size_t i = 0; i < n_jobs; i++)
+            if (ps_report_set_finish(&screen_set, jobs[i].slot, jobs[i].name, jobs[i].fill, &d) != PS_OK && staged) {
                 fprintf(stderr, "plantsieve: %s\n", d.text);
                 staged = false;
             }
-        }
         if (staged && ps_run_failed(&c.run)) {
             fputs("plantsieve: the temporary summary file could not be written or read\n", stderr);
             staged = false;

@@ -153,8 +153,10 @@ static ps_status staging_make(ps_report_set *s, ps_diag *d)
     return PS_OK;
 }
 
-ps_status ps_report_set_write(ps_report_set *s, const char *name, ps_writer_fn fn, const ps_run *r, ps_diag *d)
+ps_status ps_report_set_create(ps_report_set *s, const char *name, FILE **f, int *slot, ps_diag *d)
 {
+    *f = NULL;
+    *slot = -1;
     if (s->lock_fd < 0)
         return ps_diag_set(d, PS_ERR_IO, 0, 0, "", "%s: the report set is not open", s->published);
     if (!s->has_staging) {
@@ -170,27 +172,56 @@ ps_status ps_report_set_write(ps_report_set *s, const char *name, ps_writer_fn f
         return ps_diag_set(d, PS_ERR_IO, 0, 0, "", "%s/%s: path too long", s->staging, name);
     s->n_staged = s->n_staged + 1; /* counted before it exists: a handler may remove it any time */
     int fd = open(path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, file_mode(0666));
-    FILE *f = fd < 0 ? NULL : fdopen(fd, "w");
-    int e = errno;
-    ps_status st = PS_ERR_IO;
-    if (f) {
-        st = fn(f, r);
-        if (st == PS_OK && (fflush(f) != 0 || ferror(f) || fsync(fileno(f)) != 0))
-            st = PS_ERR_IO;
-        e = errno;
-        if (fclose(f) != 0 && st == PS_OK) {
-            st = PS_ERR_IO;
-            e = errno;
-        }
-    } else if (fd >= 0)
-        close(fd);
-    if (st != PS_OK) {
+    *f = fd < 0 ? NULL : fdopen(fd, "w");
+    if (!*f) {
+        int e = errno;
+        if (fd >= 0)
+            close(fd);
         unlink(path);
         s->n_staged = s->n_staged - 1;
-        return ps_diag_set(d, st, 0, 0, "", "cannot write %s: %s", name,
-                           st == PS_ERR_NOMEM ? "out of memory" : strerror(e));
+        return ps_diag_set(d, PS_ERR_IO, 0, 0, "", "cannot write %s: %s", name, strerror(e));
     }
+    *slot = s->n_staged - 1;
     return PS_OK;
+}
+
+ps_report_fill ps_report_set_fill(FILE *f, ps_writer_fn fn, const ps_run *r)
+{
+    ps_report_fill out = {fn(f, r), 0};
+    if (out.status != PS_OK)
+        out.err = errno;
+    else if (fflush(f) != 0 || ferror(f) || fsync(fileno(f)) != 0)
+        out = (ps_report_fill){PS_ERR_IO, errno};
+    if (fclose(f) != 0 && out.status == PS_OK)
+        out = (ps_report_fill){PS_ERR_IO, errno};
+    return out;
+}
+
+ps_status ps_report_set_finish(ps_report_set *s, int slot, const char *name, ps_report_fill fill, ps_diag *d)
+{
+    if (fill.status == PS_OK)
+        return PS_OK;
+    /* Removed now; the slot stays counted (release removes what it names
+     * again, harmlessly), since later files may be staged after it. */
+    if (slot >= 0 && slot < PS_SET_FILES)
+        unlink(s->staged[slot]);
+    return ps_diag_set(d, fill.status, 0, 0, "", "cannot write %s: %s", name,
+                       fill.status == PS_ERR_NOMEM ? "out of memory" : strerror(fill.err));
+}
+
+ps_status ps_report_set_write(ps_report_set *s, const char *name, ps_writer_fn fn, const ps_run *r, ps_diag *d)
+{
+    FILE *f;
+    int slot;
+    ps_status st = ps_report_set_create(s, name, &f, &slot, d);
+    if (st != PS_OK)
+        return st;
+    ps_report_fill fill = ps_report_set_fill(f, fn, r);
+    if (fill.status != PS_OK && slot == s->n_staged - 1) {
+        unlink(s->staged[slot]);
+        s->n_staged = s->n_staged - 1; /* the last one: no longer counted */
+    }
+    return ps_report_set_finish(s, slot, name, fill, d);
 }
 
 static void dir_sync(const char *path)

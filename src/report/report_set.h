@@ -54,6 +54,21 @@ ps_status ps_report_set_open(ps_report_set *s, const char *dir, const char *stem
  * removed; the published set is untouched. */
 ps_status ps_report_set_write(ps_report_set *s, const char *name, ps_writer_fn fn, const ps_run *r, ps_diag *d);
 
+/* The same in three steps, so that several files can be written at once:
+ * ps_report_set_create makes the file `name` in the staging directory and
+ * opens it (*f; *slot names it for ps_report_set_finish); ps_report_set_fill
+ * runs fn into it and closes it (flushed and synced), touching nothing
+ * else of s, so fills of different files may run in different threads;
+ * ps_report_set_finish, called in the creating thread after the fill,
+ * removes the file when the fill failed and says why in d. */
+ps_status ps_report_set_create(ps_report_set *s, const char *name, FILE **f, int *slot, ps_diag *d);
+typedef struct ps_report_fill {
+    ps_status status;
+    int err;          /* errno of the failure (status PS_ERR_IO) */
+} ps_report_fill;
+ps_report_fill ps_report_set_fill(FILE *f, ps_writer_fn fn, const ps_run *r);
+ps_status ps_report_set_finish(ps_report_set *s, int slot, const char *name, ps_report_fill fill, ps_diag *d);
+
 /* Publish the staged files as DIR/<stem>.screen in one step, remove the
  * previous set, then remove the files named in `retired` (plain names
  * directly in DIR: what an earlier layout wrote for this stem; missing ones

@@ -1286,23 +1286,50 @@ ps_status ps_run_put(ps_run *r, ps_summary *s)
  * plants with nothing binding) follow each other in the file, so a record
  * that starts where the last one ended is read with a window of the records
  * after it; any other is read alone. NULL when the file cannot be read. */
-static const unsigned char *record_at(ps_run_store *st, const ps_rank_key *key)
+/* pread only: the file's offset is not moved, so threads may read at once. */
+static const unsigned char *record_at(const ps_run_store *st, ps_run_cursor *c, const ps_rank_key *key)
 {
-    bool next = key->at == st->last_end;
-    st->last_end = key->at + key->len;
-    if (key->at >= st->win_at && key->at + key->len <= st->win_at + st->win_len)
-        return st->window + (key->at - st->win_at);
+    bool next = key->at == c->last_end;
+    c->last_end = key->at + key->len;
+    if (key->at >= c->win_at && key->at + key->len <= c->win_at + c->win_len)
+        return c->window + (key->at - c->win_at);
     if (next && key->len <= PS_RUN_WINDOW) {
-        ssize_t got = pread(fileno(st->file), st->window, PS_RUN_WINDOW, (off_t)key->at);
+        ssize_t got = pread(fileno(st->file), c->window, PS_RUN_WINDOW, (off_t)key->at);
         if (got < (ssize_t)key->len)
             return NULL;
-        st->win_at = key->at;
-        st->win_len = (size_t)got;
-        return st->window;
+        c->win_at = key->at;
+        c->win_len = (size_t)got;
+        return c->window;
     }
-    if (pread(fileno(st->file), st->scratch, key->len, (off_t)key->at) != (ssize_t)key->len)
+    if (pread(fileno(st->file), c->scratch, key->len, (off_t)key->at) != (ssize_t)key->len)
         return NULL;
-    return st->scratch;
+    return c->scratch;
+}
+
+/* The cursor of a thread that reads beside others (NULL: the store's own). */
+static _Thread_local ps_run_cursor *thread_cursor;
+
+ps_status ps_run_reader_begin(const ps_run *r)
+{
+    thread_cursor = NULL;
+    if (!r->store)
+        return PS_OK; /* rows in memory: nothing to keep per thread */
+    thread_cursor = calloc(1, sizeof *thread_cursor);
+    return thread_cursor ? PS_OK : PS_ERR_NOMEM;
+}
+
+bool ps_run_reader_end(void)
+{
+    bool failed = thread_cursor && thread_cursor->failed;
+    free(thread_cursor);
+    thread_cursor = NULL;
+    return failed;
+}
+
+void ps_run_mark_failed(ps_run *r)
+{
+    if (r->store)
+        r->store->failed = true;
 }
 
 const ps_summary *ps_run_row(const ps_run *r, size_t i)
@@ -1310,12 +1337,16 @@ const ps_summary *ps_run_row(const ps_run *r, size_t i)
     ps_run_store *st = r->store;
     if (!st)
         return &r->rows[i];
-    ps_summary *s = &st->ring[st->ring_pos];
-    st->ring_pos = (st->ring_pos + 1) % PS_RUN_RING;
+    ps_run_cursor *c = thread_cursor ? thread_cursor : &st->cur;
+    ps_summary *s = &c->ring[c->ring_pos];
+    c->ring_pos = (c->ring_pos + 1) % PS_RUN_RING;
     const ps_rank_key *key = &st->keys[i];
-    const unsigned char *rec = !st->file ? (key->len ? st->slot[key->at] : NULL) : record_at(st, key);
+    const unsigned char *rec = !st->file ? (key->len ? st->slot[key->at] : NULL) : record_at(st, c, key);
     if (!rec || !unpack_summary(rec, key->len, s)) {
-        st->failed = true;
+        if (c == &st->cur)
+            st->failed = true;
+        else
+            c->failed = true;
         memset(s, 0, sizeof *s);
         snprintf(s->id, sizeof s->id, "(row %zu lost: spill file unreadable)", i);
         s->verdict = PS_VERDICT_UNREAD;

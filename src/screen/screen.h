@@ -188,19 +188,27 @@ typedef struct ps_rank_key {
     int16_t verdict;            /* the row's verdict (a ps_verdict), for ps_run_verdict */
 } ps_rank_key;
 
+/* What reading rows back takes: the store has one, and so has each thread
+ * that reads rows beside others (ps_run_reader_begin). */
+typedef struct ps_run_cursor {
+    uint64_t last_end;          /* where the record read last ends */
+    uint64_t win_at;            /* file offset of window[0] */
+    size_t win_len;             /* bytes in window (0: none) */
+    unsigned char window[PS_RUN_WINDOW]; /* records read ahead */
+    unsigned char scratch[sizeof(ps_summary)]; /* a record being read */
+    ps_summary ring[PS_RUN_RING]; /* rows read back for ps_run_row */
+    size_t ring_pos;
+    bool failed;                /* a read failed (a thread's own cursor) */
+} ps_run_cursor;
+
 typedef struct ps_run_store {
     FILE *file;                 /* NULL while every row is in memory */
     char *file_buf;             /* stdio buffer of file (PS_RUN_WRITE_BUF bytes) */
     ps_rank_key *keys;          /* one per row (spilled runs), ranked by ps_run_rank */
     size_t cap_keys;
     uint64_t end;               /* bytes written */
-    uint64_t last_end;          /* where the record read last ends */
-    uint64_t win_at;            /* file offset of window[0] */
-    size_t win_len;             /* bytes in window (0: none) */
-    unsigned char window[PS_RUN_WINDOW]; /* records read ahead */
-    unsigned char scratch[sizeof(ps_summary)]; /* a record being written or read */
-    ps_summary ring[PS_RUN_RING]; /* rows read back for ps_run_row */
-    size_t ring_pos;
+    ps_run_cursor cur;          /* the reading of the thread that ranked the run */
+    unsigned char scratch[sizeof(ps_summary)]; /* a record being written */
     bool failed;                /* a write or read of the file failed */
     /* keep_top runs (no file): records in slots (key.at = slot, len 0 when
      * dropped); per list (ranking, redesign, passing, input errors, needs-bandwidth) a heap
@@ -252,8 +260,17 @@ void ps_run_commit(ps_run *r);
  * the caller's). May move the run to its file. */
 ps_status ps_run_put(ps_run *r, ps_summary *s);
 /* Row i (ranked after ps_run_rank). In a spilled run the pointer is valid
- * for the next PS_RUN_RING - 1 calls. */
+ * for the next PS_RUN_RING - 1 calls of the same thread. Once ranked, a run
+ * may be read by several threads at once: each thread but the one that
+ * ranked it brackets its reading with ps_run_reader_begin and
+ * ps_run_reader_end (its own read-ahead window and rows). */
 const ps_summary *ps_run_row(const ps_run *r, size_t i);
+/* PS_OK or PS_ERR_NOMEM. */
+ps_status ps_run_reader_begin(const ps_run *r);
+/* Whether a read of this thread failed (its rows then say so); after the
+ * threads are joined, ps_run_mark_failed(r) records it for ps_run_failed. */
+bool ps_run_reader_end(void);
+void ps_run_mark_failed(ps_run *r);
 /* The verdict of row i (ranked), without reading the row back. */
 ps_verdict ps_run_verdict(const ps_run *r, size_t i);
 /* A spill file could not be written or read: the reports are incomplete. */

@@ -243,13 +243,19 @@ for t in 1 5; do
     "$ps" screen --no-files --gate never --show 3 --memory-rows 2 --threads $t "$demo" "$broken" >"$tmp/keep-t$t.out" 2>&1
 done
 same_run "$tmp/keep-t1.out" "$tmp/keep-t5.out"; check "screen --no-files keep mode: same listing on 1 and 5 threads" 0 $?
-# Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte.
-"$ps" screen --memory-rows 3 -o "$tmp/spill" --gate never "$src/catalogs/demo-variants.yaml" >"$tmp/spill.out" 2>&1
-check "screen --memory-rows 3" 0 $?
-same_run "$tmp/thr1.out" "$tmp/spill.out"; check "screen: stdout same with summaries on file" 0 $?
-for ext in txt csv json md html families.csv plants.jsonl junit.xml; do
-    same_run "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" "$tmp/spill/demo-variants.screen/demo-variants.screen.$ext"
-    check "screen: $ext same with summaries on file" 0 $?
+# Summaries beyond --memory-rows go to a temporary file: the same reports, byte for byte,
+# whether the report files are written on one thread or on five at once (each thread
+# reading the summaries back on its own).
+for t in 1 5; do
+    "$ps" screen --memory-rows 3 --threads $t -o "$tmp/spill$t" --gate never "$src/catalogs/demo-variants.yaml" \
+        >"$tmp/spill$t.out" 2>&1
+    check "screen --memory-rows 3 --threads $t" 0 $?
+    same_run "$tmp/thr1.out" "$tmp/spill$t.out"; check "screen: stdout same with summaries on file ($t threads)" 0 $?
+    for ext in txt csv json md html families.csv plants.jsonl junit.xml; do
+        same_run "$tmp/thr1/demo-variants.screen/demo-variants.screen.$ext" \
+            "$tmp/spill$t/demo-variants.screen/demo-variants.screen.$ext"
+        check "screen: $ext same with summaries on file ($t threads)" 0 $?
+    done
 done
 # Families: a CSV of the studies next to the other reports, only when the run has families.
 "$py" - "$tmp/thr1/demo-variants.screen/demo-variants.screen.families.csv" "$tmp/thr1/demo-variants.screen/demo-variants.screen.json" <<'PY'
