@@ -85,6 +85,8 @@ struct ps_batch {
     ps_batch_counts counts;
     const char *file;
     bool defer;      /* the sink analyses checked plants itself */
+    size_t seq;      /* entries seen so far (the next entry's seq) */
+    size_t shard_k, shard_n; /* deliver only seq % shard_n == shard_k */
     char title[PS_NOTE_MAX]; /* the last catalog's title */
 };
 
@@ -95,6 +97,7 @@ ps_batch *ps_batch_new(ps_outcome_fn fn, void *ctx)
         return NULL;
     b->fn = fn;
     b->ctx = ctx;
+    b->shard_n = 1;
     b->scratch = malloc(sizeof *b->scratch);
     b->ws = ps_roots_ws_new();
     b->lws = ps_limits_ws_new();
@@ -116,52 +119,67 @@ void ps_batch_free(ps_batch *b)
     free(b);
 }
 
-static void deliver_error(ps_batch *b, ps_plant *p, const ps_diag *err)
+/* The entry that takes the next seq: whether this shard delivers it. */
+static bool next_mine(ps_batch *b, size_t *seq)
+{
+    *seq = b->seq++;
+    bool mine = *seq % b->shard_n == b->shard_k;
+    if (mine)
+        b->counts.entries++;
+    return mine;
+}
+
+static void deliver_error(ps_batch *b, ps_plant *p, const ps_diag *err, size_t seq)
 {
     b->counts.errors++;
-    ps_outcome o = {b->file, p, NULL, NULL, err};
+    ps_outcome o = {b->file, p, NULL, NULL, err, seq};
     b->fn(b->ctx, &o);
 }
 
 static int on_entry(void *ctx, ps_plant *p, const ps_diag *err)
 {
     ps_batch *b = ctx;
-    b->counts.entries++;
+    size_t seq;
+    bool mine = next_mine(b, &seq);
     if (err) {
-        deliver_error(b, p, err);
+        if (mine)
+            deliver_error(b, p, err, seq);
         return 0;
     }
     ps_diag d = {0};
     if (ps_plant_check(p, &d) != PS_OK) {
-        deliver_error(b, p, &d);
+        if (mine)
+            deliver_error(b, p, &d, seq);
         return 0;
     }
     int fresh = idset_add(&b->ids, p->id);
+    if (!mine)
+        return 0; /* the id is remembered: a later duplicate in this shard is found */
     if (fresh <= 0) {
         ps_diag_set(&d, fresh < 0 ? PS_ERR_NOMEM : PS_ERR_INPUT, p->field_line[PS_F_ID],
                     p->field_col[PS_F_ID], "id",
                     fresh < 0 ? "out of memory" : "duplicate id '%s': ids must be unique in a run", p->id);
-        deliver_error(b, p, &d);
+        deliver_error(b, p, &d, seq);
         return 0;
     }
     if (b->defer) {
         b->counts.models++;
-        ps_outcome o = {b->file, p, NULL, NULL, NULL};
+        ps_outcome o = {b->file, p, NULL, NULL, NULL, seq};
         b->fn(b->ctx, &o);
         return 0;
     }
     if (ps_roots_analyse(b->ws, p, &b->an, &d) != PS_OK) {
-        deliver_error(b, p, &d);
+        deliver_error(b, p, &d, seq);
         return 0;
     }
     ps_floors_compute(b->lws, &b->an, &p->req, &b->fl);
     if (ps_floors_formed(&b->an, &b->fl, p->field_line[PS_F_SAMPLE_RATE] ? p->field_line[PS_F_SAMPLE_RATE] : p->line,
                          &d) != PS_OK) {
-        deliver_error(b, p, &d);
+        deliver_error(b, p, &d, seq);
         return 0;
     }
     b->counts.models++;
-    ps_outcome o = {b->file, p, &b->an, &b->fl, NULL};
+    ps_outcome o = {b->file, p, &b->an, &b->fl, NULL, seq};
     b->fn(b->ctx, &o);
     return 0;
 }
@@ -174,27 +192,28 @@ static int on_family(void *ctx, const ps_ynode *node, const ps_plant *defaults)
     ps_batch *b = ctx;
     ps_family *fam = malloc(sizeof *fam);
     ps_diag d = {0};
+    size_t seq;
     if (!fam) {
-        b->counts.entries++;
         ps_plant_reset(b->scratch);
         ps_diag_set(&d, PS_ERR_NOMEM, node->line, node->col, "", "out of memory for a family");
-        deliver_error(b, b->scratch, &d);
+        if (next_mine(b, &seq))
+            deliver_error(b, b->scratch, &d, seq);
         return 0;
     }
     if (ps_family_parse(fam, node, defaults, &d) != PS_OK) {
-        b->counts.entries++;
         ps_plant_reset(b->scratch);
         snprintf(b->scratch->id, sizeof b->scratch->id, "%s", fam->id);
         b->scratch->line = node->line;
-        deliver_error(b, b->scratch, &d);
+        if (next_mine(b, &seq))
+            deliver_error(b, b->scratch, &d, seq);
     } else {
         size_t n = ps_family_grid_size(fam);
         double values[PS_FAM_PARAMS];
         for (size_t k = 0; k < n; k++) {
             ps_family_grid_point(fam, k, values);
             if (ps_family_eval(fam, values, false, b->scratch, &d) != PS_OK) {
-                b->counts.entries++;
-                deliver_error(b, b->scratch, &d);
+                if (next_mine(b, &seq))
+                    deliver_error(b, b->scratch, &d, seq);
             } else
                 on_entry(b, b->scratch, NULL);
         }
@@ -214,6 +233,17 @@ void ps_batch_defer_analysis(ps_batch *b, bool defer)
 void ps_batch_on_family(ps_batch *b, ps_family_done_fn fn)
 {
     b->family_fn = fn;
+}
+
+void ps_batch_shard(ps_batch *b, size_t k, size_t n)
+{
+    b->shard_n = n ? n : 1;
+    b->shard_k = k < b->shard_n ? k : 0;
+}
+
+size_t ps_batch_seen(const ps_batch *b)
+{
+    return b->seq;
 }
 
 ps_status ps_batch_run(ps_batch *b, const char *path, ps_diag *fdiag)

@@ -21,12 +21,13 @@ typedef struct ps_outcome {
     const ps_analysis *an;   /* NULL when err is set or the analysis is deferred */
     const ps_floors *fl;     /* NULL when an is */
     const ps_diag *err;
+    size_t seq;              /* the entry's place among every entry of the batch (0-based, errors too) */
 } ps_outcome;
 
 typedef void (*ps_outcome_fn)(void *ctx, const ps_outcome *o);
 
 typedef struct ps_batch_counts {
-    size_t entries, models, errors;   /* invariant: entries == models + errors */
+    size_t entries, models, errors;   /* invariant: entries == models + errors (of a shard: its own entries) */
     size_t files_failed;              /* catalogs that could not be opened or parsed to the end */
 } ps_batch_counts;
 
@@ -54,5 +55,15 @@ void ps_batch_defer_analysis(ps_batch *b, bool defer);
  * the boundary and yield studies. file is the catalog. Optional. */
 typedef void (*ps_family_done_fn)(void *ctx, ps_family *fam, const char *file);
 void ps_batch_on_family(ps_batch *b, ps_family_done_fn fn);
+
+/* Deliver and count only the entries whose seq % n == k (0 <= k < n): one
+ * shard of a run split over n processes. Every entry is still read and
+ * checked and its id remembered, so a duplicate id is found whichever shard
+ * holds the first one, and seq is the same in every shard. Families are
+ * handed to the family function in every shard. Default: k = 0, n = 1. */
+void ps_batch_shard(ps_batch *b, size_t k, size_t n);
+
+/* Entries read so far in all (every shard counts them all). */
+size_t ps_batch_seen(const ps_batch *b);
 
 #endif

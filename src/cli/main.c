@@ -593,6 +593,7 @@ static void screen_entry(void *ctx, const ps_outcome *o)
         c->nomem = true;
         return;
     }
+    s->order = o->seq;
     ps_screen_assess(c->ws, o, &c->run.opt, s);
     ps_run_commit(&c->run);
     c->found++;

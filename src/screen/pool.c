@@ -30,6 +30,7 @@ typedef struct job {
     bool analysis_err;   /* the latter */
     const char *file;
     size_t file_index;
+    size_t seq;          /* the entry's place in the run (the row's order) */
     ps_summary s;
 } job;
 
@@ -72,7 +73,7 @@ typedef struct worker_arg {
 
 static void run_job(ps_pool *p, lane *ln, job *jb)
 {
-    ps_outcome o = {jb->file, &jb->p, NULL, NULL, NULL};
+    ps_outcome o = {jb->file, &jb->p, NULL, NULL, NULL, jb->seq};
     if (!jb->has_err) {
         memset(&jb->err, 0, sizeof jb->err);
         if (ps_roots_analyse(ln->rws, &jb->p, &ln->an, &jb->err) == PS_OK) {
@@ -89,6 +90,7 @@ static void run_job(ps_pool *p, lane *ln, job *jb)
     if (jb->has_err)
         o.err = &jb->err;
     jb->s.file_index = jb->file_index;
+    jb->s.order = jb->seq;
     ps_screen_assess(ln->sws, &o, &p->run->opt, &jb->s);
 }
 
@@ -301,6 +303,7 @@ ps_status ps_pool_add(ps_pool *p, const ps_outcome *o)
     job *jb = &p->chunk[p->cur][p->fill++];
     ps_plant_copy(&jb->p, o->p);
     jb->file = o->file;
+    jb->seq = o->seq;
     jb->file_index = p->run->n_catalogs ? p->run->n_catalogs - 1 : 0;
     jb->has_err = o->err != NULL;
     jb->analysis_err = false;

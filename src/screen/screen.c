@@ -1275,7 +1275,6 @@ ps_status ps_run_put(ps_run *r, ps_summary *s)
     ps_status st = reserve(r, 1);
     if (st != PS_OK)
         return st;
-    s->order = r->n_rows;
     if (!r->store)
         *staged(r) = *s;
     keep_row(r, s);

@@ -256,8 +256,9 @@ bool ps_run_meta_date(ps_run_meta *m, const char *epoch, const char **why);
 /* Room for the next summary (NULL on no memory); ps_run_commit keeps it. */
 ps_summary *ps_run_next(ps_run *r);
 void ps_run_commit(ps_run *r);
-/* Keep a copy of s as the next row (its order is set here; file_index is
- * the caller's). May move the run to its file. */
+/* Keep a copy of s as the next row (order and file_index are the
+ * caller's: order is the entry's place in the whole run, ps_outcome.seq,
+ * which ranks ties). May move the run to its file. */
 ps_status ps_run_put(ps_run *r, ps_summary *s);
 /* Row i (ranked after ps_run_rank). In a spilled run the pointer is valid
  * for the next PS_RUN_RING - 1 calls of the same thread. Once ranked, a run

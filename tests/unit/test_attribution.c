@@ -180,7 +180,7 @@ Test(attribution, random_corpus_causes_match_recomputed_counterfactuals)
         spec s;
         draw(r, &s);
         analyse(&s, &p, &an, &fl);
-        ps_outcome o = {"corpus", &p, &an, &fl, NULL};
+        ps_outcome o = {"corpus", &p, &an, &fl, NULL, 0};
         memset(&sum, 0, sizeof sum);
         ps_screen_assess(sws, &o, &opt, &sum);
         const ps_attribution *a = &sum.attr;

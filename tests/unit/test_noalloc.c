@@ -171,7 +171,7 @@ Test(noalloc, per_plant_path_allocates_nothing)
             ps_status st = ps_roots_analyse(rws, scratch, &an, &d);
             if (st == PS_OK) {
                 ps_floors_compute(lws, &an, &scratch->req, &fl);
-                ps_outcome o = {"demo", scratch, &an, &fl, NULL};
+                ps_outcome o = {"demo", scratch, &an, &fl, NULL, 0};
                 ps_screen_assess(sws, &o, &opt, &s);
             }
             counting = 0;

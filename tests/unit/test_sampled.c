@@ -211,7 +211,7 @@ Test(sampled, lowest_rate_target_matches_the_closed_form)
     ps_floors_compute(lws, &an, &loose, &fl);
     ps_screen_ws *ws = ps_screen_ws_new();
     ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT};
-    ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL};
+    ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL, 0};
     plant.req = loose;
     static ps_summary s;
     ps_screen_assess(ws, &o, &opt, &s);
@@ -242,7 +242,7 @@ Test(sampled, pathological_rate_makes_the_rate_target_not_monotone)
     ps_floors_compute(lws, &an, &q, &fl);
     ps_screen_ws *ws = ps_screen_ws_new();
     ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT};
-    ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL};
+    ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL, 0};
     static ps_summary s;
     ps_screen_assess(ws, &o, &opt, &s);
     ps_screen_ws_free(ws);
@@ -269,7 +269,7 @@ Test(sampled, sample_rate_judges_an_unstable_plant_without_rolloff)
         held(&(ps_cplx){2.71, 0}, 1, NULL, 0, 1.0, 0.0, sampled ? 0.0037 : 0.0, sampled ? 0.0037 : 0.0);
         plant.req = loose;
         ps_floors_compute(lws, &an, &loose, &fl);
-        ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL};
+        ps_outcome o = {"t.yaml", &plant, &an, &fl, NULL, 0};
         ps_screen_assess(ws, &o, &opt, &s);
         if (sampled)
             cr_expect_eq(s.verdict, PS_VERDICT_CLEAR, "sampled: %s (%s)", ps_verdict_name(s.verdict), s.cause);
