@@ -5,6 +5,7 @@
 #include "screen/study.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -318,55 +319,146 @@ static double draw(ps_yield_sampler *rng, const ps_fam_param *par, size_t *rejec
 
 /* Sample s draws its values from a stream of its own that depends on (seed,
  * s) only (src/family/yield.c), in parameter order: the same seed gives the
- * same units in any order or on any number of threads. A unit whose model
- * cannot be evaluated is invalid: counted apart, in no share. */
-static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_yield *y)
+ * same units in any order, on any number of threads or shards. A unit whose
+ * model cannot be evaluated is invalid: counted apart, in no share. The
+ * blocks k, k + n, k + 2n, ... of PS_YIELD_BLOCK samples go into t. */
+static ps_status yield_blocks(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, size_t k, size_t n,
+                              ps_yield_tally *t)
+{
+    size_t n_blocks = (fam->samples + PS_YIELD_BLOCK - 1) / PS_YIELD_BLOCK;
+    for (size_t blk = k; blk < n_blocks; blk += n) {
+        if (t->n_blocks == t->cap_blocks) {
+            size_t cap = t->cap_blocks ? 2 * t->cap_blocks : 16;
+            ps_yield_block *nb = realloc(t->blocks, cap * sizeof *nb);
+            if (!nb)
+                return PS_ERR_NOMEM;
+            t->blocks = nb;
+            t->cap_blocks = cap;
+        }
+        ps_yield_block *bl = &t->blocks[t->n_blocks++];
+        memset(bl, 0, sizeof *bl);
+        bl->block = blk;
+        size_t end = (blk + 1) * PS_YIELD_BLOCK < fam->samples ? (blk + 1) * PS_YIELD_BLOCK : fam->samples;
+        for (size_t s = blk * PS_YIELD_BLOCK; s < end; s++) {
+            double values[PS_FAM_PARAMS];
+            ps_diag sd = {0};
+            ps_yield_sampler_start(ws->rng, fam->seed, s, &sd); /* s < 1e6: always in range */
+            int lost = -1; /* a ranged parameter with no draw inside its range */
+            for (size_t i = 0; i < fam->n_params; i++) {
+                values[i] = draw(ws->rng, &fam->param[i], &t->redrawn[i]);
+                if (isnan(values[i]) && lost < 0)
+                    lost = (int)i;
+                if (fam->param[i].tol != PS_TOL_NONE && !isnan(values[i])) {
+                    t->drawn_min[i] = fmin(t->drawn_min[i], values[i]);
+                    t->drawn_max[i] = fmax(t->drawn_max[i], values[i]);
+                }
+            }
+            point pt;
+            char why[PS_DIAG_TEXT];
+            if (lost >= 0)
+                snprintf(why, sizeof why, "%s[unit %zu]: '%s': no draw inside its range in %d tries", fam->id, s,
+                         fam->param[lost].name, PS_FAM_TRIES);
+            if (lost >= 0 || !evaluate(ws, fam, values, opt, &pt, why, sizeof why)) {
+                if (!t->invalid++) { /* blocks go up: the first here is the first of this tally */
+                    t->first_error_at = s;
+                    snprintf(t->first_error, sizeof t->first_error, "%s", why);
+                }
+                continue;
+            }
+            t->count[pt.verdict]++;
+            double *sum = pt.pass ? bl->sum_pass : bl->sum_fail;
+            for (size_t i = 0; i < fam->n_params; i++)
+                sum[i] += values[i];
+            if (pt.pass)
+                t->n_pass++;
+            else
+                t->n_fail++;
+        }
+    }
+    return PS_OK;
+}
+
+void ps_yield_tally_init(ps_yield_tally *t)
+{
+    memset(t, 0, sizeof *t);
+    t->first_error_at = SIZE_MAX;
+    for (size_t i = 0; i < PS_FAM_PARAMS; i++) {
+        t->drawn_min[i] = INFINITY;
+        t->drawn_max[i] = -INFINITY;
+    }
+}
+
+void ps_yield_tally_free(ps_yield_tally *t)
+{
+    if (t) {
+        free(t->blocks);
+        t->blocks = NULL;
+        t->n_blocks = t->cap_blocks = 0;
+    }
+}
+
+static int by_block(const void *a, const void *b)
+{
+    const ps_yield_block *x = a, *y = b;
+    return x->block < y->block ? -1 : x->block > y->block;
+}
+
+ps_status ps_yield_tally_add(ps_yield_tally *into, const ps_yield_tally *part)
+{
+    if (part->n_blocks) {
+        size_t n = into->n_blocks + part->n_blocks;
+        if (n > into->cap_blocks) {
+            ps_yield_block *nb = realloc(into->blocks, n * sizeof *nb);
+            if (!nb)
+                return PS_ERR_NOMEM;
+            into->blocks = nb;
+            into->cap_blocks = n;
+        }
+        memcpy(into->blocks + into->n_blocks, part->blocks, part->n_blocks * sizeof *part->blocks);
+        into->n_blocks = n;
+        qsort(into->blocks, n, sizeof *into->blocks, by_block);
+    }
+    for (int v = 0; v < PS_VERDICT_COUNT; v++)
+        into->count[v] += part->count[v];
+    into->n_pass += part->n_pass;
+    into->n_fail += part->n_fail;
+    for (size_t i = 0; i < PS_FAM_PARAMS; i++) {
+        into->redrawn[i] += part->redrawn[i];
+        into->drawn_min[i] = fmin(into->drawn_min[i], part->drawn_min[i]);
+        into->drawn_max[i] = fmax(into->drawn_max[i], part->drawn_max[i]);
+    }
+    if (part->invalid && part->first_error_at < into->first_error_at) {
+        into->first_error_at = part->first_error_at;
+        memcpy(into->first_error, part->first_error, sizeof into->first_error);
+    }
+    into->invalid += part->invalid;
+    return PS_OK;
+}
+
+void ps_yield_finish(const ps_fam_param *param, size_t n_params, size_t samples, unsigned long seed,
+                     const ps_yield_tally *t, ps_yield *y)
 {
     memset(y, 0, sizeof *y);
-    y->samples = fam->samples;
-    y->seed = fam->seed;
+    y->samples = samples;
+    y->seed = seed;
     y->culprit = -1;
     y->culprit_shift = NAN;
-    for (size_t i = 0; i < PS_FAM_PARAMS; i++) {
-        y->drawn_min[i] = INFINITY;
-        y->drawn_max[i] = -INFINITY;
-    }
+    memcpy(y->count, t->count, sizeof y->count);
+    memcpy(y->redrawn, t->redrawn, sizeof y->redrawn);
+    memcpy(y->drawn_min, t->drawn_min, sizeof y->drawn_min);
+    memcpy(y->drawn_max, t->drawn_max, sizeof y->drawn_max);
+    y->invalid = t->invalid;
+    if (t->invalid)
+        memcpy(y->first_error, t->first_error, sizeof y->first_error);
+    /* block by block, in block order: the same additions however the blocks were shared out */
     double sum_fail[PS_FAM_PARAMS] = {0}, sum_pass[PS_FAM_PARAMS] = {0};
-    size_t n_fail = 0, n_pass = 0;
-    for (size_t s = 0; s < fam->samples; s++) {
-        double values[PS_FAM_PARAMS];
-        ps_diag sd = {0};
-        ps_yield_sampler_start(ws->rng, fam->seed, s, &sd); /* s < 1e6: always in range */
-        int lost = -1; /* a ranged parameter with no draw inside its range */
-        for (size_t i = 0; i < fam->n_params; i++) {
-            values[i] = draw(ws->rng, &fam->param[i], &y->redrawn[i]);
-            if (isnan(values[i]) && lost < 0)
-                lost = (int)i;
-            if (fam->param[i].tol != PS_TOL_NONE && !isnan(values[i])) {
-                y->drawn_min[i] = fmin(y->drawn_min[i], values[i]);
-                y->drawn_max[i] = fmax(y->drawn_max[i], values[i]);
-            }
+    for (size_t b = 0; b < t->n_blocks; b++)
+        for (size_t i = 0; i < n_params; i++) {
+            sum_fail[i] += t->blocks[b].sum_fail[i];
+            sum_pass[i] += t->blocks[b].sum_pass[i];
         }
-        point pt;
-        char why[PS_DIAG_TEXT];
-        if (lost >= 0)
-            snprintf(why, sizeof why, "%s[unit %zu]: '%s': no draw inside its range in %d tries", fam->id, s,
-                     fam->param[lost].name, PS_FAM_TRIES);
-        if (lost >= 0 || !evaluate(ws, fam, values, opt, &pt, why, sizeof why)) {
-            if (!y->invalid++)
-                snprintf(y->first_error, sizeof y->first_error, "%s", why);
-            continue;
-        }
-        y->count[pt.verdict]++;
-        double *sum = pt.pass ? sum_pass : sum_fail;
-        for (size_t i = 0; i < fam->n_params; i++)
-            sum[i] += values[i];
-        if (pt.pass)
-            n_pass++;
-        else
-            n_fail++;
-    }
-    for (size_t i = 0; i < fam->n_params; i++)
+    size_t n_fail = t->n_fail, n_pass = t->n_pass;
+    for (size_t i = 0; i < n_params; i++)
         y->redrawn_total += y->redrawn[i];
     y->valid = y->samples - y->invalid;
     ps_interval ci;
@@ -390,8 +482,8 @@ static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps
      * for uniform; that of the truncated distribution with a range). */
     if (n_fail && n_pass) {
         double best = 0;
-        for (size_t i = 0; i < fam->n_params; i++) {
-            const ps_fam_param *par = &fam->param[i];
+        for (size_t i = 0; i < n_params; i++) {
+            const ps_fam_param *par = &param[i];
             if (par->tol == PS_TOL_NONE || !(par->draw_sd > 0))
                 continue;
             double shift = (sum_fail[i] / (double)n_fail - sum_pass[i] / (double)n_pass) / par->draw_sd;
@@ -405,7 +497,8 @@ static void yield(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps
     }
 }
 
-void ps_study_family(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_family_result *out)
+ps_status ps_study_family_shard(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, size_t k, size_t n,
+                                bool bounds, ps_family_result *out, ps_yield_tally *tally)
 {
     memset(out, 0, sizeof *out);
     snprintf(out->id, sizeof out->id, "%s", fam->id);
@@ -414,13 +507,29 @@ void ps_study_family(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt,
     out->n_params = fam->n_params;
     memcpy(out->param, fam->param, sizeof out->param);
     out->grid = ps_family_grid_size(fam);
-    for (size_t j = 0; j < fam->n_params; j++)
+    for (size_t j = 0; bounds && j < fam->n_params; j++)
         if (fam->param[j].n_sweep >= 2)
             boundary(ws, fam, j, opt, &out->bound[out->n_bound++]);
-    if (fam->samples) {
-        out->has_yield = true;
-        yield(ws, fam, opt, &out->yield);
+    ps_yield_tally_init(tally);
+    if (!fam->samples)
+        return PS_OK;
+    out->has_yield = true;
+    ps_status st = yield_blocks(ws, fam, opt, k, n ? n : 1, tally);
+    ps_yield_finish(fam->param, fam->n_params, fam->samples, fam->seed, tally, &out->yield);
+    return st;
+}
+
+void ps_study_family(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_family_result *out)
+{
+    ps_yield_tally t;
+    if (ps_study_family_shard(ws, fam, opt, 0, 1, true, out, &t) != PS_OK && out->has_yield) {
+        /* no memory for the block sums: the study is not claimed */
+        out->yield.valid = 0;
+        out->yield.invalid = out->yield.samples;
+        snprintf(out->yield.first_error, sizeof out->yield.first_error, "%s: out of memory for the yield study",
+                 fam->id);
     }
+    ps_yield_tally_free(&t);
 }
 
 ps_family_result *ps_run_next_family(ps_run *r)

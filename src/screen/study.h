@@ -102,6 +102,39 @@ typedef struct ps_family_result {
     ps_yield yield;
 } ps_family_result;
 
+/* What a yield study has counted so far: the parts of ps_yield that add up
+ * across shards. Units are drawn in blocks of PS_YIELD_BLOCK consecutive
+ * samples; the sums the culprit is found from are added within a block in
+ * sample order and then block after block in block order, so a study split
+ * over shards (each taking whole blocks) adds the same numbers in the same
+ * order and gives the same result to the last bit. */
+enum { PS_YIELD_BLOCK = 4096 };
+
+typedef struct ps_yield_block {
+    size_t block;                          /* samples block * PS_YIELD_BLOCK onward */
+    double sum_pass[PS_FAM_PARAMS], sum_fail[PS_FAM_PARAMS]; /* drawn values of passing / failing units */
+} ps_yield_block;
+
+typedef struct ps_yield_tally {
+    size_t count[PS_VERDICT_COUNT];
+    size_t invalid, n_pass, n_fail;
+    size_t redrawn[PS_FAM_PARAMS];
+    double drawn_min[PS_FAM_PARAMS], drawn_max[PS_FAM_PARAMS];
+    size_t first_error_at;                 /* sample of the first invalid unit; SIZE_MAX: none */
+    char first_error[PS_DIAG_TEXT];
+    size_t n_blocks, cap_blocks;
+    ps_yield_block *blocks;                /* ascending block */
+} ps_yield_tally;
+
+void ps_yield_tally_init(ps_yield_tally *t);
+void ps_yield_tally_free(ps_yield_tally *t);
+/* Add the blocks and counts of part (blocks no other part holds) into into.
+ * PS_OK or PS_ERR_NOMEM. */
+ps_status ps_yield_tally_add(ps_yield_tally *into, const ps_yield_tally *part);
+/* The study's shares, intervals and culprit from a tally of every block. */
+void ps_yield_finish(const ps_fam_param *param, size_t n_params, size_t samples, unsigned long seed,
+                     const ps_yield_tally *t, ps_yield *y);
+
 typedef struct ps_study_ws ps_study_ws;
 ps_study_ws *ps_study_ws_new(void);
 void ps_study_ws_free(ps_study_ws *ws);
@@ -109,6 +142,13 @@ void ps_study_ws_free(ps_study_ws *ws);
 /* Boundaries for every swept parameter and, when the family asks, the yield
  * study, into out. Deterministic for a given family (seeded generator). */
 void ps_study_family(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, ps_family_result *out);
+
+/* One shard's part of it: the boundaries only when bounds is set (a shard
+ * computes those of the families it owns), the yield blocks k, k + n, ...
+ * into tally (initialised here; the caller frees it). out->yield is then
+ * that of these blocks alone. PS_OK, or PS_ERR_NOMEM (tally incomplete). */
+ps_status ps_study_family_shard(ps_study_ws *ws, ps_family *fam, const ps_screen_opts *opt, size_t k, size_t n,
+                                bool bounds, ps_family_result *out, ps_yield_tally *tally);
 
 /* Room for the next family result in the run (NULL on no memory). */
 ps_family_result *ps_run_next_family(ps_run *r);

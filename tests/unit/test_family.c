@@ -567,3 +567,57 @@ Test(family, sample_rate_literal_default_and_errors)
     cr_assert_eq(d.line, 5);
     cr_assert(strstr(d.text, "above 0") != NULL, "%s", d.text);
 }
+
+/* ---- a yield study split over shards ------------------------------------ */
+
+/* The study of fam split into n shards (shard k drawing blocks k, k + n,
+ * ...), the tallies added in the order given by step (shards visited
+ * backwards with step n - 1), finished; it must equal the whole study to the
+ * last bit: the same units, counts, first invalid unit and culprit sums. */
+static void split_and_add(size_t n, ps_yield *out)
+{
+    ps_study_ws *ws = ps_study_ws_new();
+    cr_assert_not_null(ws);
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
+    ps_yield_tally whole;
+    ps_yield_tally_init(&whole);
+    static ps_family_result part;
+    for (size_t j = 0; j < n; j++) {
+        size_t k = n - 1 - j; /* last shard first: the order of adding must not matter */
+        ps_yield_tally t;
+        cr_assert_eq(ps_study_family_shard(ws, &fam, &opt, k, n, k == 0, &part, &t), PS_OK);
+        cr_assert_eq(ps_yield_tally_add(&whole, &t), PS_OK);
+        ps_yield_tally_free(&t);
+    }
+    ps_yield_finish(fam.param, fam.n_params, fam.samples, fam.seed, &whole, out);
+    ps_yield_tally_free(&whole);
+    ps_study_ws_free(ws);
+}
+
+static void shards_equal_whole(void)
+{
+    ps_yield want = res.yield, got;
+    for (size_t n = 1; n <= 6; n++) {
+        split_and_add(n, &got);
+        cr_assert_eq(got.valid, want.valid, "n = %zu", n);
+        cr_assert_eq(got.culprit, want.culprit, "n = %zu", n);
+        cr_assert_str_eq(got.first_error, want.first_error, "n = %zu", n);
+        cr_assert_eq(got.culprit_shift, want.culprit_shift, "n = %zu: shift %.17g against %.17g", n,
+                     got.culprit_shift, want.culprit_shift);
+        cr_assert(memcmp(&got, &want, sizeof got) == 0, "n = %zu: the whole study, byte for byte", n);
+        for (int v = 0; v < PS_VERDICT_COUNT; v++)
+            cr_assert_eq(got.count[v], want.count[v], "n = %zu, verdict %d", n, v);
+    }
+}
+
+Test(family, yield_split_over_shards_adds_up_bit_for_bit)
+{
+    /* 5 blocks of PS_YIELD_BLOCK, the last one short; a culprit to find */
+    read_pendulum("0.14", "0.01", "18000", "20261205");
+    cr_assert(res.yield.culprit >= 0);
+    shards_equal_whole();
+    /* invalid units: the first one named is the first in sample order */
+    read_gap("", "18000");
+    cr_assert_gt(res.yield.invalid, 0);
+    shards_equal_whole();
+}
