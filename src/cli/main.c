@@ -23,6 +23,7 @@
 #include "core/text.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
+#include "report/partial.h"
 #include "report/report_set.h"
 #include "report/reports.h"
 #include "screen/audit.h"
@@ -66,6 +67,8 @@ static const char usage_text[] =
     "                      floor; a family id lists the family's plants\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
     "                      gain, relative degree, delay, warnings and floors\n"
+    "  merge PARTIAL...    join the partial results of screen --shard K/N runs into\n"
+    "                      the reports of the whole run\n"
     "  compare OLD NEW     what changed between two screen runs (compare --help)\n"
     "  read CATALOG...     read every entry and discard it; print the count (the\n"
     "                      reading cost alone, for benchmarks)\n"
@@ -97,7 +100,8 @@ enum {
     OPT_QUIET,
     OPT_SHOW,
     OPT_DETAIL,
-    OPT_MEMORY_ROWS
+    OPT_MEMORY_ROWS,
+    OPT_SHARD
 };
 
 typedef struct cli_option {
@@ -145,6 +149,26 @@ static const cli_option screen_opts[] = {
     {"memory-rows", OPT_MEMORY_ROWS, "N", "keep at most N plant summaries in memory (default\n"
                                           "16384); beyond, they go to a temporary file (about\n"
                                           "1.7 kB each, 1.2 kB with --detail none)"},
+    {"shard", OPT_SHARD, "K/N", "screen only shard K of N (entries K-1, K-1+N, ... and\n"
+                                "their share of the family studies) and write its\n"
+                                "partial result DIR/<stem>.shard-K-of-N.partial\n"
+                                "instead of reports; `plantsieve merge` joins the N"},
+    HELP_OPTION,
+    {0},
+};
+
+static const cli_option merge_opts[] = {
+    {NULL, 'o', "DIR", "write the report set into DIR/<stem>.screen/ (default:\n"
+                       "reports), as screen does"},
+    {"gate", OPT_GATE, "WHEN", "exit 1 when WHEN: redesign (default; redesign or not\n"
+                               "stabilizable), marginal (also marginal), never"},
+    {"no-files", OPT_NO_FILES, NULL, "print the listing only, write no report files"},
+    {"threads", OPT_THREADS, "N", "write the report files on N threads, 1 to 64\n"
+                                  "(default: the online CPUs)"},
+    {"show", OPT_SHOW, "N", "rows per section of the listing on stdout (default\n"
+                            SHOW_TEXT "; all: every row)"},
+    {"memory-rows", OPT_MEMORY_ROWS, "N", "keep at most N plant summaries in memory (default\n"
+                                          "16384); beyond, they go to a temporary file"},
     HELP_OPTION,
     {0},
 };
@@ -175,6 +199,18 @@ static const cli_command screen_cmd = {
     "failed, 5 another run is writing the same report set into DIR; interrupted by\n"
     "SIGINT, SIGTERM or SIGHUP: 128 + the signal number, no report of the run is\n"
     "published.\n"};
+
+static const cli_command merge_cmd = {
+    "merge", "PARTIAL...",
+    "Join the partial results of `screen --shard K/N` (one per shard, K = 1..N, in\n"
+    "any order) into the run one machine would have made: the same listing, the\n"
+    "same report set and the same exit code; only the command line the reports\n"
+    "quote differs. Partials that do not belong together are refused: other\n"
+    "catalogs (by SHA-256) or options, a shard missing or given twice, another\n"
+    "build of plantsieve.",
+    merge_opts,
+    "Exit codes: as screen; 4 also when the partials do not belong together or one\n"
+    "cannot be read.\n"};
 
 static const cli_command explain_cmd = {
     "explain", "ID CATALOG...",
@@ -549,6 +585,11 @@ typedef struct screen_ctx {
     size_t found;
     char **members;      /* explain of a family id: the ids of its grid plants */
     size_t n_members;
+    bool shard;          /* screen --shard K/N */
+    size_t shard_k, shard_n; /* 0-based k of n (without --shard: 0 of 1) */
+    size_t seen;         /* entries read in all (a shard reads every entry) */
+    ps_yield_tally *tally; /* --shard: this shard's yield blocks, one per family of the run */
+    size_t cap_tally;
 } screen_ctx;
 
 static void say_entry_error(void *ctx, const char *file, const ps_plant *p, const ps_diag *err)
@@ -617,7 +658,24 @@ static void screen_family(void *ctx, ps_family *fam, const char *file)
         c->nomem = true;
         return;
     }
-    ps_study_family(c->study, fam, &c->run.opt, fr);
+    size_t f = c->run.n_families - 1;
+    if (c->shard) { /* boundaries where the family is this shard's, yield blocks of this shard */
+        if (f == c->cap_tally) {
+            size_t cap = c->cap_tally ? 2 * c->cap_tally : 16;
+            ps_yield_tally *t = realloc(c->tally, cap * sizeof *t);
+            if (!t) {
+                c->nomem = true;
+                c->run.n_families--;
+                return;
+            }
+            c->tally = t;
+            c->cap_tally = cap;
+        }
+        if (ps_study_family_shard(c->study, fam, &c->run.opt, c->shard_k, c->shard_n, f % c->shard_n == c->shard_k,
+                                  fr, &c->tally[f]) != PS_OK)
+            c->nomem = true;
+    } else
+        ps_study_family(c->study, fam, &c->run.opt, fr);
     fr->file_index = c->run.n_catalogs ? c->run.n_catalogs - 1 : 0;
 }
 
@@ -632,6 +690,8 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
     }
     ps_batch_on_family(b, screen_family);
     ps_batch_defer_analysis(b, c->pool != NULL);
+    if (c->shard)
+        ps_batch_shard(b, c->shard_k, c->shard_n);
     for (int i = 0; i < n; i++) {
         if (ps_run_add_catalog(&c->run, files[i], NULL) != PS_OK) {
             c->nomem = true;
@@ -651,6 +711,7 @@ static bool screen_catalogs(screen_ctx *c, char **files, int n)
         }
     }
     c->run.counts = *ps_batch_counts_get(b);
+    c->seen = ps_batch_seen(b);
     if (c->pool) {
         size_t failed = ps_pool_analysis_errors(c->pool);
         c->run.counts.models -= failed;
@@ -751,6 +812,7 @@ typedef struct screen_args {
     bool files, quiet;
     size_t show;
     size_t threads;
+    size_t shard_k, shard_n;    /* --shard K/N (1-based K); n 0: not given */
 } screen_args;
 
 /* A whole number in [lo, hi] written in full ("12", not "12x" or ""). */
@@ -807,6 +869,20 @@ static int screen_option(void *ctx, int key, const char *v)
             return usage_error("--threads takes a whole number from 1 to 64", v);
         a->threads = (size_t)m;
         break;
+    case OPT_SHARD: {
+        char k_text[32];
+        const char *slash = strchr(v, '/');
+        long k, n;
+        if (!slash || (size_t)(slash - v) >= sizeof k_text)
+            return usage_error("--shard takes K/N, whole numbers with 1 <= K <= N", v);
+        memcpy(k_text, v, (size_t)(slash - v));
+        k_text[slash - v] = '\0';
+        if (!whole_number(k_text, 1, PS_SHARD_MAX, &k) || !whole_number(slash + 1, 1, PS_SHARD_MAX, &n) || k > n)
+            return usage_error("--shard takes K/N, whole numbers with 1 <= K <= N <= 100000", v);
+        a->shard_k = (size_t)k;
+        a->shard_n = (size_t)n;
+        break;
+    }
     case OPT_GATE:
         if (strcmp(v, "redesign") == 0)
             a->g = GATE_REDESIGN;
@@ -832,6 +908,150 @@ static int screen_option(void *ctx, int key, const char *v)
     return GO_ON;
 }
 
+/* What screen and merge do once the run is read: rank it, print the
+ * listing, write and publish the report set (when a->files, the set already
+ * open), and the exit code. digest: take the catalogs' SHA-256 now (a merge
+ * keeps the digests its shards took). Frees nothing. */
+static int finish_run(const screen_args *a, ps_run *run, const char *stem, bool read_ok, bool digest)
+{
+    ps_run_rank(run);
+    if (a->files && digest)
+        ps_run_digest_catalogs(run); /* the bytes each report says it was made from */
+    int rc = EXIT_CLEAN;
+    bool io_failed = !read_ok;
+    char full[PS_SET_PATH + 600];
+    snprintf(full, sizeof full, "%s/%s.screen.txt", screen_set.published, stem);
+    if (ps_write_terminal(stdout, run, want_colour(), a->show, a->files ? full : NULL) != PS_OK)
+        io_failed = true;
+    if (a->files) {
+        /* The whole set is staged, then published at once, or nothing is. */
+        /* cost: the order in which the files are handed to the threads,
+         * the ones that grow with the run first (the longest first). */
+        struct { const char *ext; ps_writer_fn fn; int cost; } out[] = {
+            {"txt", write_terminal_plain, 2}, {"csv", ps_write_csv, 1}, {"json", ps_write_json, 6},
+            {"md", ps_write_markdown, 5},     {"html", ps_write_html, 4},
+            {"families.csv", ps_write_families_csv, 7}, {"plants.jsonl", ps_write_plants_jsonl, 0},
+            {"junit.xml", ps_write_junit, 3},
+        };
+        enum { N_OUT = sizeof out / sizeof out[0] };
+        _Static_assert(N_OUT <= 16, "fill_reports takes at most 16 files");
+        char retired[N_OUT][320], names[N_OUT][320];
+        const char *retired_names[N_OUT];
+        report_job jobs[N_OUT];
+        size_t n_jobs = 0;
+        bool staged = true;
+        ps_diag d = {0};
+        for (size_t i = 0; i < N_OUT; i++) {
+            snprintf(names[i], sizeof names[i], "%s.screen.%s", stem, out[i].ext);
+            snprintf(retired[i], sizeof retired[i], "%s.screen.%s", stem, out[i].ext); /* the flat layout before sets */
+            retired_names[i] = retired[i];
+            if (!staged || (out[i].fn == ps_write_families_csv && run->n_families == 0))
+                continue;
+            report_job *j = &jobs[n_jobs];
+            *j = (report_job){.name = names[i], .fn = out[i].fn, .cost = out[i].cost};
+            if (ps_report_set_create(&screen_set, j->name, &j->f, &j->slot, &d) != PS_OK) {
+                fprintf(stderr, "plantsieve: %s\n", d.text);
+                staged = false;
+            } else
+                n_jobs++;
+        }
+        if (staged) {
+            if (fill_reports(jobs, n_jobs, run, a->threads))
+                ps_run_mark_failed(run);
+        } else
+            for (size_t i = 0; i < n_jobs; i++) { /* not written: the set is dropped */
+                fclose(jobs[i].f);
+                jobs[i].fill = (ps_report_fill){PS_ERR_IO, ECANCELED};
+            }
+        for (size_t i = 0; i < n_jobs; i++)
+            if (ps_report_set_finish(&screen_set, jobs[i].slot, jobs[i].name, jobs[i].fill, &d) != PS_OK && staged) {
+                fprintf(stderr, "plantsieve: %s\n", d.text);
+                staged = false;
+            }
+        if (staged && ps_run_failed(run)) {
+            fputs("plantsieve: the temporary summary file could not be written or read\n", stderr);
+            staged = false;
+        }
+        if (staged) {
+            interrupts_hold();
+            ps_diag_clear(&d);
+            if (ps_report_set_publish(&screen_set, retired_names, N_OUT, &d) != PS_OK) {
+                fprintf(stderr, "plantsieve: %s\n", d.text);
+                staged = false;
+            } else if (d.text[0])
+                fprintf(stderr, "plantsieve: warning: %s\n", d.text);
+        }
+        ps_report_set_release(&screen_set);
+        if (!staged) {
+            fprintf(stderr, "plantsieve: no report of this run was published; the previous reports in %s are left "
+                            "as they were\n", a->outdir);
+            io_failed = true;
+        }
+    } else if (ps_run_failed(run)) {
+        fputs("plantsieve: the temporary summary file could not be written or read: the listing is incomplete\n",
+              stderr);
+        io_failed = true;
+    }
+    const size_t *pv = run->per_verdict;
+    gate g = a->g;
+    bool tripped = (g != GATE_NEVER && (pv[PS_VERDICT_REDESIGN] || pv[PS_VERDICT_UNSTABILIZABLE])) ||
+                   (g == GATE_MARGINAL && pv[PS_VERDICT_MARGINAL]);
+    if (tripped)
+        rc = EXIT_GATE;
+    if (run->counts.errors || pv[PS_VERDICT_NEEDS_BANDWIDTH]) /* entries that could not be judged */
+        rc = EXIT_ENTRIES;
+    if (io_failed)
+        rc = EXIT_IO;
+    if (fflush(stdout) != 0 || ferror(stdout)) {
+        fputs("plantsieve: error writing the output\n", stderr);
+        rc = EXIT_IO;
+    }
+    return rc;
+}
+
+/* screen --shard K/N: write this shard's partial result into DIR; the
+ * listing, the reports and the gate wait for the merge. */
+static int write_shard(const screen_args *a, screen_ctx *c, const char *stem, bool read_ok)
+{
+    ps_run_rank(&c->run);
+    ps_run_digest_catalogs(&c->run); /* the merge checks every shard read the same bytes */
+    if (mkdir(a->outdir, 0777) != 0 && errno != EEXIST) {
+        fprintf(stderr, "plantsieve: cannot make the directory %s: %s\n", a->outdir, strerror(errno));
+        return EXIT_IO;
+    }
+    char name[320], path[PS_SET_PATH + 400];
+    ps_partial_name(stem, a->shard_k, a->shard_n, name, sizeof name);
+    snprintf(path, sizeof path, "%s/%s", a->outdir, name);
+    ps_shard_info sh = {a->shard_k, a->shard_n, c->seen, c->run.n_families, c->tally};
+    ps_diag d = {0};
+    if (ps_partial_write(path, &c->run, &sh, &d) != PS_OK) {
+        fprintf(stderr, "plantsieve: %s\n", d.text);
+        return EXIT_IO;
+    }
+    const size_t *pv = c->run.per_verdict;
+    printf("shard %zu of %zu: %zu of the %zu entries screened (%zu clear, %zu marginal, %zu redesign, %zu not "
+           "stabilizable, %zu needs-bandwidth, %zu input errors), its share of the studies of %zu families; partial "
+           "result in %s\n",
+           a->shard_k, a->shard_n, c->run.n_rows, c->seen, pv[PS_VERDICT_CLEAR], pv[PS_VERDICT_MARGINAL],
+           pv[PS_VERDICT_REDESIGN], pv[PS_VERDICT_UNSTABILIZABLE], pv[PS_VERDICT_NEEDS_BANDWIDTH],
+           pv[PS_VERDICT_UNREAD], c->run.n_families, path);
+    if (fflush(stdout) != 0 || ferror(stdout)) {
+        fputs("plantsieve: error writing the output\n", stderr);
+        return EXIT_IO;
+    }
+    (void)read_ok; /* a catalog that could not be read is in the partial: the merge judges the run */
+    return EXIT_CLEAN;
+}
+
+static void screen_ctx_free(screen_ctx *c)
+{
+    ps_screen_ws_free(c->ws);
+    ps_run_free(&c->run);
+    for (size_t f = 0; c->tally && f < c->run.n_families; f++)
+        ps_yield_tally_free(&c->tally[f]);
+    free(c->tally);
+}
+
 static int cmd_screen(int argc, char **argv)
 {
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
@@ -854,34 +1074,35 @@ static int cmd_screen(int argc, char **argv)
         free(cats);
         return prc;
     }
-    const char *outdir = a.outdir;
-    gate g = a.g;
-    ps_screen_opts opt = a.opt;
-    bool files = a.files, quiet = a.quiet;
-    size_t show = a.show, threads = a.threads;
-    if (!files)
-        opt.keep_top = show; /* only the cut listing reads the rows (0: all) */
-    char stem[256], full[PS_SET_PATH + 600];
+    bool shard = a.shard_n > 0;
+    if (shard)
+        a.files = false; /* the merge writes the reports */
+    else if (!a.files)
+        a.opt.keep_top = a.show; /* only the cut listing reads the rows (0: all) */
+    char stem[256];
     stem_of(cats[0], stem, sizeof stem);
-    if (files) {
+    if (a.files) {
         /* The lock is taken before the work, so a concurrent run is refused at once. */
         ps_diag d = {0};
-        ps_status st = ps_report_set_open(&screen_set, outdir, stem, &d);
+        ps_status st = ps_report_set_open(&screen_set, a.outdir, stem, &d);
         if (st != PS_OK) {
             fprintf(stderr, "plantsieve: %s\n", d.text);
             free(cats);
             return st == PS_ERR_BUSY ? EXIT_BUSY : EXIT_IO;
         }
-        interrupts_catch(outdir);
+        interrupts_catch(a.outdir);
     }
     screen_ctx c = {0};
-    ps_run_init(&c.run, &opt);
+    c.shard = shard;
+    c.shard_k = shard ? a.shard_k - 1 : 0;
+    c.shard_n = shard ? a.shard_n : 1;
+    ps_run_init(&c.run, &a.opt);
     if (ps_run_set_meta(&c.run, whole_argc, whole_argv) != PS_OK)
         c.nomem = true;
     c.ws = ps_screen_ws_new();
-    c.pool = ps_pool_new(threads, &c.run, say_entry_error, &c);
+    c.pool = ps_pool_new(a.threads, &c.run, say_entry_error, &c);
     progress pg = {0};
-    if (!quiet && isatty(STDERR_FILENO)) {
+    if (!a.quiet && isatty(STDERR_FILENO)) {
         pg.total = count_entries(cats, n);
         pg.start = pg.last = now_s();
         c.prog = &pg;
@@ -892,106 +1113,68 @@ static int cmd_screen(int argc, char **argv)
     ps_pool_free(c.pool);
     if (!c.ws || c.nomem) {
         fputs("plantsieve: out of memory (or no room for the temporary summary file)\n", stderr);
-        if (files)
+        if (a.files)
             ps_report_set_release(&screen_set);
-        ps_screen_ws_free(c.ws);
-        ps_run_free(&c.run);
+        screen_ctx_free(&c);
         free(cats);
         return EXIT_IO;
     }
-    ps_run_rank(&c.run);
-    if (files)
-        ps_run_digest_catalogs(&c.run); /* the bytes each report says it was made from */
-    int rc = EXIT_CLEAN;
-    bool io_failed = !read_ok;
-    snprintf(full, sizeof full, "%s/%s.screen.txt", screen_set.published, stem);
-    if (ps_write_terminal(stdout, &c.run, want_colour(), show, files ? full : NULL) != PS_OK)
-        io_failed = true;
-    if (files) {
-        /* The whole set is staged, then published at once, or nothing is. */
-        /* cost: the order in which the files are handed to the threads,
-         * the ones that grow with the run first (the longest first). */
-        struct { const char *ext; ps_writer_fn fn; int cost; } out[] = {
-            {"txt", write_terminal_plain, 2}, {"csv", ps_write_csv, 1}, {"json", ps_write_json, 6},
-            {"md", ps_write_markdown, 5},     {"html", ps_write_html, 4},
-            {"families.csv", ps_write_families_csv, 7}, {"plants.jsonl", ps_write_plants_jsonl, 0},
-            {"junit.xml", ps_write_junit, 3},
-        };
-        enum { N_OUT = sizeof out / sizeof out[0] };
-        _Static_assert(N_OUT <= 16, "fill_reports takes at most 16 files");
-        char retired[N_OUT][320], names[N_OUT][320];
-        const char *retired_names[N_OUT];
-        report_job jobs[N_OUT];
-        size_t n_jobs = 0;
-        bool staged = true;
-        ps_diag d = {0};
-        for (size_t i = 0; i < N_OUT; i++) {
-            snprintf(names[i], sizeof names[i], "%s.screen.%s", stem, out[i].ext);
-            snprintf(retired[i], sizeof retired[i], "%s.screen.%s", stem, out[i].ext); /* the flat layout before sets */
-            retired_names[i] = retired[i];
-            if (!staged || (out[i].fn == ps_write_families_csv && c.run.n_families == 0))
-                continue;
-            report_job *j = &jobs[n_jobs];
-            *j = (report_job){.name = names[i], .fn = out[i].fn, .cost = out[i].cost};
-            if (ps_report_set_create(&screen_set, j->name, &j->f, &j->slot, &d) != PS_OK) {
-                fprintf(stderr, "plantsieve: %s\n", d.text);
-                staged = false;
-            } else
-                n_jobs++;
-        }
-        if (staged) {
-            if (fill_reports(jobs, n_jobs, &c.run, threads))
-                ps_run_mark_failed(&c.run);
-        } else
-            for (size_t i = 0; i < n_jobs; i++) { /* not written: the set is dropped */
-                fclose(jobs[i].f);
-                jobs[i].fill = (ps_report_fill){PS_ERR_IO, ECANCELED};
-            }
-        for (size_t i = 0; i < n_jobs; i++)
-            if (ps_report_set_finish(&screen_set, jobs[i].slot, jobs[i].name, jobs[i].fill, &d) != PS_OK && staged) {
-                fprintf(stderr, "plantsieve: %s\n", d.text);
-                staged = false;
-            }
-        if (staged && ps_run_failed(&c.run)) {
-            fputs("plantsieve: the temporary summary file could not be written or read\n", stderr);
-            staged = false;
-        }
-        if (staged) {
-            interrupts_hold();
-            ps_diag_clear(&d);
-            if (ps_report_set_publish(&screen_set, retired_names, N_OUT, &d) != PS_OK) {
-                fprintf(stderr, "plantsieve: %s\n", d.text);
-                staged = false;
-            } else if (d.text[0])
-                fprintf(stderr, "plantsieve: warning: %s\n", d.text);
-        }
-        ps_report_set_release(&screen_set);
-        if (!staged) {
-            fprintf(stderr, "plantsieve: no report of this run was published; the previous reports in %s are left "
-                            "as they were\n", outdir);
-            io_failed = true;
-        }
-    } else if (ps_run_failed(&c.run)) {
-        fputs("plantsieve: the temporary summary file could not be written or read: the listing is incomplete\n",
-              stderr);
-        io_failed = true;
-    }
-    const size_t *pv = c.run.per_verdict;
-    bool tripped = (g != GATE_NEVER && (pv[PS_VERDICT_REDESIGN] || pv[PS_VERDICT_UNSTABILIZABLE])) ||
-                   (g == GATE_MARGINAL && pv[PS_VERDICT_MARGINAL]);
-    if (tripped)
-        rc = EXIT_GATE;
-    if (c.run.counts.errors || pv[PS_VERDICT_NEEDS_BANDWIDTH]) /* entries that could not be judged */
-        rc = EXIT_ENTRIES;
-    if (io_failed)
-        rc = EXIT_IO;
-    ps_screen_ws_free(c.ws);
-    ps_run_free(&c.run);
+    int rc = shard ? write_shard(&a, &c, stem, read_ok) : finish_run(&a, &c.run, stem, read_ok, true);
+    screen_ctx_free(&c);
     free(cats);
-    if (fflush(stdout) != 0 || ferror(stdout)) {
-        fputs("plantsieve: error writing the output\n", stderr);
-        rc = EXIT_IO;
+    return rc;
+}
+
+static int cmd_merge(int argc, char **argv)
+{
+    long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
+    screen_args a = {
+        .outdir = "reports",
+        .g = GATE_REDESIGN,
+        .opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0},
+        .files = true,
+        .show = SHOW_DEFAULT,
+        .threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1,
+    };
+    int n = 0;
+    char **parts = operands_new(argc);
+    if (!parts)
+        return EXIT_IO;
+    int prc = options_parse(&merge_cmd, argc, argv, screen_option, &a, parts, &n);
+    if (prc == GO_ON && n == 0)
+        prc = usage_error("merge needs the partial results of every shard", NULL);
+    if (prc != GO_ON) {
+        free(parts);
+        return prc;
     }
+    ps_run run;
+    ps_run_init(&run, &a.opt);
+    ps_diag d = {0};
+    ps_status st = ps_run_set_meta(&run, whole_argc, whole_argv);
+    if (st != PS_OK)
+        ps_diag_set(&d, st, 0, 0, "", "out of memory");
+    else
+        st = ps_partial_merge(&run, parts, (size_t)n, &d);
+    free(parts);
+    if (st != PS_OK) {
+        fprintf(stderr, "plantsieve: %s\n", d.text);
+        ps_run_free(&run);
+        return EXIT_IO;
+    }
+    char stem[256];
+    stem_of(run.n_catalogs ? run.catalogs[0].file : "run", stem, sizeof stem);
+    if (a.files) {
+        st = ps_report_set_open(&screen_set, a.outdir, stem, &d);
+        if (st != PS_OK) {
+            fprintf(stderr, "plantsieve: %s\n", d.text);
+            ps_run_free(&run);
+            return st == PS_ERR_BUSY ? EXIT_BUSY : EXIT_IO;
+        }
+        interrupts_catch(a.outdir);
+    }
+    bool read_ok = run.counts.files_failed == 0;
+    int rc = finish_run(&a, &run, stem, read_ok, false);
+    ps_run_free(&run);
     return rc;
 }
 
@@ -1264,7 +1447,7 @@ static int cmd_read(int argc, char **argv)
 /* plantsieve help COMMAND */
 static int main_help(const char *name)
 {
-    static const cli_command *const commands[] = {&screen_cmd, &explain_cmd, &survey_cmd, &read_cmd};
+    static const cli_command *const commands[] = {&screen_cmd, &merge_cmd, &explain_cmd, &survey_cmd, &read_cmd};
     for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
         if (strcmp(name, commands[i]->name) == 0)
             return print_help(commands[i]);
@@ -1304,6 +1487,8 @@ int main(int argc, char **argv)
         return cmd_screen(argc - 1, argv + 1);
     if (strcmp(cmd, "explain") == 0)
         return cmd_explain(argc - 1, argv + 1);
+    if (strcmp(cmd, "merge") == 0)
+        return cmd_merge(argc - 1, argv + 1);
     if (strcmp(cmd, "compare") == 0)
         return ps_cli_compare(argc - 1, argv + 1);
     return usage_error(cmd[0] == '-' ? "unknown option" : "unknown command", cmd);

@@ -1049,6 +1049,16 @@ static bool unpack_summary(const unsigned char *in, size_t len, ps_summary *s)
     return true;
 }
 
+size_t ps_summary_pack(const ps_summary *s, unsigned char *out)
+{
+    return pack_summary(s, out);
+}
+
+bool ps_summary_unpack(const unsigned char *in, size_t len, ps_summary *s)
+{
+    return unpack_summary(in, len, s);
+}
+
 /* ---- keep_top runs: the records the cut listing can print ---- */
 
 static int by_key(const void *a, const void *b);

@@ -276,6 +276,13 @@ void ps_run_mark_failed(ps_run *r);
 ps_verdict ps_run_verdict(const ps_run *r, size_t i);
 /* A spill file could not be written or read: the reports are incomplete. */
 bool ps_run_failed(const ps_run *r);
+/* A summary as the run's file keeps it: texts and lists cut to their length
+ * (out has room for sizeof *s; returns the length), and back (false when in
+ * is not such a record). The record holds the summary's two pointers (worst,
+ * fl.limiting) as they are: valid only in the process that packed it. */
+size_t ps_summary_pack(const ps_summary *s, unsigned char *out);
+bool ps_summary_unpack(const unsigned char *in, size_t len, ps_summary *s);
+
 /* Rank: not stabilizable first, then severity descending, ties by catalog
  * order; then needs-bandwidth, then input errors, each in catalog order. Deterministic. */
 void ps_run_rank(ps_run *r);

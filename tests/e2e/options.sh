@@ -14,17 +14,18 @@ cf="$src/tests/data/e2e/closed-form.yaml"
 
 # Every option each command has (README "Command line" and "Screening").
 opts_survey="--json -h --help"
-opts_screen="-o --gate --marginal-at --no-files --threads --quiet --show --detail --memory-rows -h --help"
+opts_screen="-o --gate --marginal-at --no-files --threads --quiet --show --detail --memory-rows --shard -h --help"
+opts_merge="-o --gate --no-files --threads --show --memory-rows -h --help"
 opts_explain="-h --help"
 opts_read="-h --help"
 
 "$ps" --help >"$tmp/out" 2>"$tmp/err"; check "plantsieve --help exits 0" 0 $?
-for c in screen explain survey read; do
+for c in screen merge explain survey read; do
     grep -q "^  $c " "$tmp/out"; check "plantsieve --help lists the command $c" 0 $?
 done
 contains "plantsieve --help points to each command's help" "$tmp/out" "plantsieve COMMAND --help"
 
-for c in survey screen explain read; do
+for c in survey screen merge explain read; do
     eval "opts=\$opts_$c"
     for h in --help -h; do
         "$ps" $c $h >"$tmp/help.$c" 2>"$tmp/err"; check "$c $h exits 0" 0 $?
