@@ -1221,6 +1221,13 @@ static ps_status spill(ps_run *r)
     r->n_rows = 0;
     for (; r->n_rows < n; r->n_rows++)
         store_put(r, &r->rows[r->n_rows]);
+    /* From here rows is the staging place of one summary: the memory_rows
+     * summaries (64 MiB by default) are given back. */
+    ps_summary *one = realloc(r->rows, sizeof *one);
+    if (one) {
+        r->rows = one;
+        r->cap_rows = 1;
+    }
     return PS_OK;
 }
 
@@ -1235,7 +1242,9 @@ static ps_status reserve(ps_run *r, size_t k)
     if (r->store) {
         ps_run_store *st = r->store;
         if (r->n_rows + k > st->cap_keys) {
-            size_t cap = 2 * (r->n_rows + k);
+            /* a quarter more each time (a key is 32 bytes: at 3M plants doubling
+               could hold 6M keys, 192 MiB, where 3.75M suffice) */
+            size_t need = r->n_rows + k, cap = need + need / 4 + 1024;
             ps_rank_key *keys = realloc(st->keys, cap * sizeof *keys);
             if (!keys)
                 return PS_ERR_NOMEM;
