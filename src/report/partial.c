@@ -14,6 +14,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "core/sha256.h"
 #include "report/reports.h"
 
 static const char head_line[] = "plantsieve partial result, format 1\n";
@@ -50,18 +51,26 @@ static bool word_of(unsigned char code, const char *const *words, size_t n, cons
 
 /* ---- writing ---------------------------------------------------------- */
 
-static void put(FILE *f, const void *p, size_t n)
+/* Every byte written also goes into the digest that closes the file. */
+typedef struct out {
+    FILE *f;
+    ps_sha256 h;
+} writer;
+
+static void put(writer *w, const void *p, size_t n)
 {
-    if (n)
-        fwrite(p, 1, n, f);
+    if (n) {
+        fwrite(p, 1, n, w->f);
+        ps_sha256_add(&w->h, p, n);
+    }
 }
 
-static void put_u64(FILE *f, uint64_t v)
+static void put_u64(writer *f, uint64_t v)
 {
     put(f, &v, sizeof v);
 }
 
-static void put_str(FILE *f, const char *s)
+static void put_str(writer *f, const char *s)
 {
     if (!s) {
         put_u64(f, UINT64_MAX);
@@ -72,7 +81,7 @@ static void put_str(FILE *f, const char *s)
     put(f, s, n);
 }
 
-static void put_layout(FILE *f)
+static void put_layout(writer *f)
 {
     put_u64(f, sizeof(ps_summary));
     put_u64(f, sizeof(ps_family_result));
@@ -82,7 +91,7 @@ static void put_layout(FILE *f)
     put_u64(f, PS_YIELD_BLOCK);
 }
 
-static ps_status write_body(FILE *f, const ps_run *r, const ps_shard_info *sh, unsigned char *rec, ps_diag *d)
+static ps_status write_body(writer *f, const ps_run *r, const ps_shard_info *sh, unsigned char *rec, ps_diag *d)
 {
     put(f, head_line, sizeof head_line - 1);
     put_layout(f);
@@ -132,6 +141,9 @@ static ps_status write_body(FILE *f, const ps_run *r, const ps_shard_info *sh, u
         put(f, t->blocks, t->n_blocks * sizeof *t->blocks);
     }
     put(f, end_line, sizeof end_line - 1);
+    char hex[65];
+    ps_sha256_hex(&f->h, hex);
+    fwrite(hex, 1, 64, f->f); /* the SHA-256 of every byte before it */
     return PS_OK;
 }
 
@@ -161,7 +173,10 @@ ps_status ps_partial_write(const char *path, const ps_run *r, const ps_shard_inf
         free(rec);
         return ps_diag_set(d, PS_ERR_IO, 0, 0, "", "%s: %s", path, strerror(errno));
     }
-    ps_status st = write_body(f, r, sh, rec, d);
+    writer w;
+    w.f = f;
+    ps_sha256_init(&w.h);
+    ps_status st = write_body(&w, r, sh, rec, d);
     free(rec);
     if (st == PS_OK && ps_run_failed(r))
         st = ps_diag_set(d, PS_ERR_IO, 0, 0, "", "%s: the temporary summary file could not be read", path);
@@ -189,6 +204,7 @@ void ps_partial_name(const char *stem, size_t k, size_t n, char *out, size_t siz
 typedef struct part {
     const char *path;
     FILE *f;
+    ps_sha256 h;          /* of every byte read */
     bool bad;             /* a read came short */
     uint64_t k, n, seen, families_seen;
     double marginal_at;
@@ -198,12 +214,14 @@ typedef struct part {
     ps_catalog_entry *catalogs;
 } part;
 
-static void get(part *p, void *out, size_t n)
+static void get(part *p, void *dst, size_t n)
 {
-    if (!p->bad && n && fread(out, 1, n, p->f) != n)
+    if (!p->bad && n && fread(dst, 1, n, p->f) != n)
         p->bad = true;
     if (p->bad)
-        memset(out, 0, n);
+        memset(dst, 0, n);
+    else
+        ps_sha256_add(&p->h, dst, n);
 }
 
 static uint64_t get_u64(part *p)
@@ -261,7 +279,9 @@ static ps_status part_open(part *p, const char *path, ps_diag *d)
     if (!(p->f = fopen(path, "rb")))
         return ps_diag_set(d, PS_ERR_IO, 0, 0, "", "%s: %s", path, strerror(errno));
     char head[sizeof head_line - 1];
-    if (fread(head, 1, sizeof head, p->f) != sizeof head || memcmp(head, head_line, sizeof head) != 0)
+    ps_sha256_init(&p->h);
+    get(p, head, sizeof head);
+    if (p->bad || memcmp(head, head_line, sizeof head) != 0)
         return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: not a partial result of plantsieve (expected a file "
                            "written by screen --shard K/N)", path);
     uint64_t want[6] = {sizeof(ps_summary), sizeof(ps_family_result), sizeof(ps_yield_tally), sizeof(ps_yield_block),
@@ -372,6 +392,7 @@ static ps_status read_rows(part *p, ps_run *r, ps_summary *s, unsigned char *rec
         const char *worst, *limiting;
         if (!ps_summary_unpack(rec, len, s) || !word_of(codes[0], worst_words, N_OF(worst_words), &worst) ||
             !word_of(codes[1], limiting_words, N_OF(limiting_words), &limiting) || s->verdict >= PS_VERDICT_COUNT ||
+            s->n_curve > PS_CURVE_N || s->attr.n_lowering > PS_FACTOR_COUNT ||
             s->order >= p->seen || s->order % p->n != p->k - 1 || s->file_index >= r->n_catalogs)
             return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: row %" PRIu64 " is damaged", p->path, i + 1);
         s->worst = worst;
@@ -381,6 +402,16 @@ static ps_status read_rows(part *p, ps_run *r, ps_summary *s, unsigned char *rec
             return ps_diag_set(d, st, 0, 0, "", "out of memory (or no room for the temporary summary file)");
     }
     return p->bad ? short_read(p, d) : PS_OK;
+}
+
+static bool bounds_sane(const ps_family_result *fr)
+{
+    for (size_t j = 0; j < fr->n_bound; j++) {
+        const ps_boundary *b = &fr->bound[j];
+        if (b->param >= fr->n_params || b->n_curve > PS_FAM_SWEEP || b->n_changes > PS_BOUND_CHANGES)
+            return false;
+    }
+    return true;
 }
 
 /* The families of p: the first partial gives every family's description;
@@ -399,7 +430,7 @@ static ps_status read_families(part *p, bool first, ps_run *r, ps_yield_tally *t
         if (p->bad)
             break;
         if (t.n_blocks > (PS_FAM_SAMPLES + PS_YIELD_BLOCK - 1) / PS_YIELD_BLOCK || fr->n_bound > PS_FAM_PARAMS ||
-            fr->n_params > PS_FAM_PARAMS || fr->file_index >= r->n_catalogs)
+            fr->n_params > PS_FAM_PARAMS || fr->file_index >= r->n_catalogs || !bounds_sane(fr))
             return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: family %" PRIu64 " is damaged", p->path, i + 1);
         t.blocks = NULL;
         t.cap_blocks = 0;
@@ -435,11 +466,19 @@ static ps_status read_families(part *p, bool first, ps_run *r, ps_yield_tally *t
     }
     if (p->bad)
         return short_read(p, d);
-    char tail[sizeof end_line - 1];
-    if (fread(tail, 1, sizeof tail, p->f) != sizeof tail || memcmp(tail, end_line, sizeof tail) != 0 ||
-        fgetc(p->f) != EOF)
+    char tail[sizeof end_line - 1], want[65], got[65];
+    get(p, tail, sizeof tail);
+    if (p->bad || memcmp(tail, end_line, sizeof tail) != 0)
         return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: does not end as a partial result does (cut short, or "
-                           "something appended)", p->path);
+                           "damaged)", p->path);
+    ps_sha256_hex(&p->h, want);
+    if (fread(got, 1, 64, p->f) != 64 || fgetc(p->f) != EOF)
+        return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: does not end as a partial result does (its digest cut "
+                           "short, or something appended)", p->path);
+    got[64] = '\0';
+    if (strcmp(got, want) != 0)
+        return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: damaged: the SHA-256 of its content is %.12s..., the "
+                           "file says %.12s...", p->path, want, got);
     return PS_OK;
 }
 

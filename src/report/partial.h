@@ -15,7 +15,10 @@
  *
  * The file is binary, in the byte order and layout of the program that
  * wrote it: partials are merged by the same build on the same kind of
- * machine (the header records the layout, and a mismatch is refused). */
+ * machine (the header records the layout, and a mismatch is refused). It
+ * ends with the SHA-256 of everything before, so a file damaged in transit
+ * or storage is refused, not merged; a partial is an intermediate file of
+ * plantsieve's own, not an input format to be written by other programs. */
 #ifndef PS_PARTIAL_H
 #define PS_PARTIAL_H
 

@@ -140,6 +140,15 @@ head -c $((size / 2)) p4/demo-variants.shard-3-of-4.partial >cut.partial
     p4/demo-variants.shard-4-of-4.partial >/dev/null 2>err.txt
 check "a partial cut short" 4 $?
 contains "a partial cut short: said" err.txt "cut.partial: "
+# one byte changed in the middle (a plant's text, a number): the closing SHA-256 no longer matches
+cp p4/demo-variants.shard-3-of-4.partial flipped.partial
+printf 'Z' | dd of=flipped.partial bs=1 seek=$((size / 2)) conv=notrunc 2>/dev/null
+cmp -s flipped.partial p4/demo-variants.shard-3-of-4.partial
+check "the copy has one byte changed" 1 $?
+"$ps" merge --no-files p4/demo-variants.shard-1-of-4.partial p4/demo-variants.shard-2-of-4.partial flipped.partial \
+    p4/demo-variants.shard-4-of-4.partial >/dev/null 2>err.txt
+check "a damaged partial" 4 $?
+contains "a damaged partial: said" err.txt "flipped.partial: damaged: the SHA-256 of its content is"
 for bad in 0/3 4/3 3 a/b 1/0 1/100001; do
     "$ps" screen --shard "$bad" demo-variants.yaml >/dev/null 2>err.txt
     check "--shard $bad refused" 2 $?
