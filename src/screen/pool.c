@@ -31,6 +31,8 @@ typedef struct job {
     const char *file;
     size_t file_index;
     size_t seq;          /* the entry's place in the run (the row's order) */
+    bool defer;          /* detail deferred (a keep_top run past memory: most rows are dropped) */
+    size_t n_warn;       /* the plant's warnings before its root analysis */
     ps_summary s;
 } job;
 
@@ -74,6 +76,7 @@ typedef struct worker_arg {
 static void run_job(ps_pool *p, lane *ln, job *jb)
 {
     ps_outcome o = {jb->file, &jb->p, NULL, NULL, NULL, jb->seq};
+    jb->n_warn = jb->p.n_warn;
     if (!jb->has_err) {
         memset(&jb->err, 0, sizeof jb->err);
         if (ps_roots_analyse(ln->rws, &jb->p, &ln->an, &jb->err) == PS_OK) {
@@ -91,7 +94,10 @@ static void run_job(ps_pool *p, lane *ln, job *jb)
         o.err = &jb->err;
     jb->s.file_index = jb->file_index;
     jb->s.order = jb->seq;
-    ps_screen_assess(ln->sws, &o, &p->run->opt, &jb->s);
+    ps_screen_opts opt = p->run->opt;
+    if (jb->defer && !jb->has_err)
+        opt.detail = PS_DETAIL_DEFERRED;
+    ps_screen_assess(ln->sws, &o, &opt, &jb->s);
 }
 
 static void drain(ps_pool *p, lane *ln)
@@ -217,7 +223,10 @@ static ps_status commit(ps_pool *p, job *jobs, size_t n)
         if (jb->has_err && p->say)
             p->say(p->ctx, jb->file, &jb->p, &jb->err);
         p->analysis_errors += jb->analysis_err;
-        if (st == PS_OK)
+        if (st == PS_OK && jb->s.detail_deferred) {
+            jb->p.n_warn = jb->n_warn; /* the plant as it was read, for the analysis done again */
+            st = ps_run_put_deferred(p->run, &jb->s, &jb->p);
+        } else if (st == PS_OK)
             st = ps_run_put(p->run, &jb->s);
     }
     return st;
@@ -304,6 +313,8 @@ ps_status ps_pool_add(ps_pool *p, const ps_outcome *o)
     ps_plant_copy(&jb->p, o->p);
     jb->file = o->file;
     jb->seq = o->seq;
+    /* decided here, in the thread that commits: the run has left memory for good */
+    jb->defer = ps_run_defers(p->run) && p->run->opt.detail != PS_DETAIL_NONE;
     jb->file_index = p->run->n_catalogs ? p->run->n_catalogs - 1 : 0;
     jb->has_err = o->err != NULL;
     jb->analysis_err = false;

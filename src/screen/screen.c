@@ -766,6 +766,10 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     }
     bool flagged = s->verdict == PS_VERDICT_MARGINAL || s->verdict == PS_VERDICT_REDESIGN ||
                    s->verdict == PS_VERDICT_UNSTABILIZABLE;
+    if (opt->detail == PS_DETAIL_DEFERRED) {
+        s->detail_deferred = true;
+        return;
+    }
     if (opt->detail == PS_DETAIL_NONE || (opt->detail == PS_DETAIL_FLAGGED && !flagged)) {
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             s->target[k] = (ps_target){.state = PS_TARGET_NA, .limit = NAN, .now = NAN};
@@ -812,9 +816,12 @@ void ps_run_free(ps_run *r)
             fclose(st->file);
         free(st->file_buf);
         free(st->keys);
-        for (size_t k = 0; k < st->n_slots; k++)
+        for (size_t k = 0; k < st->n_slots; k++) {
             free(st->slot[k]);
+            free(st->slot_plant[k]);
+        }
         free(st->slot);
+        free(st->slot_plant);
         free(st->slot_refs);
         free(st->free_slots);
         for (int h = 0; h < PS_RUN_LISTS; h++)
@@ -1099,6 +1106,8 @@ static void slot_release(ps_run_store *st, size_t row)
     if (--st->slot_refs[k] == 0) {
         free(st->slot[k]);
         st->slot[k] = NULL;
+        free(st->slot_plant[k]);
+        st->slot_plant[k] = NULL;
         st->free_slots[st->n_free++] = k;
         st->keys[row].len = 0;
     }
@@ -1131,7 +1140,8 @@ static unsigned keep_wanted(const ps_run *r, size_t row)
 }
 /* Keep the record of row for the lists in take, dropping the rows it
  * pushes out of them. */
-static ps_status keep_put(ps_run *r, size_t row, unsigned take, const unsigned char *rec, size_t len)
+static ps_status keep_put(ps_run *r, size_t row, unsigned take, const unsigned char *rec, size_t len,
+                          const ps_plant *plant)
 {
     ps_run_store *st = r->store;
     size_t n = r->opt.keep_top;
@@ -1141,7 +1151,10 @@ static ps_status keep_put(ps_run *r, size_t row, unsigned take, const unsigned c
         unsigned char **sl = realloc(st->slot, cap * sizeof *sl);
         if (sl)
             st->slot = sl;
-        unsigned *rf = sl ? realloc(st->slot_refs, cap * sizeof *rf) : NULL;
+        ps_plant **pl = sl ? realloc(st->slot_plant, cap * sizeof *pl) : NULL;
+        if (pl)
+            st->slot_plant = pl;
+        unsigned *rf = pl ? realloc(st->slot_refs, cap * sizeof *rf) : NULL;
         if (rf)
             st->slot_refs = rf;
         size_t *fr = rf ? realloc(st->free_slots, cap * sizeof *fr) : NULL;
@@ -1156,6 +1169,16 @@ static ps_status keep_put(ps_run *r, size_t row, unsigned take, const unsigned c
         return PS_ERR_NOMEM;
     }
     memcpy(st->slot[k], rec, len);
+    st->slot_plant[k] = NULL;
+    if (plant) {
+        if (!(st->slot_plant[k] = malloc(sizeof *plant))) {
+            free(st->slot[k]);
+            st->slot[k] = NULL;
+            st->free_slots[st->n_free++] = k;
+            return PS_ERR_NOMEM;
+        }
+        memcpy(st->slot_plant[k], plant, sizeof *plant);
+    }
     st->slot_refs[k] = 0;
     key->at = k;
     key->len = (uint32_t)len;
@@ -1176,13 +1199,14 @@ static ps_status keep_put(ps_run *r, size_t row, unsigned take, const unsigned c
     return PS_OK;
 }
 
-static void store_put(ps_run *r, const ps_summary *s)
+static void store_put(ps_run *r, const ps_summary *s, const ps_plant *plant)
 {
     ps_run_store *st = r->store;
     st->keys[r->n_rows] = (ps_rank_key){s->severity, s->order, st->end, 0, (int16_t)rank_class(s), (int16_t)s->verdict};
     if (!st->file) { /* keep_top run: only a record some list still needs is packed */
         unsigned take = keep_wanted(r, r->n_rows);
-        if (take && keep_put(r, r->n_rows, take, st->scratch, pack_summary(s, st->scratch)) != PS_OK)
+        if (take && keep_put(r, r->n_rows, take, st->scratch, pack_summary(s, st->scratch),
+                             s->detail_deferred ? plant : NULL) != PS_OK)
             st->failed = true;
         return;
     }
@@ -1220,7 +1244,7 @@ static ps_status spill(ps_run *r)
     size_t n = r->n_rows;
     r->n_rows = 0;
     for (; r->n_rows < n; r->n_rows++)
-        store_put(r, &r->rows[r->n_rows]);
+        store_put(r, &r->rows[r->n_rows], NULL);
     /* From here rows is the staging place of one summary: the memory_rows
      * summaries (64 MiB by default) are given back. */
     ps_summary *one = realloc(r->rows, sizeof *one);
@@ -1273,10 +1297,10 @@ ps_summary *ps_run_next(ps_run *r)
 }
 
 /* Keep s, already in its staged place when in memory, as the next row. */
-static void keep_row(ps_run *r, const ps_summary *s)
+static void keep_row(ps_run *r, const ps_summary *s, const ps_plant *plant)
 {
     if (r->store)
-        store_put(r, s);
+        store_put(r, s, plant);
     r->per_verdict[s->verdict]++;
     size_t len = strnlen(s->id, sizeof s->id);
     if (len > r->id_len_max)
@@ -1286,18 +1310,30 @@ static void keep_row(ps_run *r, const ps_summary *s)
 
 void ps_run_commit(ps_run *r)
 {
-    keep_row(r, staged(r));
+    keep_row(r, staged(r), NULL);
 }
 
-ps_status ps_run_put(ps_run *r, ps_summary *s)
+ps_status ps_run_put_deferred(ps_run *r, ps_summary *s, const ps_plant *p)
 {
     ps_status st = reserve(r, 1);
     if (st != PS_OK)
         return st;
+    if (s->detail_deferred && (!r->store || r->store->file || !p))
+        return PS_ERR_INPUT; /* only a keep_top run past memory_rows computes deferred detail */
     if (!r->store)
         *staged(r) = *s;
-    keep_row(r, s);
+    keep_row(r, s, p);
     return PS_OK;
+}
+
+ps_status ps_run_put(ps_run *r, ps_summary *s)
+{
+    return ps_run_put_deferred(r, s, NULL);
+}
+
+bool ps_run_defers(const ps_run *r)
+{
+    return r->opt.keep_top && r->store && !r->store->file;
 }
 
 /* The bytes of one record. Rows tied in the ranking (most often the many
@@ -1417,8 +1453,64 @@ static int by_key(const void *a, const void *b)
     return x->order < y->order ? -1 : x->order > y->order;
 }
 
+/* The detail of the kept rows whose detail was deferred, from their
+ * plants: the same root analysis, floors and assessment as in the pool. */
+static void complete_detail(ps_run *r)
+{
+    ps_run_store *st = r->store;
+    ps_roots_ws *rws = NULL;
+    ps_limits_ws *lws = NULL;
+    ps_screen_ws *sws = NULL;
+    ps_analysis *an = malloc(sizeof *an);
+    ps_floors *fl = malloc(sizeof *fl);
+    ps_summary *s = malloc(sizeof *s);
+    bool ok = an && fl && s && (rws = ps_roots_ws_new()) && (lws = ps_limits_ws_new()) && (sws = ps_screen_ws_new());
+    for (int h = 0; h < PS_RUN_LISTS; h++)
+        for (size_t i = 0; i < st->heap_len[h]; i++) {
+            ps_rank_key *key = &st->keys[st->heap[h][i]];
+            size_t k = (size_t)key->at;
+            ps_plant *p = st->slot_plant[k];
+            if (!p)
+                continue;
+            st->slot_plant[k] = NULL; /* once, whichever list holds it */
+            ps_diag d = {0};
+            size_t at = p->field_line[PS_F_SAMPLE_RATE] ? p->field_line[PS_F_SAMPLE_RATE] : p->line;
+            if (!ok || !unpack_summary(st->slot[k], key->len, s) || ps_roots_analyse(rws, p, an, &d) != PS_OK) {
+                st->failed = true;
+                free(p);
+                continue;
+            }
+            ps_floors_compute(lws, an, &p->req, fl);
+            if (ps_floors_formed(an, fl, at, &d) != PS_OK) {
+                st->failed = true;
+                free(p);
+                continue;
+            }
+            ps_outcome o = {NULL, p, an, fl, NULL, s->order};
+            ps_screen_assess(sws, &o, &r->opt, s);
+            free(p);
+            size_t len = pack_summary(s, st->scratch);
+            unsigned char *rec = realloc(st->slot[k], len);
+            if (!rec) {
+                st->failed = true;
+                continue;
+            }
+            memcpy(rec, st->scratch, len);
+            st->slot[k] = rec;
+            key->len = (uint32_t)len;
+        }
+    ps_screen_ws_free(sws);
+    ps_limits_ws_free(lws);
+    ps_roots_ws_free(rws);
+    free(s);
+    free(fl);
+    free(an);
+}
+
 void ps_run_rank(ps_run *r)
 {
+    if (r->store && !r->store->file && r->store->slot_plant)
+        complete_detail(r);
     if (r->store) {
         if (r->n_rows > 1)
             qsort(r->store->keys, r->n_rows, sizeof *r->store->keys, by_key);

@@ -104,6 +104,7 @@ typedef struct ps_summary {
     double h, compute_delay;
     bool in_z;
     bool hidden_unstable;
+    bool detail_deferred;       /* targets and curve not yet computed (PS_DETAIL_DEFERRED) */
     /* input errors */
     size_t err_line, err_col;
     char err_field[PS_DIAG_FIELD];
@@ -113,7 +114,11 @@ typedef struct ps_summary {
 /* Redesign targets and the band curve cost about 100 floor evaluations a
  * plant; a large run may keep them for the flagged plants (marginal,
  * redesign) or drop them. */
-typedef enum ps_detail { PS_DETAIL_ALL = 0, PS_DETAIL_FLAGGED, PS_DETAIL_NONE } ps_detail;
+typedef enum ps_detail {
+    PS_DETAIL_ALL = 0, PS_DETAIL_FLAGGED, PS_DETAIL_NONE,
+    PS_DETAIL_DEFERRED /* the run's own: not yet; the row is marked detail_deferred, and a keep_top run
+                          computes the detail of the rows it keeps once it is ranked (ps_run_rank) */
+} ps_detail;
 
 typedef struct ps_screen_opts {
     double marginal_at;         /* default PS_MARGINAL_AT */
@@ -215,6 +220,7 @@ typedef struct ps_run_store {
      * of the keep_top first rows so far, the last on top; a slot lives
      * while some list holds its row. */
     unsigned char **slot;
+    ps_plant **slot_plant;      /* the plant of a row whose detail is deferred (else NULL) */
     unsigned *slot_refs;
     size_t n_slots, cap_slots, *free_slots, n_free;
     size_t *heap[PS_RUN_LISTS], heap_len[PS_RUN_LISTS];
@@ -266,6 +272,14 @@ ps_status ps_run_put(ps_run *r, ps_summary *s);
  * ranked it brackets its reading with ps_run_reader_begin and
  * ps_run_reader_end (its own read-ahead window and rows). */
 const ps_summary *ps_run_row(const ps_run *r, size_t i);
+/* ps_run_put for a keep_top run past memory_rows: s may have its detail
+ * deferred, and p is the plant as it was before its root analysis (NULL:
+ * not deferred); a row the listing may print keeps a copy of p, and
+ * ps_run_rank computes its detail from it, as ps_screen_assess would have. */
+ps_status ps_run_put_deferred(ps_run *r, ps_summary *s, const ps_plant *p);
+/* Whether put should defer the detail of the next rows: a keep_top run
+ * that has left memory (only the rows the listing can print are kept). */
+bool ps_run_defers(const ps_run *r);
 /* PS_OK or PS_ERR_NOMEM. */
 ps_status ps_run_reader_begin(const ps_run *r);
 /* Whether a read of this thread failed (its rows then say so); after the
@@ -284,7 +298,8 @@ size_t ps_summary_pack(const ps_summary *s, unsigned char *out);
 bool ps_summary_unpack(const unsigned char *in, size_t len, ps_summary *s);
 
 /* Rank: not stabilizable first, then severity descending, ties by catalog
- * order; then needs-bandwidth, then input errors, each in catalog order. Deterministic. */
+ * order; then needs-bandwidth, then input errors, each in catalog order. Deterministic.
+ * A keep_top run then computes the deferred detail of the rows it kept. */
 void ps_run_rank(ps_run *r);
 
 #endif
