@@ -136,7 +136,8 @@ static const cli_option screen_opts[] = {
     {"marginal-at", OPT_MARGINAL_AT, "X", "share of the allowed log-peak that makes a plant\n"
                                           "marginal, a number in (0, 1] (default 0.8)"},
     {"no-files", OPT_NO_FILES, NULL, "print the listing only, write no report files; past\n"
-                                     "--memory-rows only the rows it can print are kept"},
+                                     "--memory-rows only the rows it can print are kept,\n"
+                                     "and only their targets and band curves computed"},
     {"threads", OPT_THREADS, "N", "assess plants, then write the report files, on N\n"
                                   "threads, 1 to 64 (default: the online CPUs); the\n"
                                   "reports are the same for any N"},
