@@ -128,10 +128,15 @@ summarize() {
 # numpy on CAT: median compute and total over reps -> NP_C, NP_T, NP_RSS
 measure_numpy() {
     local cat=$1 n=$2 reps=$3 r comp=() tot=() rss=() flo=()
+    NP_FAILED=0
     for ((r = 1; r <= reps; r++)); do
         run_timed "$TMP/numpy-$n-$r" "$PY" "$HERE/np_floors.py" "$cat"
         read -r us kb code < "$TMP/numpy-$n-$r.t"
-        [[ $code == 0 ]] || say "# WARNING: numpy N=$n exited $code: $(tail -c 300 "$TMP/numpy-$n-$r.stderr")"
+        if [[ $code != 0 ]]; then # e.g. 137: killed, out of memory (PyYAML holds the whole catalog)
+            say "# WARNING: numpy N=$n exited $code: $(tail -c 300 "$TMP/numpy-$n-$r.stderr")"
+            NP_FAILED=1
+            return 0
+        fi
         local line=$(grep '^NP_TIMES' "$TMP/numpy-$n-$r.stdout")
         comp+=("$(sed -E 's/.* compute=([0-9.]+).*/\1/' <<< "$line")")
         flo+=("$(sed -E 's/.* floors=([0-9.]+).*/\1/' <<< "$line")")
@@ -220,7 +225,15 @@ for n in "${SIZES[@]}"; do
                 say "# N=$n numpy subset N=$NUMPY_SUBSET runs: compute $NP_C s, total $NP_T s (medians); $NP_SUMMARY"
             fi
             est=$(awk -v t="$NP_T" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.0f", t * n / m}')
-            if (( est > NUMPY_BUDGET )); then
+            SUB_C=$NP_C; SUB_T=$NP_T; SUB_F=$NP_F; SUB_RSS=$NP_RSS; NP_FAILED=0
+            if (( est <= NUMPY_BUDGET )); then
+                measure_numpy "$cat" "$n" "$reps"
+                if [[ $NP_FAILED == 1 ]]; then
+                    say "# N=$n numpy: the full run failed: extrapolated linearly from N=$NUMPY_SUBSET instead"
+                    NP_C=$SUB_C; NP_T=$SUB_T; NP_F=$SUB_F; NP_RSS=$SUB_RSS
+                fi
+            fi
+            if (( est > NUMPY_BUDGET )) || [[ $NP_FAILED == 1 ]]; then
                 NPC[$n]=$(awk -v t="$NP_C" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
                 NPT[$n]=$(awk -v t="$NP_T" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
                 NPF[$n]=$(awk -v t="$NP_F" -v n="$n" -v m="$NUMPY_SUBSET" 'BEGIN {printf "%.6f", t * n / m}')
@@ -228,7 +241,6 @@ for n in "${SIZES[@]}"; do
                 NPRSS[$n]="$NP_RSS@$NUMPY_SUBSET"
                 say "# N=$n numpy: full run estimated ${est} s > NUMPY_BUDGET ${NUMPY_BUDGET} s: extrapolated linearly from N=$NUMPY_SUBSET"
             else
-                measure_numpy "$cat" "$n" "$reps"
                 NPC[$n]=$NP_C; NPT[$n]=$NP_T; NPF[$n]=$NP_F; NPX[$n]=measured; NPRSS[$n]=$NP_RSS
                 say "# N=$n numpy runs: compute $NP_C s, total $NP_T s (medians); $NP_SUMMARY"
             fi
