@@ -1053,10 +1053,11 @@ static void screen_ctx_free(screen_ctx *c)
     free(c->tally);
 }
 
-static int cmd_screen(int argc, char **argv)
+/* The defaults of screen and merge. */
+static screen_args screen_defaults(void)
 {
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
-    screen_args a = {
+    return (screen_args){
         .outdir = "reports",
         .g = GATE_REDESIGN,
         .opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0},
@@ -1064,6 +1065,11 @@ static int cmd_screen(int argc, char **argv)
         .show = SHOW_DEFAULT,
         .threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1,
     };
+}
+
+static int cmd_screen(int argc, char **argv)
+{
+    screen_args a = screen_defaults();
     int n = 0;
     char **cats = operands_new(argc);
     if (!cats)
@@ -1128,15 +1134,7 @@ static int cmd_screen(int argc, char **argv)
 
 static int cmd_merge(int argc, char **argv)
 {
-    long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
-    screen_args a = {
-        .outdir = "reports",
-        .g = GATE_REDESIGN,
-        .opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0},
-        .files = true,
-        .show = SHOW_DEFAULT,
-        .threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1,
-    };
+    screen_args a = screen_defaults();
     int n = 0;
     char **parts = operands_new(argc);
     if (!parts)
