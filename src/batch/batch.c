@@ -10,10 +10,18 @@
 #include "catalog/catalog.h"
 
 /* Open-addressing set of the ids seen so far (duplicate detection across
- * every catalog of the batch). Keys are owned copies. */
+ * every catalog of the batch). Keys are copies packed one after another in
+ * chunks of IDSET_CHUNK bytes (no allocation of its own per id: at 3M plants
+ * one malloc an id and slots at load below 1/2 took about 160 MB); slots
+ * at load up to 3/4. */
+enum { IDSET_CHUNK = 1 << 20 };
+
 typedef struct idset {
     char **slot;
     size_t cap, n;
+    char **chunks;          /* every chunk, for freeing */
+    size_t n_chunks, cap_chunks;
+    size_t used, room;      /* bytes used and held by the last chunk */
 } idset;
 
 static uint64_t hash_str(const char *s)
@@ -44,10 +52,35 @@ static int idset_grow(idset *set)
     return 0;
 }
 
+/* Room for len bytes in the last chunk, or a new chunk; NULL on no memory. */
+static char *idset_room(idset *set, size_t len)
+{
+    if (set->n_chunks == 0 || set->room - set->used < len) {
+        if (set->n_chunks == set->cap_chunks) {
+            size_t cap = set->cap_chunks ? 2 * set->cap_chunks : 16;
+            char **c = realloc(set->chunks, cap * sizeof *c);
+            if (!c)
+                return NULL;
+            set->chunks = c;
+            set->cap_chunks = cap;
+        }
+        size_t room = len > IDSET_CHUNK ? len : IDSET_CHUNK;
+        char *chunk = malloc(room);
+        if (!chunk)
+            return NULL;
+        set->chunks[set->n_chunks++] = chunk;
+        set->used = 0;
+        set->room = room;
+    }
+    char *at = set->chunks[set->n_chunks - 1] + set->used;
+    set->used += len;
+    return at;
+}
+
 /* 1 when id was new (now added), 0 when already present, -1 on no memory. */
 static int idset_add(idset *set, const char *id)
 {
-    if (2 * (set->n + 1) > set->cap && idset_grow(set))
+    if (4 * (set->n + 1) > 3 * set->cap && idset_grow(set))
         return -1;
     size_t k = hash_str(id) & (set->cap - 1);
     while (set->slot[k]) {
@@ -56,7 +89,7 @@ static int idset_add(idset *set, const char *id)
         k = (k + 1) & (set->cap - 1);
     }
     size_t len = strlen(id) + 1;
-    char *copy = malloc(len);
+    char *copy = idset_room(set, len);
     if (!copy)
         return -1;
     memcpy(copy, id, len);
@@ -67,8 +100,9 @@ static int idset_add(idset *set, const char *id)
 
 static void idset_free(idset *set)
 {
-    for (size_t i = 0; i < set->cap; i++)
-        free(set->slot[i]);
+    for (size_t i = 0; i < set->n_chunks; i++)
+        free(set->chunks[i]);
+    free(set->chunks);
     free(set->slot);
 }
 
