@@ -1046,11 +1046,11 @@ static int write_shard(const screen_args *a, screen_ctx *c, const char *stem, bo
 
 static void screen_ctx_free(screen_ctx *c)
 {
-    ps_screen_ws_free(c->ws);
-    ps_run_free(&c->run);
-    for (size_t f = 0; c->tally && f < c->run.n_families; f++)
+    for (size_t f = 0; c->tally && f < c->run.n_families; f++) /* before the run forgets its families */
         ps_yield_tally_free(&c->tally[f]);
     free(c->tally);
+    ps_screen_ws_free(c->ws);
+    ps_run_free(&c->run);
 }
 
 /* The defaults of screen and merge. */

@@ -218,6 +218,8 @@ static void get(part *p, void *dst, size_t n)
 {
     if (!p->bad && n && fread(dst, 1, n, p->f) != n)
         p->bad = true;
+    if (n == 0)
+        return;
     if (p->bad)
         memset(dst, 0, n);
     else
