@@ -13,10 +13,12 @@
 #           plants.jsonl, md, html; time over read time, CPU seconds, bytes a plant per format,
 #           MET/MISS for the JSON Lines record <= 1500 bytes a plant and for a Markdown and an
 #           HTML report bounded (< 8 MiB at every N, its caps)); FILES=0 skips it
+#   floors  floors_bench CAT                          (the floors timed apart from reading:
+#           check, roots, every floor, severity, verdict; CPU seconds of that part alone)
 #   numpy   np_floors.py CAT                          (vectorised baseline; compute and total)
 # The commands take turns (read, screen, ..., survey, then the next repetition).
-# Targets printed with MET/MISS (the speed issue): floors compute (survey CPU -
-# read CPU) at least 5x faster than numpy's compute; at 1M, screen --no-files
+# Targets printed with MET/MISS (the speed issue): floors compute (floors_bench's
+# compute CPU; survey CPU - read CPU beside it) at least 5x faster than numpy's compute; at 1M, screen --no-files
 # within 1.5x and every report within 3x of the parse-only read (wall; CPU and
 # the load average beside it); linear growth (per-plant time within 1.25x of the
 # smallest N); peak RSS under 256 MiB at 3M (give 3000000 among the sizes).
@@ -25,7 +27,7 @@
 # when the full run would exceed NUMPY_BUDGET seconds; the table says so.
 #
 # Environment: PLANTSIEVE (binary; default build/plantsieve, then
-# ../build-bench/plantsieve), BENCH_DIR (cache, default $TMPDIR/plantsieve-bench),
+# ../build-bench/plantsieve), FLOORS_BENCH (default tests/floors_bench beside it), BENCH_DIR (cache, default $TMPDIR/plantsieve-bench),
 # SEED (1), REPS (3), LARGE_AT (1000000) and REPS_LARGE (1): repetitions from
 # that size on, NUMPY_SUBSET (100000), NUMPY_BUDGET (600 s), NUMPY=0 skips numpy.
 set -euo pipefail
@@ -38,6 +40,8 @@ if [[ -z "${PLANTSIEVE:-}" ]]; then
     done
 fi
 PS=${PLANTSIEVE:?set PLANTSIEVE to the plantsieve binary}
+FB=${FLOORS_BENCH:-$(dirname "$PS")/tests/floors_bench}
+[[ -x "$FB" ]] || { echo "floors_bench not found at $FB (set FLOORS_BENCH)" >&2; exit 2; }
 PY=$(command -pv python3)          # Debian's python3 (numpy, scipy, PyYAML), not a pyenv shim
 BENCH_DIR=${BENCH_DIR:-${TMPDIR:-/tmp}/plantsieve-bench}
 SEED=${SEED:-1}
@@ -168,7 +172,7 @@ say ""
 DETAIL=0; "$PS" screen --help 2>&1 | grep -q -- '--detail' && DETAIL=1
 SHOW=0; "$PS" screen --help 2>&1 | grep -q -- '--show' && SHOW=1
 declare -A SN_S SN_RSS SA_S SA_RSS
-declare -A R_CPU SC_CPU SV_CPU NPF
+declare -A R_CPU SC_CPU SV_CPU NPF FB_C NPS
 declare -A R_S SC_S SV_S R_RSS SC_RSS SV_RSS NPC NPT NPX NPN NPRSS REPN F_S F_RSS F_CPU F_B F_LINES
 for n in "${SIZES[@]}"; do
     cat=$(catalog "$n") || { say "generating the N=$n catalog failed"; exit 1; }
@@ -185,6 +189,7 @@ for n in "${SIZES[@]}"; do
             run_one files "$n" "$r" "0 3" "$PS" screen --gate never --quiet "${SCREEN_OPTS[@]:3}" -o "$TMP/files" "$cat"
         fi
         run_one survey "$n" "$r" "0 3" "$PS" survey "$cat"
+        run_one floors "$n" "$r" "0" "$FB" "$cat"
     done
     summarize read "$n" "$reps"
     got=$(grep -oE '[0-9]+ entries read' "$TMP/read-$n-1.stdout" | cut -d' ' -f1)
@@ -214,6 +219,10 @@ for n in "${SIZES[@]}"; do
     fi
     summarize survey "$n" "$reps"
     SV_S[$n]=$M_S; SV_RSS[$n]=$M_RSS; SV_CPU[$n]=$M_CPU; say "# N=$n survey runs: $ALL_S s (median CPU $M_CPU s)"
+    FB_C[$n]=$(for ((r = 1; r <= reps; r++)); do
+        sed -nE 's/.* compute ([0-9.]+) s \(CPU\).*/\1/p' "$TMP/floors-$n-$r.stdout"; done | median)
+    say "# N=$n floors_bench runs: compute CPU $(for ((r = 1; r <= reps; r++)); do
+        sed -nE 's/.* compute ([0-9.]+) s \(CPU\).*/\1/p' "$TMP/floors-$n-$r.stdout"; done | tr '\n' ' ')s (median ${FB_C[$n]} s); $(sed 's/^floors_bench: //' "$TMP/floors-$n-1.stdout")"
     if [[ $NUMPY == 1 ]]; then
         if (( n > NUMPY_SUBSET )); then
             sub=$(catalog "$NUMPY_SUBSET") || { say "generating the N=$NUMPY_SUBSET catalog failed"; exit 1; }
@@ -250,6 +259,7 @@ for n in "${SIZES[@]}"; do
             say "# N=$n numpy runs: compute $NP_C s, total $NP_T s (medians), YAML load $NP_LOAD s (last run); $NP_SUMMARY"
         fi
         NPN[$n]=$n
+        NPS[$n]=${NP_SUMMARY:-}
     fi
 done
 
@@ -344,15 +354,28 @@ for n in "${SIZES[@]}"; do (( n > last )) && last=$n; (( n < first )) && first=$
 big=""
 for n in "${SIZES[@]}"; do (( n >= 1000000 )) && big=$n && break; done
 load_now=$(cut -d' ' -f1-3 /proc/loadavg)
-# Compute against compute: plantsieve's floors = survey CPU - read CPU (the survey is the
-# read plus the floors of every plant, one thread); numpy's = its "compute" (prepare: YAML
-# mappings to arrays, then floors: roots, every floor incl. the joint Pick/Chen floors,
-# severity, verdict) and, stricter, its vectorised floors alone.
+# Compute against compute. plantsieve's floors = floors_bench's compute CPU: check, roots
+# (RHP counts, hidden modes), every floor (Bode area, single-point and joint interpolation,
+# band-forced with the roll-off tail, Poisson, effort), severity and verdict, timed apart from
+# reading, on one thread. numpy's = its "compute": prepare (YAML mappings to arrays) and floors
+# (roots, the same floors incl. the joint Pick/Chen floors, severity, verdict); stricter, its
+# vectorised floors alone. Beside it, survey CPU - read CPU (the survey also checks ids for
+# duplicates and formats a text listing of every plant's roots and floors, which numpy does not).
 for n in "${SIZES[@]}"; do
     [[ -n "${NPC[$n]:-}" ]] || continue
-    pc=$(awk -v a="${SV_CPU[$n]}" -v b="${R_CPU[$n]}" 'BEGIN {d = a - b; printf "%.3f", (d > 0.001 ? d : 0.001)}')
+    pc=$(awk -v a="${FB_C[$n]}" 'BEGIN {printf "%.3f", (a > 0.001 ? a : 0.001)}')
     c=$(ratio "${NPC[$n]}" "$pc"); f=$(ratio "${NPF[$n]}" "$pc")
-    say "  floors, compute only, at N=$n: numpy compute ${NPC[$n]} s (of it vectorised floors ${NPF[$n]} s), plantsieve survey CPU - read CPU = ${SV_CPU[$n]} - ${R_CPU[$n]} = $pc s: ${c}x (floors alone ${f}x), at least 5x -> $(verdict "$c" 5 ge | sed 's/PASS/MET/')$([[ "${NPX[$n]}" == measured ]] || echo " (numpy ${NPX[$n]})")"
+    sv=$(awk -v a="${SV_CPU[$n]}" -v b="${R_CPU[$n]}" 'BEGIN {d = a - b; printf "%.3f", (d > 0.001 ? d : 0.001)}')
+    say "  floors, compute only, at N=$n: numpy compute ${NPC[$n]} s (of it vectorised floors ${NPF[$n]} s), plantsieve floors_bench compute $pc s CPU: ${c}x (floors alone ${f}x), at least 5x -> $(verdict "$c" 5 ge | sed 's/PASS/MET/')$([[ "${NPX[$n]}" == measured ]] || echo " (numpy ${NPX[$n]})")"
+    # the two sides judge alike: numpy's verdict counts against floors_bench's
+    npv=$(sed -E 's/^verdicts //; s/,//g' <<< "${NPS[$n]:-}")
+    fbv=$(sed -E 's/.*verdicts //; s/ needs-bandwidth.*//; s/,//g' "$TMP/floors-$n-1.stdout")
+    if [[ -n "$npv" && "$npv" == "$fbv" ]]; then
+        say "    same verdict counts on both sides: $fbv"
+    else
+        say "    # WARNING: the verdict counts differ: numpy '$npv', floors_bench '$fbv'"
+    fi
+    say "    (survey CPU - read CPU, floors plus a text listing of every plant: ${SV_CPU[$n]} - ${R_CPU[$n]} = $sv s: $(ratio "${NPC[$n]}" "$sv")x)"
 done
 if [[ -n "$big" ]]; then
     r=$(ratio "${SC_S[$big]}" "${R_S[$big]}"); rc=$(ratio "${SC_CPU[$big]}" "${R_CPU[$big]}")
