@@ -76,6 +76,21 @@ void ps_roots_ws_free(ps_roots_ws *ws)
 static inline double complex to_c(ps_cplx x) { return ps_complex_make(x.re, x.im); }
 static inline ps_cplx from_c(double complex x) { return (ps_cplx){creal(x), cimag(x)}; }
 
+/* |re + i im|: the plain square root of the sum of squares where neither
+ * square can overflow or lose the smaller part to underflow (within 1 ulp
+ * or so of hypot, several times faster); hypot outside that range and for
+ * infinities and NaNs. The root finder and the clustering below call it
+ * tens of times a root. */
+static inline double mag(double re, double im)
+{
+    double a = fabs(re), b = fabs(im), m = a > b ? a : b;
+    if (m > 0x1p-450 && m < 0x1p450)
+        return sqrt(re * re + im * im);
+    return hypot(re, im);
+}
+
+static inline double magc(double complex z) { return mag(creal(z), cimag(z)); }
+
 ps_cplx ps_poly_eval(const double *c, size_t n, ps_cplx s)
 {
     double complex acc = 0, x = to_c(s);
@@ -90,7 +105,7 @@ static void horner_asc(const double *a, size_t n, double complex x, double compl
                        double complex *dp, double *absum)
 {
     double complex acc = 0, dacc = 0;
-    double s = 0, ax = cabs(x);
+    double s = 0, ax = magc(x);
     for (size_t i = n; i-- > 0;) {
         dacc = dacc * x + acc;
         acc = acc * x + a[i];
@@ -116,10 +131,12 @@ static void finish_roots(ps_root *r, size_t n, double merge_tol)
         group[i] = (int)i;
     for (size_t i = 0; i < n; i++)
         for (size_t j = i + 1; j < n; j++) {
-            double dist = hypot(r[i].v.re - r[j].v.re, r[i].v.im - r[j].v.im);
-            double scale = fmax(hypot(r[i].v.re, r[i].v.im), hypot(r[j].v.re, r[j].v.im));
+            double dist = mag(r[i].v.re - r[j].v.re, r[i].v.im - r[j].v.im);
             double near = fmax(r[i].tol + r[j].tol, merge_tol);
-            if (dist <= near && dist <= PS_CLUSTER_RTOL * scale) {
+            if (!(dist <= near))
+                continue;
+            double scale = fmax(mag(r[i].v.re, r[i].v.im), mag(r[j].v.re, r[j].v.im));
+            if (dist <= PS_CLUSTER_RTOL * scale) {
                 int gi = group[i], gj = group[j];
                 for (size_t k = 0; k < n; k++)
                     if (group[k] == gj)
@@ -140,7 +157,7 @@ static void finish_roots(ps_root *r, size_t n, double merge_tol)
             }
         if (m > 1) {
             double complex mean = sum / m;
-            tol = m * fmax(tol, 64 * DBL_EPSILON * cabs(mean));
+            tol = m * fmax(tol, 64 * DBL_EPSILON * magc(mean));
             for (size_t k = 0; k < n; k++)
                 if (group[k] == (int)i) {
                     r[k].v = from_c(mean);
@@ -165,7 +182,7 @@ static void finish_roots(ps_root *r, size_t n, double merge_tol)
         for (size_t k = 0; k < n; k++) {
             if (paired[k] || r[k].v.im >= 0)
                 continue;
-            double dk = hypot(r[k].v.re - r[i].v.re, r[k].v.im + r[i].v.im);
+            double dk = mag(r[k].v.re - r[i].v.re, r[k].v.im + r[i].v.im);
             if (dk < bd) {
                 bd = dk;
                 best = k;
@@ -233,12 +250,12 @@ int ps_roots_poly(ps_roots_ws *ws, const double *c, size_t n, ps_root *out, ps_d
         /* Members of a multiple root (huge condition number) are left as the
          * solver gave them: Newton would move them unevenly and spoil the
          * cluster mean. */
-        bool simple = cabs(dp) * cabs(x) * 1e-6 > 16 * DBL_EPSILON * absum;
-        for (int it = 0; simple && it < 3 && cabs(p) > 0 && cabs(dp) > 0; it++) {
+        bool simple = magc(dp) * magc(x) * 1e-6 > 16 * DBL_EPSILON * absum;
+        for (int it = 0; simple && it < 3 && magc(p) > 0 && magc(dp) > 0; it++) {
             double complex xn = x - p / dp, pn, dpn;
             double sn;
             horner_asc(ar, m, xn, &pn, &dpn, &sn);
-            if (!(cabs(pn) < cabs(p)))
+            if (!(magc(pn) < magc(p)))
                 break;
             x = xn;
             p = pn;
@@ -246,9 +263,9 @@ int ps_roots_poly(ps_roots_ws *ws, const double *c, size_t n, ps_root *out, ps_d
             absum = sn;
         }
         /* Condition number of a simple root: sum|a_k||x|^k / (|x| |p'(x)|). */
-        double ax = cabs(x), kappa = 1.0;
-        if (ax > 0 && cabs(dp) > 0)
-            kappa = fmax(1.0, absum / (ax * cabs(dp)));
+        double ax = magc(x), kappa = 1.0;
+        if (ax > 0 && magc(dp) > 0)
+            kappa = fmax(1.0, absum / (ax * magc(dp)));
         else if (ax > 0)
             kappa = 1.0 / DBL_EPSILON;
         out[i].v = from_c(x);
