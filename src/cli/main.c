@@ -17,12 +17,14 @@
 #include <unistd.h>
 
 #include "batch/batch.h"
+#include "certify/certify.h"
 #include "cli/compare_cmd.h"
 #include "catalog/catalog.h"
 #include "core/diag.h"
 #include "core/text.h"
 #include "report/json_parts.h"
 #include "report/listing.h"
+#include "report/certificate.h"
 #include "report/partial.h"
 #include "report/report_set.h"
 #include "report/reports.h"
@@ -67,6 +69,8 @@ static const char usage_text[] =
     "                      floor; a family id lists the family's plants\n"
     "  survey CATALOG...   list each plant's poles, zeros, their side of the jw axis,\n"
     "                      gain, relative degree, delay, warnings and floors\n"
+    "  certify CATALOG...  search and verify a controller for each plant: the\n"
+    "                      peaks one controller reaches beside the floors\n"
     "  merge PARTIAL...    join the partial results of screen --shard K/N runs into\n"
     "                      the reports of the whole run\n"
     "  compare OLD NEW     what changed between two screen runs (compare --help)\n"
@@ -101,7 +105,8 @@ enum {
     OPT_SHOW,
     OPT_DETAIL,
     OPT_MEMORY_ROWS,
-    OPT_SHARD
+    OPT_SHARD,
+    OPT_BUDGET
 };
 
 typedef struct cli_option {
@@ -175,6 +180,30 @@ static const cli_option merge_opts[] = {
 };
 
 static const cli_option plain_opts[] = {HELP_OPTION, {0}};
+
+static const cli_option certify_opts[] = {
+    {"budget", OPT_BUDGET, "N", "loop evaluations a plant may spend in the search,\n"
+                                "100 to 10000000 (default " PS_CERT_BUDGET_TEXT ")"},
+    {"json", OPT_JSON, NULL, "write one JSON document to stdout instead of text"},
+    HELP_OPTION,
+    {0},
+};
+
+static const cli_command certify_cmd = {
+    "certify", "CATALOG...",
+    "The other side of each plant's bracket: search a ladder of controllers (PI,\n"
+    "PID, lead-lag, and for a plant only an unstable controller stabilizes, one\n"
+    "with an unstable pole; each with the roll-off poles its requirement needs)\n"
+    "for the lowest peaks within the budget, verify the best (closed-loop\n"
+    "stability by the argument principle and, without delay, by the closed-loop\n"
+    "roots; peaks, roll-off, band and effort on a dense grid) and print the\n"
+    "outcome: ruled out (a floor exceeds what is allowed), demonstrated (a\n"
+    "verified controller meets every requirement) or undecided (the floors pass,\n"
+    "no controller found within the budget). Continuous loops only.",
+    certify_opts,
+    "Exit codes: 0 every entry read and searched, 2 usage error, 3 some entries\n"
+    "rejected (the rest listed), 4 a catalog could not be opened or parsed to the\n"
+    "end, or the output failed.\n"};
 
 static const cli_command survey_cmd = {
     "survey", "CATALOG...",
@@ -1406,6 +1435,130 @@ static size_t count_entries(char **files, int n)
     return c.entries;
 }
 
+/* ---- certify ---- */
+
+typedef struct certify_ctx {
+    size_t budget;
+    bool json;
+    ps_screen_ws *ws;
+    ps_summary *s;
+    ps_cert *cert;
+    json_t *plants;
+    size_t per_bracket[PS_BRACKET_COUNT];
+    bool nomem;
+} certify_ctx;
+
+static int certify_option(void *ctx, int key, const char *value)
+{
+    certify_ctx *c = ctx;
+    if (key == OPT_JSON)
+        c->json = true;
+    else if (key == OPT_BUDGET) {
+        char *end;
+        errno = 0;
+        unsigned long long v = strtoull(value, &end, 10);
+        if (errno || *end || end == value || value[0] == '-' || v < 100 || v > 10000000)
+            return usage_error("--budget needs a whole number from 100 to 10000000", value);
+        c->budget = (size_t)v;
+    }
+    return GO_ON;
+}
+
+static void certify_entry(void *ctx, const ps_outcome *o)
+{
+    certify_ctx *c = ctx;
+    if (o->err) {
+        say_at(o->file, o->err, o->p->id);
+        return;
+    }
+    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_NONE, 0};
+    c->s->order = 0;
+    c->s->file_index = 0;
+    ps_screen_assess(c->ws, o, &opt, c->s);
+    ps_certify(o->an, &o->p->req, o->fl, o->p->id, c->budget, c->cert);
+    c->per_bracket[ps_bracket_of(c->s, c->cert)]++;
+    if (!c->json) {
+        ps_certificate_text(stdout, c->s, c->cert);
+        return;
+    }
+    json_t *j = ps_certificate_json(c->s, c->cert);
+    json_t *pl = ps_certificate_plant_json(o->an);
+    if (!j || !pl || json_object_set_new(j, "plant", pl) != 0 || json_array_append_new(c->plants, j) != 0)
+        c->nomem = true;
+}
+
+static int cmd_certify(int argc, char **argv)
+{
+    int n = 0;
+    char **cats = operands_new(argc);
+    if (!cats)
+        return EXIT_IO;
+    certify_ctx c = {.budget = PS_CERT_BUDGET};
+    int rc = options_parse(&certify_cmd, argc, argv, certify_option, &c, cats, &n);
+    if (rc == GO_ON && n == 0)
+        rc = usage_error("certify needs at least one catalog file", NULL);
+    if (rc != GO_ON) {
+        free(cats);
+        return rc;
+    }
+    c.ws = ps_screen_ws_new();
+    c.s = malloc(sizeof *c.s);
+    c.cert = malloc(sizeof *c.cert);
+    c.plants = json_array();
+    ps_batch *b = c.ws && c.s && c.cert && c.plants ? ps_batch_new(certify_entry, &c) : NULL;
+    rc = EXIT_CLEAN;
+    if (!b) {
+        fputs("plantsieve: out of memory\n", stderr);
+        rc = EXIT_IO;
+    }
+    for (int i = 0; b && i < n; i++) {
+        ps_diag fd = {0};
+        if (ps_batch_run(b, cats[i], &fd) != PS_OK) {
+            say_at(cats[i], &fd, NULL);
+            rc = EXIT_IO;
+        }
+    }
+    if (b) {
+        const ps_batch_counts *counts = ps_batch_counts_get(b);
+        if (rc == EXIT_CLEAN && counts->errors)
+            rc = EXIT_ENTRIES;
+        if (c.nomem) {
+            fputs("plantsieve: out of memory\n", stderr);
+            rc = EXIT_IO;
+        } else if (c.json) {
+            json_t *doc = json_pack("{s:i,s:i,s:o,s:{s:i,s:i,s:i,s:i},s:s}", "budget", (json_int_t)c.budget,
+                                    "entries", (json_int_t)counts->entries, "plants", json_incref(c.plants),
+                                    "outcomes", "ruled out", (json_int_t)c.per_bracket[PS_BRACKET_RULED_OUT],
+                                    "demonstrated", (json_int_t)c.per_bracket[PS_BRACKET_DEMONSTRATED], "undecided",
+                                    (json_int_t)c.per_bracket[PS_BRACKET_UNDECIDED], "not attempted",
+                                    (json_int_t)c.per_bracket[PS_BRACKET_NOT_ATTEMPTED], "caution", ps_caution_text);
+            if (!doc || json_dumpf(doc, stdout, JSON_INDENT(1) | JSON_REAL_PRECISION(17)) != 0)
+                rc = EXIT_IO;
+            fputc('\n', stdout);
+            json_decref(doc);
+        } else {
+            printf("%zu entries: %zu ruled out, %zu demonstrated, %zu undecided, %zu not attempted, %zu rejected\n",
+                   counts->entries, c.per_bracket[PS_BRACKET_RULED_OUT], c.per_bracket[PS_BRACKET_DEMONSTRATED],
+                   c.per_bracket[PS_BRACKET_UNDECIDED], c.per_bracket[PS_BRACKET_NOT_ATTEMPTED], counts->errors);
+            printf("\nThe floors are necessary conditions: no controller does better. A demonstrated plant has one\n"
+                   "controller that meets its stated requirements in this model; it is not a design. Undecided\n"
+                   "means no controller was found within the budget, not that none exists.\n\n%s\n",
+                   ps_caution_text);
+        }
+    }
+    ps_batch_free(b);
+    json_decref(c.plants);
+    free(c.s);
+    free(c.cert);
+    ps_screen_ws_free(c.ws);
+    free(cats);
+    if (fflush(stdout) != 0 || ferror(stdout)) {
+        fputs("plantsieve: error writing the output\n", stderr);
+        rc = EXIT_IO;
+    }
+    return rc;
+}
+
 static int cmd_read(int argc, char **argv)
 {
     int n = 0;
@@ -1446,7 +1599,8 @@ static int cmd_read(int argc, char **argv)
 /* plantsieve help COMMAND */
 static int main_help(const char *name)
 {
-    static const cli_command *const commands[] = {&screen_cmd, &merge_cmd, &explain_cmd, &survey_cmd, &read_cmd};
+    static const cli_command *const commands[] = {&screen_cmd, &merge_cmd, &explain_cmd, &survey_cmd, &read_cmd,
+                                                  &certify_cmd};
     for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
         if (strcmp(name, commands[i]->name) == 0)
             return print_help(commands[i]);
@@ -1488,6 +1642,8 @@ int main(int argc, char **argv)
         return cmd_explain(argc - 1, argv + 1);
     if (strcmp(cmd, "merge") == 0)
         return cmd_merge(argc - 1, argv + 1);
+    if (strcmp(cmd, "certify") == 0)
+        return cmd_certify(argc - 1, argv + 1);
     if (strcmp(cmd, "compare") == 0)
         return ps_cli_compare(argc - 1, argv + 1);
     return usage_error(cmd[0] == '-' ? "unknown option" : "unknown command", cmd);

@@ -1,0 +1,95 @@
+/* certify.h - the other side of the bracket: a concrete controller for a
+ * plant, searched within a budget and then verified (closed-loop stability
+ * by the argument principle and, for a loop without delay, by the closed-loop
+ * roots; peaks, roll-off, band and effort on a dense grid). Floors say what
+ * no controller can do; a verified controller shows what one can.
+ *
+ * Continuous loops only (an->h == 0); a digital loop is "not attempted". */
+#ifndef PS_CERTIFY_H
+#define PS_CERTIFY_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdint.h>
+
+#include "limits/floors.h"
+#include "model/plant.h"
+#include "roots/roots.h"
+
+enum { PS_CTRL_MAX_ORDER = 6, PS_CTRL_MAX_PARAMS = 8 };
+
+/* The rungs of the ladder, simple to richer (README "Certificate controllers"). */
+typedef enum ps_ctrl_structure {
+    PS_CTRL_PI = 0,     /* K (s + wi) / s, roll-off poles */
+    PS_CTRL_PID,        /* K (s^2 + 2 z wn s + wn^2) / s, roll-off poles */
+    PS_CTRL_LEADLAG,    /* K (s/z1 + 1)(s/z2 + 1) / ((s/p1 + 1)(s/p2 + 1)), roll-off poles */
+    PS_CTRL_UNSTABLE,   /* K (s/z1 + 1)(s/z2 + 1) / (s/p1 - 1), roll-off poles: one real RHP controller
+                           pole, for a plant only an unstable controller stabilizes */
+    PS_CTRL_COUNT
+} ps_ctrl_structure;
+
+const char *ps_ctrl_structure_name(ps_ctrl_structure s);
+
+/* C(s) = num(s) / den(s), real coefficients in DESCENDING powers of s. */
+typedef struct ps_controller {
+    ps_ctrl_structure structure;
+    size_t n_rolloff;                  /* roll-off poles (s/wf + 1) */
+    size_t n_param;
+    double param[PS_CTRL_MAX_PARAMS];  /* K, then the corner frequencies in rad/s (PID: wn, zeta), wf last */
+    size_t n_num, n_den;               /* coefficient counts (degree + 1) */
+    double num[PS_CTRL_MAX_ORDER + 1], den[PS_CTRL_MAX_ORDER + 1];
+} ps_controller;
+
+/* What the verification found for one plant and controller. */
+typedef struct ps_loop_check {
+    bool stable;           /* no closed-loop pole at or right of -decay_min (argument principle) */
+    bool roots_checked;    /* the closed-loop roots were computed (a loop without delay) */
+    bool roots_agree;      /* they give the same answer as the argument principle (true when not checked) */
+    double decay_min;      /* the decay rate required of every closed-loop pole, 1/s */
+    double decay;          /* roots checked: -max Re of the closed-loop poles; else decay_min when stable */
+    double ms, mt, w_ms, w_mt;  /* peaks of |S| and |T| and where */
+    double effort;         /* peak of |C S| */
+    double rolloff_ratio;  /* max over w >= wh of |L| / (delta (wh/w)^(1+k)); NAN without a roll-off start */
+    double band_peak;      /* max |S| on [0, wb]; NAN without a band */
+    bool meets;            /* stable, agreed, and every requirement met with the margin PS_CERT_MARGIN */
+    char why[200];         /* the first requirement not met, or "" */
+} ps_loop_check;
+
+/* Requirements are met with this relative margin on every checked grid value. */
+#define PS_CERT_MARGIN 1e-3
+
+typedef enum ps_cert_status {
+    PS_CERT_NOT_ATTEMPTED = 0, /* a digital loop, an order past the checks, a plant the floors rule out
+                                  entirely (no controller stabilizes) */
+    PS_CERT_DEMONSTRATED,      /* a verified controller meets every requirement */
+    PS_CERT_UNDECIDED,         /* no controller found within the budget meets every requirement */
+    PS_CERT_COUNT
+} ps_cert_status;
+
+const char *ps_cert_status_name(ps_cert_status s);
+
+typedef struct ps_cert {
+    ps_cert_status status;
+    bool found;            /* a stabilizing controller was found (ctrl, chk hold the best one) */
+    ps_controller ctrl;
+    ps_loop_check chk;
+    size_t evaluations;    /* loop evaluations spent */
+    uint64_t seed;         /* from the plant id */
+    char reason[200];      /* not attempted or undecided: why */
+} ps_cert;
+
+/* Verify controller c on the analysed plant an under requirements q. */
+void ps_loop_verify(const ps_analysis *an, const ps_requirements *q, const ps_controller *c, ps_loop_check *out);
+
+/* Search the ladder for a controller within budget loop evaluations (0: the
+ * default PS_CERT_BUDGET), seeded from id; verify the best. Deterministic for
+ * a given plant, id and budget. fl: the plant's floors (parity, crossover window). */
+#define PS_CERT_BUDGET 4000
+#define PS_CERT_BUDGET_TEXT "4000"
+void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors *fl, const char *id, size_t budget,
+                ps_cert *out);
+
+/* The value of C at s (for tests and writers). */
+void ps_controller_eval(const ps_controller *c, double re, double im, double *out_re, double *out_im);
+
+#endif

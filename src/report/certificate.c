@@ -1,0 +1,220 @@
+/* certificate.c - the bracket of one plant: floors beside the peaks of a
+ * verified controller, in words and in JSON. Wording: a search that finds
+ * nothing says so and never calls the plant infeasible; the best found is
+ * an upper bound on the best achievable peaks, not the optimum. */
+#include "report/certificate.h"
+
+#include <math.h>
+#include <string.h>
+
+ps_bracket ps_bracket_of(const ps_summary *s, const ps_cert *c)
+{
+    if (s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_UNSTABILIZABLE)
+        return PS_BRACKET_RULED_OUT;
+    if (c->status == PS_CERT_DEMONSTRATED)
+        return PS_BRACKET_DEMONSTRATED;
+    if (c->status == PS_CERT_UNDECIDED)
+        return PS_BRACKET_UNDECIDED;
+    return PS_BRACKET_NOT_ATTEMPTED;
+}
+
+const char *ps_bracket_name(ps_bracket b)
+{
+    static const char *const names[PS_BRACKET_COUNT] = {"ruled out", "demonstrated", "undecided", "not attempted"};
+    return (unsigned)b < PS_BRACKET_COUNT ? names[b] : "?";
+}
+
+void ps_poly_text(const double *p, size_t n, char *buf, size_t cap)
+{
+    size_t at = 0;
+    buf[0] = '\0';
+    bool first = true;
+    for (size_t i = 0; i < n && at < cap; i++) {
+        double v = p[i];
+        if (v == 0.0)
+            continue;
+        size_t pw = n - 1 - i;
+        const char *sign = v < 0 ? (first ? "-" : " - ") : (first ? "" : " + ");
+        double a = fabs(v);
+        int w;
+        if (pw == 0)
+            w = snprintf(buf + at, cap - at, "%s%.6g", sign, a);
+        else if (a == 1.0)
+            w = pw == 1 ? snprintf(buf + at, cap - at, "%ss", sign) : snprintf(buf + at, cap - at, "%ss^%zu", sign, pw);
+        else
+            w = pw == 1 ? snprintf(buf + at, cap - at, "%s%.6g s", sign, a)
+                        : snprintf(buf + at, cap - at, "%s%.6g s^%zu", sign, a, pw);
+        if (w < 0)
+            return;
+        at += (size_t)w;
+        first = false;
+    }
+    if (first)
+        snprintf(buf, cap, "0");
+}
+
+/* "PID with 2 roll-off poles: K -3.2, wn 1.5 rad/s, ..." */
+static void ctrl_words(const ps_controller *c, char *buf, size_t cap)
+{
+    const double *p = c->param;
+    int w = 0;
+    switch (c->structure) {
+    case PS_CTRL_PI:
+        w = snprintf(buf, cap, "PI: K %.6g, integral corner %.6g rad/s", p[0], p[1]);
+        break;
+    case PS_CTRL_PID:
+        w = snprintf(buf, cap, "PID: K %.6g, zeros at natural frequency %.6g rad/s with damping ratio %.4g", p[0],
+                     p[1], p[2]);
+        break;
+    case PS_CTRL_LEADLAG:
+        w = snprintf(buf, cap, "lead-lag: K %.6g, zeros -%.6g and -%.6g rad/s, poles -%.6g and -%.6g rad/s", p[0],
+                     p[1], p[2], p[3], p[4]);
+        break;
+    case PS_CTRL_UNSTABLE:
+        w = snprintf(buf, cap, "with an unstable pole: K %.6g, zeros -%.6g and -%.6g rad/s, RHP pole +%.6g rad/s",
+                     p[0], p[1], p[2], p[3]);
+        break;
+    default:
+        w = snprintf(buf, cap, "?");
+    }
+    if (w > 0 && (size_t)w < cap && c->n_rolloff > 0)
+        snprintf(buf + w, cap - (size_t)w, "; %zu roll-off pole%s at -%.6g rad/s", c->n_rolloff,
+                 c->n_rolloff == 1 ? "" : "s", p[c->n_param - 1]);
+}
+
+/* " (1.15 x the floor)" when the floor binds (>= 1), else "". */
+static void ratio_words(double found, double floor, char *buf, size_t cap)
+{
+    if (floor >= 1 && isfinite(floor))
+        snprintf(buf, cap, " (%.3g x the floor %.4g)", found / floor, floor);
+    else
+        snprintf(buf, cap, " (floor %.4g, not binding)", floor);
+}
+
+void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
+{
+    ps_bracket b = ps_bracket_of(s, c);
+    fprintf(out, "%s  %s  (screen verdict %s)\n", s->id, ps_bracket_name(b), ps_verdict_name(s->verdict));
+    fprintf(out, "  floors      Ms >= %.4g  Mt >= %.4g: no controller does better; allowed %.4g and %.4g\n", s->fl.ms,
+            s->fl.mt, s->req.ms_allowed, s->req.mt_allowed);
+    if (!c->found) {
+        if (c->status == PS_CERT_NOT_ATTEMPTED)
+            fprintf(out, "  search      not attempted: %s\n", c->reason);
+        else
+            fprintf(out, "  search      no stabilizing controller found within the budget (%zu loop evaluations); "
+                         "this does not show that none exists\n",
+                    c->evaluations);
+        fputc('\n', out);
+        return;
+    }
+    const ps_loop_check *k = &c->chk;
+    char rs[96], rt[96], cw[320], num[400], den[400];
+    ratio_words(k->ms, s->fl.ms, rs, sizeof rs);
+    ratio_words(k->mt, s->fl.mt, rt, sizeof rt);
+    fprintf(out, "  best found  Ms %.4g%s  Mt %.4g%s\n", k->ms, rs, k->mt, rt);
+    fprintf(out, "              an upper bound on the best achievable peaks, not the optimum\n");
+    if (b == PS_BRACKET_UNDECIDED || (b == PS_BRACKET_RULED_OUT && !k->meets))
+        fprintf(out, "              does not meet the requirements: %s\n", k->why);
+    ctrl_words(&c->ctrl, cw, sizeof cw);
+    ps_poly_text(c->ctrl.num, c->ctrl.n_num, num, sizeof num);
+    ps_poly_text(c->ctrl.den, c->ctrl.n_den, den, sizeof den);
+    fprintf(out, "  controller  %s\n", cw);
+    fprintf(out, "              C(s) = (%s) / (%s)\n", num, den);
+    fprintf(out, "  checks      closed loop stable by the argument principle%s; every closed-loop pole decays at "
+                 "%.4g 1/s or faster\n",
+            k->roots_checked ? ", the closed-loop roots agree" : " (with delay: no closed-loop roots to compare)",
+            k->roots_checked ? k->decay : k->decay_min);
+    if (isfinite(k->rolloff_ratio))
+        fprintf(out, "              |L| reaches %.3g of the roll-off bound from %.4g rad/s on\n", k->rolloff_ratio,
+                s->req.wh);
+    if (isfinite(k->band_peak))
+        fprintf(out, "              |S| at most %.4g on the band [0, %.4g] rad/s (allowed %.4g)\n", k->band_peak,
+                s->req.wb, s->req.eps);
+    if (isfinite(k->w_ms))
+        fprintf(out, "              peak |C S| %.4g; peaks at %.4g rad/s (|S|) and %.4g rad/s (|T|)\n", k->effort,
+                k->w_ms, k->w_mt);
+    else
+        fprintf(out, "              peak |C S| %.4g; |S| stays below 1 and tends to 1 at high frequency; |T| peaks at "
+                     "%.4g rad/s\n",
+                k->effort, k->w_mt);
+    fprintf(out, "  search      %zu loop evaluations, seed %016llx\n\n", c->evaluations,
+            (unsigned long long)c->seed);
+}
+
+static json_t *num_or_null(double v)
+{
+    return isfinite(v) ? json_real(v) : json_null();
+}
+
+static json_t *coeffs(const double *p, size_t n)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; a && i < n; i++)
+        json_array_append_new(a, json_real(p[i]));
+    return a;
+}
+
+json_t *ps_certificate_json(const ps_summary *s, const ps_cert *c)
+{
+    json_t *o = json_object();
+    if (!o)
+        return NULL;
+    ps_bracket b = ps_bracket_of(s, c);
+    json_object_set_new(o, "id", json_string(s->id));
+    json_object_set_new(o, "outcome", json_string(ps_bracket_name(b)));
+    json_object_set_new(o, "verdict", json_string(ps_verdict_name(s->verdict)));
+    json_object_set_new(o, "ms_floor", num_or_null(s->fl.ms));
+    json_object_set_new(o, "mt_floor", num_or_null(s->fl.mt));
+    json_object_set_new(o, "ms_interpolation_floor", num_or_null(s->fl.ms_interpolation));
+    json_object_set_new(o, "mt_interpolation_floor", num_or_null(s->fl.mt_interpolation));
+    json_object_set_new(o, "effort_floor", num_or_null(s->fl.effort));
+    json_object_set_new(o, "ms_allowed", json_real(s->req.ms_allowed));
+    json_object_set_new(o, "mt_allowed", json_real(s->req.mt_allowed));
+    json_object_set_new(o, "search", json_string(ps_cert_status_name(c->status)));
+    json_object_set_new(o, "reason", json_string(c->reason));
+    json_object_set_new(o, "evaluations", json_integer((json_int_t)c->evaluations));
+    char seed[24];
+    snprintf(seed, sizeof seed, "%016llx", (unsigned long long)c->seed);
+    json_object_set_new(o, "seed", json_string(seed));
+    if (!c->found) {
+        json_object_set_new(o, "controller", json_null());
+        return o;
+    }
+    const ps_loop_check *k = &c->chk;
+    json_t *ct = json_object();
+    json_object_set_new(ct, "structure", json_string(ps_ctrl_structure_name(c->ctrl.structure)));
+    json_object_set_new(ct, "rolloff_poles", json_integer((json_int_t)c->ctrl.n_rolloff));
+    json_object_set_new(ct, "parameters", coeffs(c->ctrl.param, c->ctrl.n_param));
+    json_object_set_new(ct, "num", coeffs(c->ctrl.num, c->ctrl.n_num));
+    json_object_set_new(ct, "den", coeffs(c->ctrl.den, c->ctrl.n_den));
+    json_object_set_new(o, "controller", ct);
+    json_t *ck = json_object();
+    json_object_set_new(ck, "ms", num_or_null(k->ms));
+    json_object_set_new(ck, "mt", num_or_null(k->mt));
+    json_object_set_new(ck, "w_ms", num_or_null(k->w_ms));
+    json_object_set_new(ck, "w_mt", num_or_null(k->w_mt));
+    json_object_set_new(ck, "effort", num_or_null(k->effort));
+    json_object_set_new(ck, "rolloff_ratio", num_or_null(k->rolloff_ratio));
+    json_object_set_new(ck, "band_peak", num_or_null(k->band_peak));
+    json_object_set_new(ck, "decay", num_or_null(k->decay));
+    json_object_set_new(ck, "decay_min", num_or_null(k->decay_min));
+    json_object_set_new(ck, "roots_checked", json_boolean(k->roots_checked));
+    json_object_set_new(ck, "meets", json_boolean(k->meets));
+    json_object_set_new(ck, "why", json_string(k->why));
+    json_object_set_new(o, "found", ck);
+    return o;
+}
+
+static json_t *roots_json(const ps_root *r, size_t n)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; a && i < n; i++)
+        json_array_append_new(a, json_pack("[f,f]", r[i].v.re, r[i].v.im));
+    return a;
+}
+
+json_t *ps_certificate_plant_json(const ps_analysis *an)
+{
+    return json_pack("{s:f,s:o,s:o,s:f}", "gain", an->gain, "zeros", roots_json(an->zeros, an->n_zeros), "poles",
+                     roots_json(an->poles, an->n_poles), "delay", an->delay);
+}
