@@ -275,8 +275,9 @@ void ps_loop_verify(const ps_analysis *an, const ps_requirements *q, const ps_co
     out->band_peak = q->wb > 0 ? 0.0 : NAN;
     double lo, hi;
     ps_loop_range(an, q, c, &lo, &hi);
-    /* the decay rate asked of every closed-loop pole: a thousandth of the slowest scale */
-    out->decay_min = 1e-3 * lo;
+    /* the decay rate asked of every closed-loop pole: a thousandth of the slowest nonzero
+       root or corner of the plant and controller (or of wb, wh, 1/delay) */
+    out->decay_min = lo; /* lo is a thousandth of the slowest root or corner */
     if (loop_rel_degree(an, c) < 1) {
         snprintf(out->why, sizeof out->why, "the loop is not strictly proper");
         return;

@@ -69,7 +69,9 @@ static void build(const space *sp, const arm *a, const double *x, ps_controller 
     memset(c, 0, sizeof *c);
     c->structure = a->structure;
     c->n_rolloff = sp->n_rolloff[a->structure];
-    double w = sp->w_ref, k = a->sign * sp->k0 * decade(x[0], -3, 6);
+    /* built with K = +-1, then scaled so that |C(j w_ref)| = k0 10^(6 x0 - 3): the first
+       coordinate is the loop gain at the reference frequency whatever the structure */
+    double w = sp->w_ref, k = a->sign;
     double wf = w * decade(x[a->dim - 1], 0, 3);
     c->param[0] = k;
     double num[PS_CTRL_MAX_ORDER + 1], den[PS_CTRL_MAX_ORDER + 1];
@@ -129,6 +131,15 @@ static void build(const space *sp, const arm *a, const double *x, ps_controller 
         nd = pmul(den, nd, r, 2, den);
     }
     c->param[c->n_param - 1] = wf;
+    double complex jw = ps_complex_make(0.0, w), nv = 0, dv = 0;
+    for (size_t i = 0; i < nn; i++)
+        nv = nv * jw + num[i];
+    for (size_t i = 0; i < nd; i++)
+        dv = dv * jw + den[i];
+    double shape = cabs(nv / dv), scale = sp->k0 * decade(x[0], -3, 6) / (shape > 0 && isfinite(shape) ? shape : 1);
+    for (size_t i = 0; i < nn; i++)
+        num[i] *= scale;
+    c->param[0] = k * scale;
     /* monic denominator */
     double lead = den[0];
     for (size_t i = 0; i < nd; i++)
@@ -276,15 +287,15 @@ static double cost(space *sp, const arm *a, const double *x)
         return 1e6;
     int z;
     double mre;
+    double top = ps_loop_top(sp->an, &c, sp->hi);
     if (!(sp->an->delay > 0) && ps_loop_closed_max_re(sp->an, &c, &mre) == 0)
         z = mre < -sp->decay_min ? 0 : 1;
     else
-        z = ps_loop_winding(sp->an, &c, cp, ncp, sp->decay_min, sp->hi * 1e3, 6);
+        z = ps_loop_winding(sp->an, &c, cp, ncp, sp->decay_min, top * 10, 6);
     if (z != 0)
         return 1e3 + (z > 0 ? z : 50);
     const ps_requirements *q = sp->q;
     double ms = 1, mt = 0, cs = 0, roll = 0, band = 0, k1 = 1 + q->k; /* |S| -> 1 at infinity */
-    double top = ps_loop_top(sp->an, &c, sp->hi);
     int n = (int)ceil(SEARCH_PER_DECADE * log10(top / sp->lo));
     for (int i = 0; i <= n; i++) {
         double w = sp->lo * pow(10.0, (double)i / SEARCH_PER_DECADE);
@@ -505,9 +516,9 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
     double x_mid[PS_CTRL_MAX_PARAMS] = {0.5, 0.5, 0.5, 0.5, 0.5, 0.5, 0.5, 0.5};
     build(&sp, &arms[0], x_mid, &probe);
     ps_loop_range(an, q, &probe, &sp.lo, &sp.hi);
+    sp.decay_min = sp.lo; /* as the verification asks: a thousandth of the slowest scale */
     sp.lo = fmin(sp.lo, sp.w_ref * 1e-4);
     sp.hi = fmax(sp.hi, sp.w_ref * 1e4);
-    sp.decay_min = 1e-3 * sp.lo;
     uint64_t rng = out->seed;
     point keep[KEEP];
     size_t n_keep = 0;
