@@ -25,6 +25,8 @@ typedef enum ps_ctrl_structure {
     PS_CTRL_LEADLAG,    /* K (s/z1 + 1)(s/z2 + 1) / ((s/p1 + 1)(s/p2 + 1)), roll-off poles */
     PS_CTRL_UNSTABLE,   /* K (s/z1 + 1)(s/z2 + 1) / (s/p1 - 1), roll-off poles: one real RHP controller
                            pole, for a plant only an unstable controller stabilizes */
+    PS_CTRL_NOTCH,      /* the PID times (s^2 + 2 zz wm s + wm^2) / (s^2 + 2 zp wm s + wm^2), wm near the plant's
+                           most lightly damped pole pair (damping ratio below 0.2), roll-off poles */
     PS_CTRL_COUNT
 } ps_ctrl_structure;
 
@@ -35,7 +37,8 @@ typedef struct ps_controller {
     ps_ctrl_structure structure;
     size_t n_rolloff;                  /* roll-off poles (s/wf + 1) */
     size_t n_param;
-    double param[PS_CTRL_MAX_PARAMS];  /* K, then the corner frequencies in rad/s (PID: wn, zeta), wf last */
+    double param[PS_CTRL_MAX_PARAMS];  /* K, then the corner frequencies in rad/s (PID: wn, zeta; notch: wn, zeta,
+                                          wm, zz, zp), wf last */
     size_t n_num, n_den;               /* coefficient counts (degree + 1) */
     double num[PS_CTRL_MAX_ORDER + 1], den[PS_CTRL_MAX_ORDER + 1];
 } ps_controller;

@@ -15,7 +15,7 @@
 
 const char *ps_ctrl_structure_name(ps_ctrl_structure s)
 {
-    static const char *const names[PS_CTRL_COUNT] = {"PI", "PID", "lead-lag", "unstable"};
+    static const char *const names[PS_CTRL_COUNT] = {"PI", "PID", "lead-lag", "unstable", "PID-notch"};
     return (unsigned)s < PS_CTRL_COUNT ? names[s] : "?";
 }
 

@@ -30,6 +30,8 @@ typedef struct space {
     const ps_analysis *an;
     const ps_requirements *q;
     double w_ref, k0;
+    double w_mode;          /* the most lightly damped plant pole pair's modulus (0: none below 0.2) */
+    double w_mode_zeta;     /* and its damping ratio */
     size_t n_rolloff[PS_CTRL_COUNT];
     double decay_min;
     double lo, hi;          /* search grid */
@@ -46,6 +48,8 @@ static size_t arm_dim(ps_ctrl_structure s)
     case PS_CTRL_LEADLAG:
     case PS_CTRL_UNSTABLE:
         return 5; /* K, z1, z2 or p1, p2 or p1, wf */
+    case PS_CTRL_NOTCH:
+        return 7; /* K, wn, zeta, wm, zz, zp, wf */
     default:
         return 0;
     }
@@ -85,13 +89,25 @@ static void build(const space *sp, const arm *a, const double *x, ps_controller 
         c->n_param = 3;
         break;
     }
-    case PS_CTRL_PID: {
+    case PS_CTRL_PID:
+    case PS_CTRL_NOTCH: {
         double wn = w * decade(x[1], -2.5, 3.5), zeta = decade(x[2], -1.3, 2.3);
         c->param[1] = wn;
         c->param[2] = zeta;
         num[0] = k, num[1] = k * 2 * zeta * wn, num[2] = k * wn * wn, nn = 3;
         den[0] = 1, den[1] = 0, nd = 2;
         c->n_param = 4;
+        if (a->structure == PS_CTRL_NOTCH) {
+            double wm = sp->w_mode * decade(x[3], -0.15, 0.3), zz = decade(x[4], -2.5, 2.2),
+                   zp = decade(x[5], -1.3, 1.3);
+            double nz[3] = {1, 2 * zz * wm, wm * wm}, pz[3] = {1, 2 * zp * wm, wm * wm};
+            nn = pmul(num, nn, nz, 3, num);
+            nd = pmul(den, nd, pz, 3, den);
+            c->param[3] = wm;
+            c->param[4] = zz;
+            c->param[5] = zp;
+            c->n_param = 7;
+        }
         break;
     }
     case PS_CTRL_LEADLAG:
@@ -486,12 +502,20 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
     }
     if (budget == 0)
         budget = PS_CERT_BUDGET;
-    space sp = {an, q, reference_w(an, q, fl), 1, {0}, 0, 0, 0, 0, budget};
+    space sp = {.an = an, .q = q, .w_ref = reference_w(an, q, fl), .k0 = 1, .budget = budget};
     double complex p0, cv;
     ps_controller unit = {.n_num = 1, .n_den = 1, .num = {1}, .den = {1}};
     ps_loop_at(an, &unit, ps_complex_make(0, sp.w_ref), &p0, &cv);
     sp.k0 = cabs(p0) > 0 && isfinite(cabs(p0)) ? 1 / cabs(p0) : 1;
-    static const int base_rel[PS_CTRL_COUNT] = {0, -1, 0, -1};
+    static const int base_rel[PS_CTRL_COUNT] = {0, -1, 0, -1, -1};
+    for (size_t i = 0; i < an->n_poles; i++) { /* the most lightly damped pair, for the notch */
+        double m = hypot(an->poles[i].v.re, an->poles[i].v.im);
+        if (an->poles[i].v.im > 0 && m > 0 && -an->poles[i].v.re / m < 0.2 &&
+            (sp.w_mode == 0 || -an->poles[i].v.re / m < sp.w_mode_zeta)) {
+            sp.w_mode = m;
+            sp.w_mode_zeta = -an->poles[i].v.re / m;
+        }
+    }
     for (int s = 0; s < PS_CTRL_COUNT; s++) {
         int nf = rel_need(q) - an->rel_degree - base_rel[s];
         if (nf < -base_rel[s])
@@ -506,7 +530,9 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
     for (int s = 0; s < PS_CTRL_COUNT; s++) {
         if (s == PS_CTRL_UNSTABLE && fl->parity_interlacing)
             continue; /* a stable controller can stabilize: the unstable rung is for plants that need it */
-        size_t order = (s == PS_CTRL_LEADLAG ? 2 : 1) + sp.n_rolloff[s];
+        if (s == PS_CTRL_NOTCH && sp.w_mode == 0)
+            continue; /* no light mode to notch */
+        size_t order = (s == PS_CTRL_LEADLAG ? 2 : s == PS_CTRL_NOTCH ? 3 : 1) + sp.n_rolloff[s];
         if (order > PS_CTRL_MAX_ORDER)
             continue;
         arms[n_arms++] = (arm){(ps_ctrl_structure)s, 1, arm_dim((ps_ctrl_structure)s)};

@@ -74,6 +74,12 @@ static void ctrl_words(const ps_controller *c, char *buf, size_t cap)
         w = snprintf(buf, cap, "with an unstable pole: K %.6g, zeros -%.6g and -%.6g rad/s, RHP pole +%.6g rad/s",
                      p[0], p[1], p[2], p[3]);
         break;
+    case PS_CTRL_NOTCH:
+        w = snprintf(buf, cap,
+                     "PID with a notch: K %.6g, zeros at natural frequency %.6g rad/s with damping ratio %.4g; notch "
+                     "at %.6g rad/s, damping ratios %.4g (zeros) and %.4g (poles)",
+                     p[0], p[1], p[2], p[3], p[4], p[5]);
+        break;
     default:
         w = snprintf(buf, cap, "?");
     }
