@@ -96,6 +96,30 @@ void ps_loop_range(const ps_analysis *an, const ps_requirements *q, const ps_con
     *hi = ps_loop_top(an, c, mx * 1e3);
 }
 
+double ps_loop_bottom(const ps_analysis *an, const ps_controller *c, double lo)
+{
+    /* below the slowest scale the loop may still be crossing over (a low gain) or its
+       |T| and |C S| still climbing to their limits (an integrating loop: T -> 1, C S -> 1/P):
+       go down by decades until |S|, |T| and |C S| have settled to 1e-7 */
+    double complex l, cv;
+    ps_loop_at(an, c, ps_complex_make(0.0, lo), &l, &cv);
+    for (int i = 0; i < 30; i++) {
+        double complex l2, cv2;
+        ps_loop_at(an, c, ps_complex_make(0.0, lo / 10), &l2, &cv2);
+        double s1 = cabs(1 / (1 + l)), s2 = cabs(1 / (1 + l2)), t1 = cabs(l / (1 + l)), t2 = cabs(l2 / (1 + l2));
+        double c1 = cabs(cv / (1 + l)), c2 = cabs(cv2 / (1 + l2));
+        if (!isfinite(s2) || !isfinite(t2) || !isfinite(c2))
+            break;
+        if (fabs(s1 - s2) <= 1e-7 * fmax(s1, 1e-300) + 1e-12 && fabs(t1 - t2) <= 1e-7 * fmax(t1, 1e-300) + 1e-12 &&
+            fabs(c1 - c2) <= 1e-7 * fmax(c1, 1e-300))
+            break;
+        lo /= 10;
+        l = l2;
+        cv = cv2;
+    }
+    return lo;
+}
+
 double ps_loop_top(const ps_analysis *an, const ps_controller *c, double hi)
 {
     /* a high gain moves the crossover past every root and corner: go on by
@@ -316,6 +340,7 @@ void ps_loop_verify(const ps_analysis *an, const ps_requirements *q, const ps_co
     }
     /* dense grid: 400 points a decade, then each local maximum refined */
     enum { PER_DECADE = 400 };
+    lo = ps_loop_bottom(an, c, lo);
     int n = (int)ceil(PER_DECADE * log10(hi / lo));
     double ps_prev2 = 0, ps_prev = 0, pt_prev2 = 0, pt_prev = 0, pc_prev2 = 0, pc_prev = 0;
     double wprev2 = lo, wprev = lo;
@@ -375,6 +400,11 @@ void ps_loop_verify(const ps_analysis *an, const ps_requirements *q, const ps_co
     if (out->ms < 1.0) {
         out->ms = 1.0;
         out->w_ms = INFINITY;
+    }
+    if (q->wh > 0) { /* the roll-off start itself, where the bound is loosest relative to a flat |L| */
+        double complex l, cv;
+        ps_loop_at(an, c, ps_complex_make(0.0, q->wh), &l, &cv);
+        out->rolloff_ratio = fmax(out->rolloff_ratio, cabs(l) / q->delta);
     }
     if (q->wb > 0) { /* the band edge itself and w -> 0 */
         out->band_peak = fmax(out->band_peak, mag_s(an, c, q->wb));

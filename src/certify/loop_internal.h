@@ -14,6 +14,10 @@ void ps_loop_at(const ps_analysis *an, const ps_controller *c, double complex s,
  * (roots, corners, wh, wb, 1/delay) with three decades either side. */
 void ps_loop_range(const ps_analysis *an, const ps_requirements *q, const ps_controller *c, double *lo, double *hi);
 
+/* lo, lowered by decades (at most 30) until |S|, |T| and |C S| have settled
+ * to their low-frequency limits (relative change below 1e-7 a decade). */
+double ps_loop_bottom(const ps_analysis *an, const ps_controller *c, double lo);
+
 /* hi, raised by decades (at most 24) until |L(j hi)| < 1e-3. */
 double ps_loop_top(const ps_analysis *an, const ps_controller *c, double hi);
 

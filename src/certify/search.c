@@ -312,9 +312,15 @@ static double cost(space *sp, const arm *a, const double *x)
         return 1e3 + (z > 0 ? z : 50);
     const ps_requirements *q = sp->q;
     double ms = 1, mt = 0, cs = 0, roll = 0, band = 0, k1 = 1 + q->k; /* |S| -> 1 at infinity */
-    int n = (int)ceil(SEARCH_PER_DECADE * log10(top / sp->lo));
+    double bottom = ps_loop_bottom(sp->an, &c, sp->lo);
+    int n = (int)ceil(SEARCH_PER_DECADE * log10(top / bottom));
+    if (q->wh > 0) {
+        double complex l, cv;
+        ps_loop_at(sp->an, &c, ps_complex_make(0.0, q->wh), &l, &cv);
+        roll = cabs(l) / q->delta;
+    }
     for (int i = 0; i <= n; i++) {
-        double w = sp->lo * pow(10.0, (double)i / SEARCH_PER_DECADE);
+        double w = bottom * pow(10.0, (double)i / SEARCH_PER_DECADE);
         double complex l, cv;
         ps_loop_at(sp->an, &c, ps_complex_make(0.0, w), &l, &cv);
         double complex s = 1.0 / (1.0 + l);
