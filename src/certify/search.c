@@ -166,6 +166,18 @@ static void build(const space *sp, const arm *a, const double *x, ps_controller 
     c->n_den = nd;
 }
 
+/* The deg roots of the polynomial with ASCENDING coefficients asc[0..deg]
+ * into z (re, im pairs) by GSL. 0, or -1 when the solver fails. */
+static int solve_asc(const double *asc, size_t deg, double *z)
+{
+    gsl_poly_complex_workspace *w = gsl_poly_complex_workspace_alloc(deg + 1);
+    if (!w)
+        return -1;
+    int rc = gsl_poly_complex_solve(asc, deg + 1, w, z);
+    gsl_poly_complex_workspace_free(w);
+    return rc == GSL_SUCCESS ? 0 : -1;
+}
+
 int ps_ctrl_poles(const ps_controller *c, ps_root *out, size_t *n)
 {
     size_t lead = 0;
@@ -191,12 +203,7 @@ int ps_ctrl_poles(const ps_controller *c, ps_root *out, size_t *n)
         out[(*n)++] = (ps_root){{-asc[0] / asc[1], 0}, PS_LHP, 1, 0};
         return 0;
     }
-    gsl_poly_complex_workspace *w = gsl_poly_complex_workspace_alloc(deg + 1);
-    if (!w)
-        return -1;
-    int rc = gsl_poly_complex_solve(asc, deg + 1, w, z);
-    gsl_poly_complex_workspace_free(w);
-    if (rc != GSL_SUCCESS)
+    if (solve_asc(asc, deg, z) != 0)
         return -1;
     for (size_t i = 0; i < deg; i++)
         out[(*n)++] = (ps_root){{z[2 * i], z[2 * i + 1]}, PS_LHP, 1, 0};
@@ -271,12 +278,7 @@ int ps_loop_closed_max_re(const ps_analysis *an, const ps_controller *c, double 
     size_t deg = n - 1 - lead;
     for (size_t i = 0; i <= deg; i++)
         asc[i] = ch[n - 1 - i];
-    gsl_poly_complex_workspace *w = gsl_poly_complex_workspace_alloc(deg + 1);
-    if (!w)
-        return -1;
-    int rc = gsl_poly_complex_solve(asc, deg + 1, w, z);
-    gsl_poly_complex_workspace_free(w);
-    if (rc != GSL_SUCCESS)
+    if (solve_asc(asc, deg, z) != 0)
         return -1;
     double mx = -INFINITY;
     for (size_t i = 0; i < deg; i++)
