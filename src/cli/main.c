@@ -106,7 +106,8 @@ enum {
     OPT_DETAIL,
     OPT_MEMORY_ROWS,
     OPT_SHARD,
-    OPT_BUDGET
+    OPT_BUDGET,
+    OPT_CERTIFY
 };
 
 typedef struct cli_option {
@@ -181,6 +182,15 @@ static const cli_option merge_opts[] = {
 
 static const cli_option plain_opts[] = {HELP_OPTION, {0}};
 
+static const cli_option explain_opts[] = {
+    {"certify", OPT_CERTIFY, NULL, "add section 8: a controller searched and verified for\n"
+                                   "the plant, its peaks beside the floors (as certify)"},
+    {"budget", OPT_BUDGET, "N", "loop evaluations for --certify, 100 to 10000000\n"
+                                "(default " PS_CERT_BUDGET_TEXT ")"},
+    HELP_OPTION,
+    {0},
+};
+
 static const cli_option certify_opts[] = {
     {"budget", OPT_BUDGET, "N", "loop evaluations a plant may spend in the search,\n"
                                 "100 to 10000000 (default " PS_CERT_BUDGET_TEXT ")"},
@@ -248,7 +258,7 @@ static const cli_command explain_cmd = {
     "floor with formula, inputs, source and assumption, the severity arithmetic,\n"
     "what raises the binding floor, the verdict and every redesign target. A family\n"
     "id lists the family's plants. An ID that begins with '-' follows '--'.",
-    plain_opts,
+    explain_opts,
     "Exit codes: 0 explained, 2 usage error or no plant ID in the catalogs, 3 some\n"
     "entries rejected, 4 a catalog could not be opened or parsed to the end, or the\n"
     "output failed.\n"};
@@ -1240,6 +1250,26 @@ static void print_big(double v, double ln)
         print_value(v);
 }
 
+/* explain --certify [--budget N]: section 8, the certificate controller. */
+static bool explain_certify;
+static size_t explain_budget = PS_CERT_BUDGET;
+
+static int explain_option(void *ctx, int key, const char *value)
+{
+    (void)ctx;
+    if (key == OPT_CERTIFY)
+        explain_certify = true;
+    else if (key == OPT_BUDGET) {
+        char *end;
+        errno = 0;
+        unsigned long long v = strtoull(value, &end, 10);
+        if (errno || *end || end == value || value[0] == '-' || v < 100 || v > 10000000)
+            return usage_error("--budget needs a whole number from 100 to 10000000", value);
+        explain_budget = (size_t)v;
+    }
+    return GO_ON;
+}
+
 static void explain_one(const ps_outcome *o, const ps_summary *s)
 {
     const ps_plant *p = o->p;
@@ -1351,6 +1381,18 @@ static void explain_one(const ps_outcome *o, const ps_summary *s)
         else
             printf("  - %s: %s\n", ps_target_label((ps_target_kind)k), s->target[k].why);
     }
+    if (explain_certify) {
+        puts("\n8. The other side of the bracket (certify: a controller searched within the budget and verified)");
+        ps_cert *cert = malloc(sizeof *cert);
+        if (!cert) {
+            puts("  not computed: out of memory");
+        } else {
+            ps_certify(an, q, fl, p->id, explain_budget, cert);
+            printf("  ");
+            ps_certificate_text(stdout, s, cert);
+            free(cert);
+        }
+    }
     printf("\n%s\n", ps_caution_text);
 }
 
@@ -1360,7 +1402,7 @@ static int cmd_explain(int argc, char **argv)
     char **ops = operands_new(argc);
     if (!ops)
         return EXIT_IO;
-    int prc = options_parse(&explain_cmd, argc, argv, no_options, NULL, ops, &n);
+    int prc = options_parse(&explain_cmd, argc, argv, explain_option, NULL, ops, &n);
     if (prc == GO_ON && n < 2)
         prc = usage_error("explain needs a plant id and at least one catalog file", NULL);
     if (prc != GO_ON) {

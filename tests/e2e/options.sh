@@ -16,16 +16,17 @@ cf="$src/tests/data/e2e/closed-form.yaml"
 opts_survey="--json -h --help"
 opts_screen="-o --gate --marginal-at --no-files --threads --quiet --show --detail --memory-rows --shard -h --help"
 opts_merge="-o --gate --no-files --threads --show --memory-rows -h --help"
-opts_explain="-h --help"
+opts_explain="--certify --budget -h --help"
+opts_certify="--budget --json -h --help"
 opts_read="-h --help"
 
 "$ps" --help >"$tmp/out" 2>"$tmp/err"; check "plantsieve --help exits 0" 0 $?
-for c in screen merge explain survey read; do
+for c in screen merge explain survey read certify; do
     grep -q "^  $c " "$tmp/out"; check "plantsieve --help lists the command $c" 0 $?
 done
 contains "plantsieve --help points to each command's help" "$tmp/out" "plantsieve COMMAND --help"
 
-for c in survey screen merge explain read; do
+for c in survey screen merge explain read certify; do
     eval "opts=\$opts_$c"
     for h in --help -h; do
         "$ps" $c $h >"$tmp/help.$c" 2>"$tmp/err"; check "$c $h exits 0" 0 $?
@@ -125,6 +126,15 @@ contains "--marginal-at=1.5 named" "$tmp/err" "--marginal-at takes a number in (
 "$ps" read >"$tmp/out" 2>"$tmp/err"; check "read without catalogs" 2 $?
 contains "read without catalogs: said" "$tmp/err" "read needs at least one catalog file"
 "$ps" explain strider-d >"$tmp/out" 2>"$tmp/err"; check "explain without catalogs" 2 $?
+"$ps" certify >"$tmp/out" 2>"$tmp/err"; check "certify without catalogs" 2 $?
+contains "certify without catalogs: said" "$tmp/err" "certify needs at least one catalog file"
+"$ps" certify --budget=99 "$cf" >"$tmp/out" 2>"$tmp/err"; check "certify --budget=99" 2 $?
+contains "certify --budget=99 named" "$tmp/err" "--budget needs a whole number from 100 to 10000000: 99"
+"$ps" explain --certify --budget=300 strider-a "$demo" >"$tmp/out" 2>"$tmp/err"; check "explain --certify" 0 $?
+contains "explain --certify: section 8" "$tmp/out" "8. The other side of the bracket"
+contains "explain --certify: the search's count" "$tmp/out" "loop evaluations, seed"
+"$ps" explain strider-a "$demo" >"$tmp/out" 2>"$tmp/err"
+! grep -q "8. The other side" "$tmp/out"; check "explain without --certify has no section 8" 0 $?
 "$ps" help frobnicate >"$tmp/out" 2>"$tmp/err"; check "help of an unknown command" 2 $?
 "$ps" --frobnicate >"$tmp/out" 2>"$tmp/err"; check "an unknown option of the program" 2 $?
 contains "an unknown option of the program: named" "$tmp/err" "plantsieve: unknown option: --frobnicate"
