@@ -195,6 +195,8 @@ static const cli_option certify_opts[] = {
     {"budget", OPT_BUDGET, "N", "loop evaluations a plant may spend in the search,\n"
                                 "100 to 10000000 (default " PS_CERT_BUDGET_TEXT ")"},
     {"json", OPT_JSON, NULL, "write one JSON document to stdout instead of text"},
+    {"threads", OPT_THREADS, "N", "search on N threads, 1 to 64 (default: the online\n"
+                                  "CPUs); the output is the same for any N"},
     HELP_OPTION,
     {0},
 };
@@ -1260,10 +1262,8 @@ static int explain_option(void *ctx, int key, const char *value)
     if (key == OPT_CERTIFY)
         explain_certify = true;
     else if (key == OPT_BUDGET) {
-        char *end;
-        errno = 0;
-        unsigned long long v = strtoull(value, &end, 10);
-        if (errno || *end || end == value || value[0] == '-' || v < 100 || v > 10000000)
+        long v;
+        if (!whole_number(value, 100, 10000000, &v))
             return usage_error("--budget needs a whole number from 100 to 10000000", value);
         explain_budget = (size_t)v;
     }
@@ -1479,16 +1479,67 @@ static size_t count_entries(char **files, int n)
 
 /* ---- certify ---- */
 
+/* Plants wait in a chunk of CERT_CHUNK; the searches of a full chunk run on
+ * the threads, then the chunk is printed in catalog order (each search
+ * depends only on its plant, so the output is the same for any --threads). */
+enum { CERT_CHUNK = 32 };
+
+typedef struct cert_job {
+    ps_summary s;      /* the screened plant: id, verdict, floors, requirements */
+    ps_analysis an;
+    ps_cert cert;
+} cert_job;
+
 typedef struct certify_ctx {
-    size_t budget;
+    size_t budget, threads;
     bool json;
     ps_screen_ws *ws;
-    ps_summary *s;
-    ps_cert *cert;
+    cert_job *jobs;
+    size_t n_jobs;
+    atomic_size_t next;
     json_t *plants;
     size_t per_bracket[PS_BRACKET_COUNT];
     bool nomem;
 } certify_ctx;
+
+static void *certify_worker(void *arg)
+{
+    certify_ctx *c = arg;
+    for (size_t i; (i = atomic_fetch_add(&c->next, 1)) < c->n_jobs;) {
+        cert_job *j = &c->jobs[i];
+        ps_certify(&j->an, &j->s.req, &j->s.fl, j->s.id, c->budget, &j->cert);
+    }
+    return NULL;
+}
+
+/* Search the waiting plants, then print them in order. */
+static void certify_flush(certify_ctx *c)
+{
+    if (c->n_jobs == 0)
+        return;
+    atomic_store(&c->next, 0);
+    pthread_t th[PS_POOL_MAX_THREADS];
+    size_t started = 0;
+    for (size_t t = 1; t < c->threads && t < c->n_jobs; t++)
+        if (pthread_create(&th[started], NULL, certify_worker, c) == 0)
+            started++;
+    certify_worker(c);
+    for (size_t t = 0; t < started; t++)
+        pthread_join(th[t], NULL);
+    for (size_t i = 0; i < c->n_jobs; i++) {
+        cert_job *j = &c->jobs[i];
+        c->per_bracket[ps_bracket_of(&j->s, &j->cert)]++;
+        if (!c->json) {
+            ps_certificate_text(stdout, &j->s, &j->cert);
+            continue;
+        }
+        json_t *o = ps_certificate_json(&j->s, &j->cert);
+        json_t *pl = ps_certificate_plant_json(&j->an);
+        if (!o || !pl || json_object_set_new(o, "plant", pl) != 0 || json_array_append_new(c->plants, o) != 0)
+            c->nomem = true;
+    }
+    c->n_jobs = 0;
+}
 
 static int certify_option(void *ctx, int key, const char *value)
 {
@@ -1496,12 +1547,15 @@ static int certify_option(void *ctx, int key, const char *value)
     if (key == OPT_JSON)
         c->json = true;
     else if (key == OPT_BUDGET) {
-        char *end;
-        errno = 0;
-        unsigned long long v = strtoull(value, &end, 10);
-        if (errno || *end || end == value || value[0] == '-' || v < 100 || v > 10000000)
+        long v;
+        if (!whole_number(value, 100, 10000000, &v))
             return usage_error("--budget needs a whole number from 100 to 10000000", value);
         c->budget = (size_t)v;
+    } else if (key == OPT_THREADS) {
+        long v;
+        if (!whole_number(value, 1, PS_POOL_MAX_THREADS, &v))
+            return usage_error("--threads takes a whole number from 1 to 64", value);
+        c->threads = (size_t)v;
     }
     return GO_ON;
 }
@@ -1510,23 +1564,18 @@ static void certify_entry(void *ctx, const ps_outcome *o)
 {
     certify_ctx *c = ctx;
     if (o->err) {
+        certify_flush(c); /* the plants before it are printed first */
         say_at(o->file, o->err, o->p->id);
         return;
     }
+    cert_job *j = &c->jobs[c->n_jobs++];
     ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_NONE, 0};
-    c->s->order = 0;
-    c->s->file_index = 0;
-    ps_screen_assess(c->ws, o, &opt, c->s);
-    ps_certify(o->an, &o->p->req, o->fl, o->p->id, c->budget, c->cert);
-    c->per_bracket[ps_bracket_of(c->s, c->cert)]++;
-    if (!c->json) {
-        ps_certificate_text(stdout, c->s, c->cert);
-        return;
-    }
-    json_t *j = ps_certificate_json(c->s, c->cert);
-    json_t *pl = ps_certificate_plant_json(o->an);
-    if (!j || !pl || json_object_set_new(j, "plant", pl) != 0 || json_array_append_new(c->plants, j) != 0)
-        c->nomem = true;
+    j->s.order = 0;
+    j->s.file_index = 0;
+    ps_screen_assess(c->ws, o, &opt, &j->s);
+    j->an = *o->an;
+    if (c->n_jobs == CERT_CHUNK)
+        certify_flush(c);
 }
 
 static int cmd_certify(int argc, char **argv)
@@ -1535,7 +1584,8 @@ static int cmd_certify(int argc, char **argv)
     char **cats = operands_new(argc);
     if (!cats)
         return EXIT_IO;
-    certify_ctx c = {.budget = PS_CERT_BUDGET};
+    long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
+    certify_ctx c = {.budget = PS_CERT_BUDGET, .threads = ncpu >= 1 ? (size_t)(ncpu < 64 ? ncpu : 64) : 1};
     int rc = options_parse(&certify_cmd, argc, argv, certify_option, &c, cats, &n);
     if (rc == GO_ON && n == 0)
         rc = usage_error("certify needs at least one catalog file", NULL);
@@ -1544,10 +1594,9 @@ static int cmd_certify(int argc, char **argv)
         return rc;
     }
     c.ws = ps_screen_ws_new();
-    c.s = malloc(sizeof *c.s);
-    c.cert = malloc(sizeof *c.cert);
+    c.jobs = malloc(CERT_CHUNK * sizeof *c.jobs);
     c.plants = json_array();
-    ps_batch *b = c.ws && c.s && c.cert && c.plants ? ps_batch_new(certify_entry, &c) : NULL;
+    ps_batch *b = c.ws && c.jobs && c.plants ? ps_batch_new(certify_entry, &c) : NULL;
     rc = EXIT_CLEAN;
     if (!b) {
         fputs("plantsieve: out of memory\n", stderr);
@@ -1561,6 +1610,7 @@ static int cmd_certify(int argc, char **argv)
         }
     }
     if (b) {
+        certify_flush(&c);
         const ps_batch_counts *counts = ps_batch_counts_get(b);
         if (rc == EXIT_CLEAN && counts->errors)
             rc = EXIT_ENTRIES;
@@ -1590,8 +1640,7 @@ static int cmd_certify(int argc, char **argv)
     }
     ps_batch_free(b);
     json_decref(c.plants);
-    free(c.s);
-    free(c.cert);
+    free(c.jobs);
     ps_screen_ws_free(c.ws);
     free(cats);
     if (fflush(stdout) != 0 || ferror(stdout)) {

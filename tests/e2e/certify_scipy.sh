@@ -37,7 +37,10 @@ certify_run() {
 
 certify_run demo 15 1 "$src/catalogs/demo-variants.yaml"
 if "$py" "$src/tests/bench/gen_catalog.py" 200 gen.yaml --seed 11 >/dev/null 2>gen.err; then
-    certify_run gen 100 60 gen.yaml --budget 400
+    certify_run gen 100 60 gen.yaml --budget 400 --threads 2
+    # the searches are seeded from the plant ids: one thread gives the same document
+    "$ps" certify --json --budget 400 --threads 1 gen.yaml >gen1.json 2>/dev/null
+    cmp -s gen.json gen1.json; check "certify --threads 1 and --threads 2 give the same JSON" 0 $?
 else
     fail=$((fail + 1))
     echo "FAIL: gen_catalog.py 200 gen.yaml --seed 11:"

@@ -17,7 +17,7 @@ opts_survey="--json -h --help"
 opts_screen="-o --gate --marginal-at --no-files --threads --quiet --show --detail --memory-rows --shard -h --help"
 opts_merge="-o --gate --no-files --threads --show --memory-rows -h --help"
 opts_explain="--certify --budget -h --help"
-opts_certify="--budget --json -h --help"
+opts_certify="--budget --json --threads -h --help"
 opts_read="-h --help"
 
 "$ps" --help >"$tmp/out" 2>"$tmp/err"; check "plantsieve --help exits 0" 0 $?
