@@ -511,6 +511,8 @@ ln -s "$tmp/w/reports" "$tmp/demo"
 for ext in txt csv json md html families.csv plants.jsonl junit.xml; do
     cmp -s "$tmp/demo/demo-variants.screen/demo-variants.screen.$ext" "$src/reports/demo-variants.screen/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
 done
+(cd "$tmp/w" && "$ps" certify catalogs/demo-variants.yaml >"$tmp/demo-certify.txt" 2>/dev/null)
+cmp -s "$tmp/demo-certify.txt" "$src/reports/demo-certify.txt"; check "committed demo certify report is current" 0 $?
 
 # The screening JSON validates against its schemas (python3-jsonschema): the summary against
 # plantsieve-screening.schema.json, every line of its JSON Lines file against
