@@ -101,7 +101,8 @@ void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
 {
     ps_bracket b = ps_bracket_of(s, c);
     fprintf(out, "%s  %s  (screen verdict %s)\n", s->id, ps_bracket_name(b), ps_verdict_name(s->verdict));
-    fprintf(out, "  floors      Ms >= %.4g  Mt >= %.4g: no controller does better; allowed %.4g and %.4g\n", s->fl.ms,
+    fprintf(out, "  floors      Ms >= %.4g  Mt >= %.4g: no controller under the stated requirements does better; "
+                 "allowed %.4g and %.4g\n", s->fl.ms,
             s->fl.mt, s->req.ms_allowed, s->req.mt_allowed);
     if (!c->found) {
         if (c->status == PS_CERT_NOT_ATTEMPTED)
@@ -126,13 +127,17 @@ void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
     ps_poly_text(c->ctrl.den, c->ctrl.n_den, den, sizeof den);
     fprintf(out, "  controller  %s\n", cw);
     fprintf(out, "              C(s) = (%s) / (%s)\n", num, den);
-    fprintf(out, "  checks      closed loop stable by the argument principle%s; every closed-loop pole decays at "
-                 "%.4g 1/s or faster\n",
-            k->roots_checked ? ", the closed-loop roots agree" : " (with delay: no closed-loop roots to compare)",
-            k->roots_checked ? k->decay : k->decay_min);
+    if (k->roots_checked)
+        fprintf(out, "  checks      closed loop stable by the argument principle, the closed-loop roots agree; the "
+                     "slowest closed-loop pole decays at %.4g 1/s\n",
+                k->decay);
+    else
+        fprintf(out, "  checks      closed loop stable by the argument principle (with delay: no closed-loop roots to "
+                     "compare): no closed-loop pole decays slower than %.4g 1/s\n",
+                k->decay_min);
     if (isfinite(k->rolloff_ratio))
-        fprintf(out, "              |L| reaches %.3g of the roll-off bound from %.4g rad/s on\n", k->rolloff_ratio,
-                s->req.wh);
+        fprintf(out, "              from %.4g rad/s on, |L| is at most %.3g times the roll-off bound\n", s->req.wh,
+                k->rolloff_ratio);
     if (isfinite(k->band_peak))
         fprintf(out, "              |S| at most %.4g on the band [0, %.4g] rad/s (allowed %.4g)\n", k->band_peak,
                 s->req.wb, s->req.eps);
