@@ -546,6 +546,12 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
         arms[n_arms++] = (arm){(ps_ctrl_structure)s, 1, arm_dim((ps_ctrl_structure)s)};
         arms[n_arms++] = (arm){(ps_ctrl_structure)s, -1, arm_dim((ps_ctrl_structure)s)};
     }
+    if (n_arms == 0) {
+        snprintf(out->reason, sizeof out->reason,
+                 "the roll-off slope %.4g needs more roll-off poles than a controller of order %d can carry", q->k,
+                 PS_CTRL_MAX_ORDER);
+        return;
+    }
     /* the grid the search judges on */
     double x_mid[PS_CTRL_MAX_PARAMS] = {0.5, 0.5, 0.5, 0.5, 0.5, 0.5, 0.5, 0.5};
     build(&sp, &arms[0], x_mid, &probe);

@@ -1632,9 +1632,10 @@ static int cmd_certify(int argc, char **argv)
             printf("%zu entries: %zu ruled out, %zu demonstrated, %zu undecided, %zu not attempted, %zu rejected\n",
                    counts->entries, c.per_bracket[PS_BRACKET_RULED_OUT], c.per_bracket[PS_BRACKET_DEMONSTRATED],
                    c.per_bracket[PS_BRACKET_UNDECIDED], c.per_bracket[PS_BRACKET_NOT_ATTEMPTED], counts->errors);
-            printf("\nThe floors are necessary conditions: no controller does better. A demonstrated plant has one\n"
-                   "controller that meets its stated requirements in this model; it is not a design. Undecided\n"
-                   "means no controller was found within the budget, not that none exists.\n\n%s\n",
+            printf("\nThe floors are necessary conditions: no controller under the stated requirements does\n"
+                   "better. A demonstrated plant has one controller that meets its stated requirements in this\n"
+                   "model; it is not a design. Undecided means no controller was found within the budget, not\n"
+                   "that none exists.\n\n%s\n",
                    ps_caution_text);
         }
     }

@@ -278,3 +278,23 @@ Test(certify, found_peaks_never_below_the_floors, .timeout = 600)
               checked_rhp);
     gsl_rng_free(r);
 }
+
+/* A roll-off slope that needs more roll-off poles than a controller of
+ * PS_CTRL_MAX_ORDER can carry: the search says it cannot take the plant
+ * (it once went on with no structure at all and read an unset one). */
+Test(certify, a_slope_past_the_controller_order_is_not_attempted)
+{
+    ps_analysis an;
+    ps_cplx p[2] = {{-1, 0}, {-2, 0}};
+    plant(&an, 2, NULL, 0, p, 2, 0);
+    ps_requirements q = loose();
+    q.wh = 50;
+    q.k = 8;
+    ps_floors fl;
+    ps_floors_compute(lws, &an, &q, &fl);
+    ps_cert c;
+    ps_certify(&an, &q, &fl, "steep", 400, &c);
+    cr_assert_eq(c.status, PS_CERT_NOT_ATTEMPTED);
+    cr_assert(!c.found && c.evaluations == 0);
+    cr_assert(strstr(c.reason, "roll-off slope 8"), "%s", c.reason);
+}
