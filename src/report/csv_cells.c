@@ -4,6 +4,8 @@
 #include <math.h>
 #include <string.h>
 
+#include "core/numfmt.h"
+
 /* One cell as given, quoted when RFC 4180 asks for it; guard: a leading
  * apostrophe written inside the cell, before s. */
 static void cell_put(ps_csv_out *o, const char *s, bool guard)
@@ -21,10 +23,14 @@ static void cell_put(ps_csv_out *o, const char *s, bool guard)
     fputc('"', o->f);
     if (guard)
         fputc('\'', o->f);
-    for (const char *c = s; *c; c++) {
-        if (*c == '"')
-            fputc('"', o->f);
-        fputc(*c, o->f);
+    for (const char *c = s, *q; *c; c = q + 1) { /* up to and with each '"', then it again */
+        q = strchr(c, '"');
+        if (!q) {
+            fputs(c, o->f);
+            break;
+        }
+        fwrite(c, 1, (size_t)(q - c) + 1, o->f);
+        fputc('"', o->f);
     }
     fputc('"', o->f);
 }
@@ -46,7 +52,7 @@ void ps_csv_num(ps_csv_out *o, double x)
         cell_put(o, NULL, false);
         return;
     }
-    snprintf(buf, sizeof buf, "%.9g", x);
+    ps_fmt_g(buf, sizeof buf, x, 9);
     cell_put(o, buf, false);
 }
 

@@ -17,6 +17,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "core/numfmt.h"
 #include "screen/attribution.h"
 
 #ifndef M_PI
@@ -191,16 +192,16 @@ static void num_text(char *out, size_t n, double x)
     double w = nearbyint(x);
     if (fabs(x) < 1e9 && fabs(x - w) <= 1e-8 * fabs(x) && !(w == 0 && x != 0) && signbit(x) == signbit(w)) {
         if (x != w) { /* whole only if %g at that precision says so */
-            char b[40];
-            snprintf(b, sizeof b, "%.*g", PS_JSONL_DIGITS, x);
+            char b[PS_NUMFMT_ROOM];
+            ps_fmt_g(b, sizeof b, x, PS_JSONL_DIGITS);
             w = strpbrk(b, ".eEni") ? NAN : strtod(b, NULL);
         }
         if (!isnan(w) && !(w == 0 && signbit(w))) {
-            snprintf(out, n, "%lld", (long long)w);
+            ps_fmt_ll(out, (long long)w); /* |w| < 1e9: fits any n of 40 */
             return;
         }
     }
-    snprintf(out, n, "%.*g", PS_JSONL_DIGITS, x);
+    ps_fmt_g(out, n, x, PS_JSONL_DIGITS);
     char *e = strchr(out, 'e');
     if (e) {
         char *d = e + 1, *from = e + 1;
@@ -242,9 +243,9 @@ static void jw_num(jw *w, const char *key, double x)
 static void jw_int(jw *w, const char *key, long long v)
 {
     char b[24];
-    int n = snprintf(b, sizeof b, "%lld", v);
+    size_t n = ps_fmt_ll(b, v);
     jw_key(w, key);
-    jw_put(w, b, (size_t)n);
+    jw_put(w, b, n);
 }
 
 /* A flag member: written only when true. */
@@ -537,12 +538,7 @@ static void band_curve_part(jw *w, const ps_summary *s)
     jw_open(w, "ms_floor", '[');
     for (size_t i = 0; i < s->n_curve; i++) {
         double x = s->curve_ms[i];
-        if (isfinite(x)) {
-            char b[32];
-            snprintf(b, sizeof b, "%.4g", x);
-            x = strtod(b, NULL);
-        }
-        jw_item(w, x);
+        jw_item(w, isfinite(x) ? ps_round_sig(x, 4) : x);
     }
     jw_close(w, ']');
     jw_close(w, '}');

@@ -7,6 +7,7 @@
 #include <errno.h>
 #include <fcntl.h>
 #include <stdio.h>
+#include <stdio_ext.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/file.h>
@@ -181,6 +182,9 @@ ps_status ps_report_set_create(ps_report_set *s, const char *name, FILE **f, int
         s->n_staged = s->n_staged - 1;
         return ps_diag_set(d, PS_ERR_IO, 0, 0, "", "cannot write %s: %s", name, strerror(e));
     }
+    /* One thread writes a report at a time (its writer, then the closing
+     * thread after a join): the stream need not lock itself on every call. */
+    __fsetlocking(*f, FSETLOCKING_BYCALLER);
     *slot = s->n_staged - 1;
     return PS_OK;
 }

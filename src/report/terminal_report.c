@@ -2,6 +2,7 @@
  * table, the redesign list with causes and targets, the headroom of passing
  * plants, counts per verdict and the caution. Colour only when asked. */
 #include "report/reports.h"
+#include "core/numfmt.h"
 #include "core/text.h"
 
 #include <math.h>
@@ -30,7 +31,7 @@ static void num(char *buf, size_t n, double x)
     else if (isinf(x))
         snprintf(buf, n, "inf");
     else
-        snprintf(buf, n, "%.3g", x);
+        ps_fmt_g(buf, n, x, 3);
 }
 
 /* A floor: as num, and past a double's range as a power of ten from its logarithm. */
@@ -53,7 +54,9 @@ static void wrap(FILE *f, const char *text, const char *indent, size_t width)
         const char *sp = strchr(p, ' ');
         size_t len = sp ? (size_t)(sp - p) : strlen(p);
         if (col > 0 && col + 1 + len > width) {
-            fprintf(f, "\n%*s", (int)ind, "");
+            fputc('\n', f);
+            for (size_t i = 0; i < ind; i++)
+                fputc(' ', f);
             col = 0;
         } else if (col > 0) {
             fputc(' ', f);
@@ -89,21 +92,26 @@ static void digital(FILE *f, const ps_summary *s)
  * terminal a command. */
 void ps_put_visible(FILE *f, const char *s)
 {
-    for (const unsigned char *p = (const unsigned char *)s; p && *p; p++) {
+    const unsigned char *p = (const unsigned char *)s, *run = p;
+    for (; p && *p; p++) {
+        bool c1 = *p == 0xc2 && p[1] >= 0x80 && p[1] <= 0x9f;
+        if (!(*p < 0x20 || *p == 0x7f || c1))
+            continue; /* plain: goes out with its run */
+        fwrite(run, 1, (size_t)(p - run), f);
         if (*p == '\t')
             fputs("\\t", f);
         else if (*p == '\n')
             fputs("\\n", f);
         else if (*p == '\r')
             fputs("\\r", f);
-        else if (*p < 0x20 || *p == 0x7f)
+        else if (c1)
+            fprintf(f, "\\u%04x", *++p);
+        else
             fprintf(f, "\\x%02x", *p);
-        else if (*p == 0xc2 && p[1] >= 0x80 && p[1] <= 0x9f) {
-            fprintf(f, "\\u%04x", p[1]);
-            p++;
-        } else
-            fputc(*p, f);
+        run = p + 1;
     }
+    if (run)
+        fwrite(run, 1, (size_t)(p - run), f);
 }
 
 /* The provenance of the run: title, date (only when set), every input with
@@ -192,7 +200,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
             "severity", "worst", "Ms floor", "Ms allow", "Mt floor", "Mt allow");
     for (size_t i = 0; i < r->n_rows && i < show; i++) {
         const ps_summary *s = ps_run_row(r, i);
-        char sev[16], msf[40], msa[16], mtf[40], mta[16];
+        char sev[PS_NUMFMT_ROOM], msf[PS_NUMFMT_ROOM], msa[PS_NUMFMT_ROOM], mtf[PS_NUMFMT_ROOM], mta[PS_NUMFMT_ROOM];
         num(sev, sizeof sev, s->severity);
         bool read = s->verdict != PS_VERDICT_UNREAD;
         num_big(msf, sizeof msf, read ? s->fl.ms : NAN, s->fl.ms_ln);
