@@ -92,6 +92,12 @@ void ps_loop_verify(const ps_analysis *an, const ps_requirements *q, const ps_co
 void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors *fl, const char *id, size_t budget,
                 ps_cert *out);
 
+/* |S| and |T| of the loop of an and c at n frequencies log-spaced from lo to
+ * hi (rad/s, 0 < lo < hi, n >= 2) into w, s_mag and t_mag: the figure of a
+ * report. */
+void ps_loop_curve(const ps_analysis *an, const ps_controller *c, double lo, double hi, size_t n, double *w,
+                   double *s_mag, double *t_mag);
+
 /* The value of C at s (for tests and writers). */
 void ps_controller_eval(const ps_controller *c, double re, double im, double *out_re, double *out_im);
 

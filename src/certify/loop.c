@@ -286,6 +286,16 @@ static double refine(cell_fn f, const ps_analysis *an, const ps_controller *c, d
     return fmax(f1, f2);
 }
 
+void ps_loop_curve(const ps_analysis *an, const ps_controller *c, double lo, double hi, size_t n, double *w,
+                   double *s_mag, double *t_mag)
+{
+    for (size_t i = 0; i < n; i++) {
+        w[i] = exp(log(lo) + (log(hi) - log(lo)) * (double)i / (double)(n - 1));
+        s_mag[i] = mag_s(an, c, w[i]);
+        t_mag[i] = mag_t(an, c, w[i]);
+    }
+}
+
 /* The controller's relative degree plus the plant's. */
 static int loop_rel_degree(const ps_analysis *an, const ps_controller *c)
 {

@@ -160,6 +160,13 @@ static const cli_option screen_opts[] = {
                                 "their share of the family studies) and write its\n"
                                 "partial result DIR/<stem>.shard-K-of-N.partial\n"
                                 "instead of reports; `plantsieve merge` joins the N"},
+    {"certify", OPT_CERTIFY, "WHICH", "search and verify a certificate controller for the\n"
+                                      "plants whose floors pass (passing) or for every\n"
+                                      "judged plant (judged): ruled out, demonstrated or\n"
+                                      "undecided in every report; about 0.1-0.2 s of CPU a\n"
+                                      "plant"},
+    {"budget", OPT_BUDGET, "N", "loop evaluations a plant for --certify, 100 to\n"
+                                "10000000 (default " PS_CERT_BUDGET_TEXT ")"},
     HELP_OPTION,
     {0},
 };
@@ -935,6 +942,19 @@ static int screen_option(void *ctx, int key, const char *v)
         else
             return usage_error("--gate takes redesign, marginal or never", v);
         break;
+    case OPT_CERTIFY:
+        if (strcmp(v, "passing") == 0)
+            a->opt.certify = PS_CERTIFY_PASSING;
+        else if (strcmp(v, "judged") == 0)
+            a->opt.certify = PS_CERTIFY_JUDGED;
+        else
+            return usage_error("--certify takes passing or judged", v);
+        break;
+    case OPT_BUDGET:
+        if (!whole_number(v, 100, 10000000, &m))
+            return usage_error("--budget takes a whole number from 100 to 10000000", v);
+        a->opt.certify_budget = (size_t)m;
+        break;
     case OPT_MARGINAL_AT: {
         char *end;
         errno = 0;
@@ -1118,6 +1138,8 @@ static int cmd_screen(int argc, char **argv)
     int prc = options_parse(&screen_cmd, argc, argv, screen_option, &a, cats, &n);
     if (prc == GO_ON && n == 0)
         prc = usage_error("screen needs at least one catalog file", NULL);
+    if (prc == GO_ON && a.opt.certify_budget && a.opt.certify == PS_CERTIFY_NONE)
+        prc = usage_error("--budget sets the search of --certify: give --certify passing or judged too", NULL);
     if (prc != GO_ON) {
         free(cats);
         return prc;
@@ -1411,7 +1433,7 @@ static int cmd_explain(int argc, char **argv)
     }
     const char *id = ops[0];
     screen_ctx c = {0};
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_ALL};
     ps_run_init(&c.run, &opt);
     c.only_id = id;
     c.also = explain_one;
@@ -1569,7 +1591,7 @@ static void certify_entry(void *ctx, const ps_outcome *o)
         return;
     }
     cert_job *j = &c->jobs[c->n_jobs++];
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_NONE, 0};
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_NONE};
     j->s.order = 0;
     j->s.file_index = 0;
     ps_screen_assess(c->ws, o, &opt, &j->s);

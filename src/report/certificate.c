@@ -54,7 +54,7 @@ void ps_poly_text(const double *p, size_t n, char *buf, size_t cap)
 }
 
 /* "PID with 2 roll-off poles: K -3.2, wn 1.5 rad/s, ..." */
-static void ctrl_words(const ps_controller *c, char *buf, size_t cap)
+void ps_controller_words(const ps_controller *c, char *buf, size_t cap)
 {
     const double *p = c->param;
     int w = 0;
@@ -86,6 +86,51 @@ static void ctrl_words(const ps_controller *c, char *buf, size_t cap)
     if (w > 0 && (size_t)w < cap && c->n_rolloff > 0)
         snprintf(buf + w, cap - (size_t)w, "; %zu roll-off pole%s at -%.6g rad/s", c->n_rolloff,
                  c->n_rolloff == 1 ? "" : "s", p[c->n_param - 1]);
+}
+
+void ps_bracket_text(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n)
+{
+    ps_bracket b = ps_summary_bracket(s, opt);
+    const ps_cert *c = &s->cert[0];
+    char cw[320];
+    buf[0] = '\0';
+    switch (b) {
+    case PS_BRACKET_NONE:
+        return;
+    case PS_BRACKET_RULED_OUT:
+        if (!s->n_cert || !c->found) {
+            snprintf(buf, n, "ruled out: a floor exceeds what is allowed, so no controller meets the requirements%s",
+                     s->n_cert ? "" : " (no controller searched)");
+            return;
+        }
+        ps_controller_words(&c->ctrl, cw, sizeof cw);
+        snprintf(buf, n, "ruled out: a floor exceeds what is allowed; the best controller found reaches Ms %.4g and "
+                         "Mt %.4g (floors %.4g and %.4g): %s",
+                 c->chk.ms, c->chk.mt, s->fl.ms, s->fl.mt, cw);
+        return;
+    case PS_BRACKET_NOT_ATTEMPTED:
+        snprintf(buf, n, "not attempted: %s", c->reason);
+        return;
+    case PS_BRACKET_DEMONSTRATED:
+    case PS_BRACKET_UNDECIDED:
+        break;
+    }
+    if (!c->found) {
+        snprintf(buf, n, "undecided: the floors pass, and no stabilizing controller was found within %zu loop "
+                         "evaluations; this does not show that none exists",
+                 c->evaluations);
+        return;
+    }
+    ps_controller_words(&c->ctrl, cw, sizeof cw);
+    if (b == PS_BRACKET_DEMONSTRATED)
+        snprintf(buf, n, "demonstrated: a verified controller meets every requirement with Ms %.4g and Mt %.4g "
+                         "(floors %.4g and %.4g; the peaks found are an upper bound on the best achievable, not the "
+                         "optimum): %s",
+                 c->chk.ms, c->chk.mt, s->fl.ms, s->fl.mt, cw);
+    else
+        snprintf(buf, n, "undecided: the floors pass; the best controller found in %zu loop evaluations reaches Ms "
+                         "%.4g and Mt %.4g (floors %.4g and %.4g) but %s; this does not show that none exists: %s",
+                 c->evaluations, c->chk.ms, c->chk.mt, s->fl.ms, s->fl.mt, c->chk.why, cw);
 }
 
 /* " (1.15 x the floor)" when the floor binds (>= 1), else "". */
@@ -122,7 +167,7 @@ void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
     fprintf(out, "              an upper bound on the best achievable peaks, not the optimum\n");
     if (b == PS_BRACKET_UNDECIDED || (b == PS_BRACKET_RULED_OUT && !k->meets))
         fprintf(out, "              does not meet the requirements: %s\n", k->why);
-    ctrl_words(&c->ctrl, cw, sizeof cw);
+    ps_controller_words(&c->ctrl, cw, sizeof cw);
     ps_poly_text(c->ctrl.num, c->ctrl.n_num, num, sizeof num);
     ps_poly_text(c->ctrl.den, c->ctrl.n_den, den, sizeof den);
     fprintf(out, "  controller  %s\n", cw);

@@ -10,17 +10,16 @@
 #include "certify/certify.h"
 #include "screen/screen.h"
 
-/* The three outcomes of a plant (and the cases the search does not take). */
-typedef enum ps_bracket {
-    PS_BRACKET_RULED_OUT = 0,  /* a floor exceeds what is allowed (verdict redesign or not stabilizable) */
-    PS_BRACKET_DEMONSTRATED,   /* a verified controller meets every requirement */
-    PS_BRACKET_UNDECIDED,      /* the floors pass; no controller found within the budget meets every requirement */
-    PS_BRACKET_NOT_ATTEMPTED,  /* the search does not take this plant (the reason says why) */
-    PS_BRACKET_COUNT
-} ps_bracket;
-
 ps_bracket ps_bracket_of(const ps_summary *s, const ps_cert *c);
 const char *ps_bracket_name(ps_bracket b);
+
+/* The bracket of a screened row in one sentence (empty when the row has
+ * none): the outcome, the peaks of the verified controller beside the
+ * floors, the controller in words, or why nothing was found. */
+void ps_bracket_text(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n);
+
+/* The controller in words: "PID: K 3.2, ...; 2 roll-off poles at -150 rad/s". */
+void ps_controller_words(const ps_controller *c, char *buf, size_t cap);
 
 /* The polynomial p (descending, n coefficients) in s as text: "2.5 s^2 + 3 s - 1". */
 void ps_poly_text(const double *p, size_t n, char *buf, size_t cap);

@@ -2,6 +2,8 @@
  * snake_case column names, then one row per plant in ranked order. */
 #include "report/reports.h"
 #include "report/csv_cells.h"
+#include "report/certificate.h"
+#include "core/numfmt.h"
 
 #include <assert.h>
 #include <math.h>
@@ -60,7 +62,13 @@ _Static_assert(PS_FACTOR_COUNT == 7, "one without_ column per factor");
  * were added last, after the error columns, so that every earlier column
  * keeps its position: new columns are only ever appended. */
 static const char *const tail_cols[] = {"error_line", "error_column", "error_field", "error",
-                                        "note", "unstable_controller_required"};
+                                        "note", "unstable_controller_required",
+                                        /* screen --certify (empty without it) */
+                                        "certificate", "cert_structure", "cert_rolloff_poles", "cert_ms", "cert_mt",
+                                        "cert_ms_over_floor", "cert_mt_over_floor", "cert_num", "cert_den",
+                                        "cert_rolloff_ratio", "cert_band_peak", "cert_decay", "cert_effort",
+                                        "cert_evaluations", "cert_seed", "cert_reason"};
+enum { N_CERT_COLS = 16 };
 
 enum {
     N_HEAD = sizeof head_cols / sizeof head_cols[0],
@@ -133,6 +141,62 @@ static void sampling_cells(csv_out *o, const ps_summary *s)
     cell_num(o, fl->ms_nyquist);
 }
 
+/* Coefficients in descending powers of s as a bracketed list, "[1, 2.5, 0]"
+ * (pasteable as an array; a leading '[' needs no formula guard). */
+static void cell_poly(csv_out *o, const double *p, size_t n)
+{
+    char b[(PS_CTRL_MAX_ORDER + 1) * 28 + 4] = "[";
+    size_t at = 1;
+    for (size_t i = 0; i < n && at + PS_NUMFMT_ROOM + 4 < sizeof b; i++) {
+        if (i) {
+            b[at++] = ',';
+            b[at++] = ' ';
+        }
+        at += ps_fmt_g(b + at, sizeof b - at, p[i], 17);
+    }
+    b[at++] = ']';
+    b[at] = '\0';
+    cell_text(o, b);
+}
+
+/* The bracket (screen --certify): the outcome, then the verified controller's
+ * figures when one was found, the search's reason otherwise. */
+static void cert_cells(csv_out *o, const ps_run *r, const ps_summary *s)
+{
+    ps_bracket b = ps_summary_bracket(s, &r->opt);
+    size_t end = o->n_cells + N_CERT_COLS;
+    if (b == PS_BRACKET_NONE) {
+        pad_to(o, end);
+        return;
+    }
+    cell_text(o, ps_bracket_name(b));
+    const ps_cert *c = &s->cert[0];
+    if (s->n_cert && c->found) {
+        const ps_loop_check *k = &c->chk;
+        cell_text(o, ps_ctrl_structure_name(c->ctrl.structure));
+        cell_size(o, c->ctrl.n_rolloff);
+        cell_num(o, k->ms);
+        cell_num(o, k->mt);
+        cell_num(o, s->fl.ms >= 1 ? k->ms / s->fl.ms : NAN);
+        cell_num(o, s->fl.mt >= 1 ? k->mt / s->fl.mt : NAN);
+        cell_poly(o, c->ctrl.num, c->ctrl.n_num);
+        cell_poly(o, c->ctrl.den, c->ctrl.n_den);
+        cell_num(o, k->rolloff_ratio);
+        cell_num(o, k->band_peak);
+        cell_num(o, k->decay);
+        cell_num(o, k->effort);
+    } else
+        pad_to(o, o->n_cells + 12);
+    if (s->n_cert) {
+        char seed[24];
+        snprintf(seed, sizeof seed, "%016llx", (unsigned long long)c->seed);
+        cell_size(o, c->evaluations);
+        cell_text(o, seed);
+        cell_text(o, c->found && !c->chk.meets ? c->chk.why : c->reason[0] ? c->reason : NULL);
+    }
+    pad_to(o, end);
+}
+
 static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t rank)
 {
     bool unread = s->verdict == PS_VERDICT_UNREAD;
@@ -162,6 +226,7 @@ static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t r
         cell_text(o, s->err_text);
         cell_text(o, s->note[0] ? s->note : NULL);
         cell_text(o, NULL); /* nothing was analysed */
+        pad_to(o, N_COLS);
         row_end(o);
         return;
     }
@@ -202,11 +267,12 @@ static void plant_row(csv_out *o, const ps_run *r, const ps_summary *s, size_t r
         cell_num(o, t->state == PS_TARGET_NA ? NAN : t->now);
         cell_num(o, t->state == PS_TARGET_FOUND ? t->limit : NAN);
     }
-    pad_to(o, N_COLS - 2); /* the error columns stay empty */
+    pad_to(o, N_COLS - 2 - N_CERT_COLS); /* the error columns stay empty */
     cell_text(o, s->note[0] ? s->note : NULL);
     /* Every stabilizing controller is itself unstable: parity interlacing
      * fails (the survey JSON's structure.unstable_controller_required). */
     cell_bool(o, !fl->parity_interlacing);
+    cert_cells(o, r, s);
     row_end(o);
 }
 

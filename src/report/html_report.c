@@ -1,6 +1,7 @@
 /* html_report.c - the screening run as one self-contained HTML5 page: inline
  * style, no script, no external assets, figures as inline SVG; prints in black on white. */
 #include "report/reports.h"
+#include "report/certificate.h"
 #include "report/html_page.h"
 #include "core/diag.h"
 #include "core/text.h"
@@ -1092,6 +1093,74 @@ static void error_where(FILE *f, const ps_run *r, const ps_summary *s)
     }
 }
 
+/* screen --certify: |S| and |T| of the verified controller's loop against
+ * frequency, with the floors and the allowed peaks. */
+static void cert_figure(FILE *f, const ps_summary *s)
+{
+    size_t n = s->n_cert_curve;
+    if (!n || !s->n_cert || !s->cert[0].found)
+        return;
+    const ps_loop_check *k = &s->cert[0].chk;
+    double ylo = 1, yhi = 1;
+    for (size_t i = 0; i < n; i++) {
+        if (isfinite(s->cert_s[i]) && s->cert_s[i] > 0)
+            ylo = fmin(ylo, s->cert_s[i]);
+        if (isfinite(s->cert_t[i]) && s->cert_t[i] > 0)
+            ylo = fmin(ylo, s->cert_t[i]);
+    }
+    const double tops[] = {k->ms, k->mt, s->req.ms_allowed, s->req.mt_allowed, s->fl.ms, s->fl.mt};
+    for (size_t i = 0; i < sizeof tops / sizeof tops[0]; i++)
+        if (isfinite(tops[i]))
+            yhi = fmax(yhi, tops[i]);
+    ylo = fmax(ylo, 1e-3);
+    char buf[200], label[80];
+    fit_label(label, sizeof label, s->id, 36);
+    snprintf(buf, sizeof buf, "%s: |S| and |T| of the controller found", label);
+    fprintf(f, "<figure>\n");
+    ps_plot p;
+    ps_plot_open(&p, f, 400, 300, "cert-loop", buf);
+    ps_plot_area(&p, 64, 34, 300, 200);
+    p.x = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = pow(10.0, floor(log10(s->cert_w[0]))),
+                         .hi = pow(10.0, ceil(log10(s->cert_w[n - 1]))), .minor = false, .label_every = 2,
+                         .title = "frequency w (rad/s, log)"};
+    p.y = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = pow(10.0, floor(log10(ylo))), .hi = pow(10.0, log10(yhi) + 0.15),
+                         .title = "|S|, |T| (ratio, log)"};
+    ps_plot_axes(&p);
+    double ys[PS_CERT_CURVE_N], yt[PS_CERT_CURVE_N];
+    for (size_t i = 0; i < n; i++) {
+        ys[i] = s->cert_s[i] >= p.y.lo ? s->cert_s[i] : NAN; /* below the axis: not drawn */
+        yt[i] = s->cert_t[i] >= p.y.lo ? s->cert_t[i] : NAN;
+    }
+    ps_plot_series(&p, s->cert_w, ys, n, false, "curve");
+    ps_plot_series(&p, s->cert_w, yt, n, false, "curve-alt");
+    snprintf(buf, sizeof buf, "allowed Ms %.3g", s->req.ms_allowed);
+    ps_plot_hline(&p, s->req.ms_allowed, "marginal", buf);
+    if (s->req.mt_allowed != s->req.ms_allowed) {
+        snprintf(buf, sizeof buf, "allowed Mt %.3g", s->req.mt_allowed);
+        ps_plot_hline(&p, s->req.mt_allowed, "marginal", buf);
+    }
+    bool floors = false;
+    if (isfinite(s->fl.ms) && s->fl.ms > 1) {
+        floors = true;
+        snprintf(buf, sizeof buf, "Ms floor %.3g", s->fl.ms);
+        ps_plot_hline(&p, s->fl.ms, "required", buf);
+    }
+    if (isfinite(s->fl.mt) && s->fl.mt > 1 && !(fabs(s->fl.mt / s->fl.ms - 1) <= 0.05)) {
+        floors = true;
+        snprintf(buf, sizeof buf, "Mt floor %.3g", s->fl.mt);
+        ps_plot_hline(&p, s->fl.mt, "required", buf);
+    }
+    static const ps_plot_key keys[] = {{PS_KEY_LINE, PS_MARK_CROSS, "curve", "|S|"},
+                                       {PS_KEY_LINE, PS_MARK_CROSS, "curve-alt", "|T|"}};
+    ps_plot_legend(&p, 64, 290, keys, 2);
+    ps_plot_close(&p);
+    fprintf(f, "<figcaption>The loop of the controller found for ");
+    h_text(f, s->id);
+    fprintf(f, ": |S| solid, |T| dashed; dashed lines: the allowed peaks%s. Peaks found: Ms %.4g, Mt %.4g (an upper "
+               "bound on the best achievable, not the optimum).</figcaption>\n</figure>\n",
+            floors ? "; dotted: the floors above 1, which no controller can go below" : "", k->ms, k->mt);
+}
+
 static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *s)
 {
     char anchor[16 + 3 * PS_ID_MAX], row[32], text[1200];
@@ -1159,6 +1228,13 @@ static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *
         h_text(f, text);
         fprintf(f, ".</p>\n");
     }
+    char cert[1400];
+    ps_bracket_text(s, &r->opt, cert, sizeof cert);
+    if (cert[0]) {
+        fprintf(f, "<p>Certificate controller: ");
+        h_text(f, cert);
+        fprintf(f, ".</p>\n");
+    }
     bool map = !s->in_z, band = s->n_curve > 0;
     if (s->in_z)
         fprintf(f, "<p>The plant is given in z: its roots are listed above, not drawn in the s-plane.</p>\n");
@@ -1170,6 +1246,7 @@ static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *
             band_figure(f, s);
         if (band && (s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_MARGINAL))
             budget_figure(f, s);
+        cert_figure(f, s);
         fprintf(f, "</div>\n");
     }
     fprintf(f, "</article>\n");

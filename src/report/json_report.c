@@ -4,6 +4,7 @@
  * plant, as JSON Lines beside it, is written by jsonl_record.c. */
 #include "report/json_parts.h"
 #include "report/reports.h"
+#include "report/certificate.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -92,6 +93,18 @@ ps_status ps_write_json(FILE *f, const ps_run *r)
                             (json_int_t)r->counts.models, "errors", (json_int_t)r->counts.errors, "per_verdict", per);
     if (!doc)
         return PS_ERR_NOMEM;
+    if (r->opt.certify != PS_CERTIFY_NONE) {
+        json_t *opt = json_object_get(doc, "options");
+        json_object_set_new(opt, "certify",
+                            json_string(r->opt.certify == PS_CERTIFY_PASSING ? "passing" : "judged"));
+        json_object_set_new(opt, "certify_budget", json_integer((json_int_t)(r->opt.certify_budget
+                                                                                  ? r->opt.certify_budget
+                                                                                  : PS_CERT_BUDGET)));
+        json_t *br = json_object();
+        for (int b = 0; b < PS_BRACKET_COUNT; b++)
+            json_object_set_new(br, ps_bracket_name((ps_bracket)b), json_integer((json_int_t)r->per_bracket[b]));
+        json_object_set_new(doc, "bracket", br);
+    }
     json_object_set_new(doc, "severity_histogram", jhistogram(r));
     json_object_set_new(doc, "worst", jworst(r));
     json_object_set_new(doc, "caps", json_pack("{s:i,s:i,s:i}", "json_worst", PS_JSON_WORST, "markdown_table",

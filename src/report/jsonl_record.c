@@ -18,6 +18,7 @@
 #include <string.h>
 
 #include "core/numfmt.h"
+#include "report/certificate.h"
 #include "screen/attribution.h"
 
 #ifndef M_PI
@@ -544,6 +545,85 @@ static void band_curve_part(jw *w, const ps_summary *s)
     jw_close(w, '}');
 }
 
+/* Controller coefficients at full precision (17 digits: they are pasted
+ * into other tools, and the verification ran on these values). */
+static void jw_coeffs(jw *w, const char *key, const double *p, size_t n)
+{
+    jw_open(w, key, '[');
+    for (size_t i = 0; i < n; i++) {
+        jw_key(w, NULL);
+        char b[PS_NUMFMT_ROOM];
+        if (isfinite(p[i])) {
+            ps_fmt_g(b, sizeof b, p[i], 17);
+            jw_puts(w, b);
+        } else
+            jw_put(w, "null", 4);
+    }
+    jw_close(w, ']');
+}
+
+/* screen --certify: the bracket of the plant (README "Certificate controllers"). */
+static void certificate_part(jw *w, const ps_run *r, const ps_summary *s)
+{
+    ps_bracket b = ps_summary_bracket(s, &r->opt);
+    if (b == PS_BRACKET_NONE)
+        return;
+    jw_open(w, "certificate", '{');
+    jw_text(w, "outcome", ps_bracket_name(b));
+    if (!s->n_cert) {
+        jw_text(w, "search", "not run");
+        jw_close(w, '}');
+        return;
+    }
+    const ps_cert *c = &s->cert[0];
+    jw_text(w, "search", ps_cert_status_name(c->status));
+    jw_str(w, "reason", c->reason);
+    jw_int(w, "evaluations", (long long)c->evaluations);
+    char seed[24];
+    snprintf(seed, sizeof seed, "%016llx", (unsigned long long)c->seed);
+    jw_text(w, "seed", seed);
+    if (c->found) {
+        const ps_loop_check *k = &c->chk;
+        jw_open(w, "controller", '{');
+        jw_text(w, "structure", ps_ctrl_structure_name(c->ctrl.structure));
+        jw_int(w, "rolloff_poles", (long long)c->ctrl.n_rolloff);
+        jw_coeffs(w, "parameters", c->ctrl.param, c->ctrl.n_param);
+        jw_coeffs(w, "num", c->ctrl.num, c->ctrl.n_num);
+        jw_coeffs(w, "den", c->ctrl.den, c->ctrl.n_den);
+        jw_close(w, '}');
+        jw_open(w, "found", '{');
+        jw_num(w, "ms", k->ms);
+        jw_num(w, "mt", k->mt);
+        jw_num(w, "w_ms", k->w_ms);
+        jw_num(w, "w_mt", k->w_mt);
+        jw_num(w, "effort", k->effort);
+        jw_num(w, "rolloff_ratio", k->rolloff_ratio);
+        jw_num(w, "band_peak", k->band_peak);
+        jw_num(w, "decay", k->decay);
+        jw_num(w, "decay_min", k->decay_min);
+        jw_true(w, "roots_checked", k->roots_checked);
+        jw_true(w, "meets", k->meets);
+        jw_str(w, "why", k->why);
+        jw_close(w, '}');
+        if (s->n_cert_curve) {
+            jw_open(w, "loop_curve", '{');
+            jw_num(w, "w_from", s->cert_w[0]);
+            jw_num(w, "w_to", s->cert_w[s->n_cert_curve - 1]);
+            jw_int(w, "points", (long long)s->n_cert_curve);
+            jw_open(w, "s", '[');
+            for (size_t i = 0; i < s->n_cert_curve; i++)
+                jw_item(w, isfinite(s->cert_s[i]) ? ps_round_sig(s->cert_s[i], 4) : s->cert_s[i]);
+            jw_close(w, ']');
+            jw_open(w, "t", '[');
+            for (size_t i = 0; i < s->n_cert_curve; i++)
+                jw_item(w, isfinite(s->cert_t[i]) ? ps_round_sig(s->cert_t[i], 4) : s->cert_t[i]);
+            jw_close(w, ']');
+            jw_close(w, '}');
+        }
+    }
+    jw_close(w, '}');
+}
+
 static void record(jw *w, const ps_run *r, const ps_summary *s, size_t rank, const ps_requirements *dflt)
 {
     bool unread = s->verdict == PS_VERDICT_UNREAD;
@@ -587,6 +667,7 @@ static void record(jw *w, const ps_run *r, const ps_summary *s, size_t rank, con
     attribution_part(w, &s->attr);
     targets_part(w, s);
     band_curve_part(w, s);
+    certificate_part(w, r, s);
     jw_close(w, '}');
 }
 

@@ -3,6 +3,7 @@
  * to the end), failing verdicts as <failure>, plants not judged as <error>. */
 #include "core/diag.h"
 #include "report/reports.h"
+#include "report/certificate.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -108,6 +109,18 @@ static void put_where(FILE *f, const ps_run *r, const ps_summary *s)
     fprintf(f, ":%zu", s->verdict == PS_VERDICT_UNREAD && s->err_line ? s->err_line : s->line);
 }
 
+/* screen --certify: the bracket on a line of its own (the test's outcome
+ * stays the floors' verdict: undecided is not a failure). */
+static void put_certificate(FILE *f, const ps_run *r, const ps_summary *s)
+{
+    char text[1400];
+    ps_bracket_text(s, &r->opt, text, sizeof text);
+    if (!text[0])
+        return;
+    fputs("\ncertificate controller: ", f);
+    xml_put(f, text, false);
+}
+
 static void testcase(FILE *f, const ps_run *r, const ps_summary *s, size_t rank)
 {
     char name[PS_ID_MAX + 64], sev[32];
@@ -134,6 +147,7 @@ static void testcase(FILE *f, const ps_run *r, const ps_summary *s, size_t rank)
         xml_put(f, s->cause, false);
         fputs("\nplant: ", f);
         put_where(f, r, s);
+        put_certificate(f, r, s);
         fputs("</failure>\n", f);
         break;
     case PS_VERDICT_NEEDS_BANDWIDTH:
@@ -169,6 +183,7 @@ static void testcase(FILE *f, const ps_run *r, const ps_summary *s, size_t rank)
             fputs(".\ncause: ", f);
             xml_put(f, s->cause, false);
         }
+        put_certificate(f, r, s);
         fputs("</system-out>\n", f);
         break;
     case PS_VERDICT_COUNT: break;

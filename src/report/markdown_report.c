@@ -1,6 +1,7 @@
 /* markdown_report.c - the screening run as a Markdown document for design
  * reviews: counts, ranked table, redesign list, requirements and caution. */
 #include "report/reports.h"
+#include "report/certificate.h"
 #include "core/text.h"
 
 #include <ctype.h>
@@ -307,7 +308,7 @@ static void digital_loop(FILE *f, const ps_summary *s)
 
 /* One plant in full: verdict, cause, note, structure, requirements, digital
  * loop, every target. */
-static void plant_detail(FILE *f, const ps_summary *s, size_t rank)
+static void plant_detail(FILE *f, const ps_run *r, const ps_summary *s, size_t rank)
 {
     fprintf(f, "### %zu. ", rank);
     md_text(f, s->id);
@@ -331,6 +332,13 @@ static void plant_detail(FILE *f, const ps_summary *s, size_t rank)
     md_text(f, text);
     fprintf(f, "\n");
     digital_loop(f, s);
+    char cert[1400];
+    ps_bracket_text(s, &r->opt, cert, sizeof cert);
+    if (cert[0]) {
+        fprintf(f, "- Certificate controller: ");
+        md_text(f, cert);
+        fprintf(f, "\n");
+    }
     bool any_target = false;
     for (int k = 0; k < PS_TARGET_COUNT; k++) {
         char t[400];
@@ -378,7 +386,7 @@ static void details(FILE *f, const ps_run *r)
         if (!is_flagged(v) && shown >= want)
             continue;
         shown++;
-        plant_detail(f, ps_run_row(r, i), i + 1);
+        plant_detail(f, r, ps_run_row(r, i), i + 1);
     }
 
     size_t n_err = r->per_verdict[PS_VERDICT_UNREAD];
@@ -412,6 +420,61 @@ static void details(FILE *f, const ps_run *r)
     fprintf(f, "\n");
 }
 
+/* screen --certify: the outcome counts and, in rank order, at most
+ * PS_MD_TABLE_MAX plants with a bracket. */
+static void bracket(FILE *f, const ps_run *r)
+{
+    if (r->opt.certify == PS_CERTIFY_NONE)
+        return;
+    const size_t *pb = r->per_bracket;
+    size_t n = pb[PS_BRACKET_RULED_OUT] + pb[PS_BRACKET_DEMONSTRATED] + pb[PS_BRACKET_UNDECIDED] +
+               pb[PS_BRACKET_NOT_ATTEMPTED];
+    fprintf(f, "## Bracket: floors against a verified controller\n\n");
+    fprintf(f, "The floors say what no controller can do; a controller searched within %zu loop evaluations a plant "
+               "and verified (stability by the argument principle and, for a loop without delay, the closed-loop roots; peaks and "
+               "requirements on a dense grid) shows what one controller does. Searched: the %s plants. %zu demonstrated, %zu "
+               "undecided, %zu ruled out, %zu not attempted. A found peak is an upper bound on the best achievable "
+               "peak, not the optimum; undecided means no controller was found within the budget, never that none "
+               "exists.\n\n",
+            r->opt.certify_budget ? r->opt.certify_budget : (size_t)PS_CERT_BUDGET,
+            r->opt.certify == PS_CERTIFY_PASSING ? "passing" : "judged", pb[PS_BRACKET_DEMONSTRATED],
+            pb[PS_BRACKET_UNDECIDED], pb[PS_BRACKET_RULED_OUT], pb[PS_BRACKET_NOT_ATTEMPTED]);
+    if (n > PS_MD_TABLE_MAX)
+        fprintf(f, "The first %d of %zu in rank order (all of them in the CSV and JSON Lines files).\n\n",
+                PS_MD_TABLE_MAX, n);
+    fprintf(f, "| rank | plant | outcome | Ms floor | Ms found | Mt floor | Mt found | controller |\n");
+    fprintf(f, "|---:|---|---|---:|---:|---:|---:|---|\n");
+    size_t told = 0;
+    for (size_t i = 0; i < r->n_rows && told < PS_MD_TABLE_MAX; i++) {
+        ps_verdict v = ps_run_verdict(r, i);
+        if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
+            continue;
+        const ps_summary *s = ps_run_row(r, i);
+        ps_bracket b = ps_summary_bracket(s, &r->opt);
+        if (b == PS_BRACKET_NONE)
+            continue;
+        told++;
+        const ps_cert *c = &s->cert[0];
+        bool found = s->n_cert && c->found;
+        fprintf(f, "| %zu | ", i + 1);
+        md_cell(f, s->id);
+        fprintf(f, " | %s | ", ps_bracket_name(b));
+        md_big(f, s->fl.ms, s->fl.ms_ln);
+        fprintf(f, " | ");
+        md_num(f, false, found ? c->chk.ms : NAN, "inf");
+        fprintf(f, " | ");
+        md_big(f, s->fl.mt, s->fl.mt_ln);
+        fprintf(f, " | ");
+        md_num(f, false, found ? c->chk.mt : NAN, "inf");
+        if (found)
+            fprintf(f, " | %s, %zu roll-off pole%s |\n", ps_ctrl_structure_name(c->ctrl.structure), c->ctrl.n_rolloff,
+                    c->ctrl.n_rolloff == 1 ? "" : "s");
+        else
+            fprintf(f, " | %s |\n", s->n_cert && c->status != PS_CERT_NOT_ATTEMPTED ? "none found" : "not searched");
+    }
+    fprintf(f, "\n");
+}
+
 static void meanings(FILE *f)
 {
     fprintf(f, "## What the verdicts mean\n\n");
@@ -433,6 +496,7 @@ ps_status ps_write_markdown(FILE *f, const ps_run *r)
     distribution(f, r);
     ranked_table(f, r);
     details(f, r);
+    bracket(f, r);
     ps_md_families(f, r, md_cell);
     meanings(f);
     return ferror(f) ? PS_ERR_IO : PS_OK;

@@ -101,6 +101,8 @@ static ps_status write_body(writer *f, const ps_run *r, const ps_shard_info *sh,
     put_u64(f, sh->families_seen);
     put(f, &r->opt.marginal_at, sizeof r->opt.marginal_at);
     put_u64(f, (uint64_t)r->opt.detail);
+    put_u64(f, (uint64_t)r->opt.certify);
+    put_u64(f, (uint64_t)r->opt.certify_budget);
     put_u64(f, r->counts.entries);
     put_u64(f, r->counts.models);
     put_u64(f, r->counts.errors);
@@ -209,6 +211,7 @@ typedef struct part {
     uint64_t k, n, seen, families_seen;
     double marginal_at;
     uint64_t detail;
+    uint64_t certify, certify_budget;
     ps_batch_counts counts;
     size_t n_catalogs;
     ps_catalog_entry *catalogs;
@@ -298,6 +301,8 @@ static ps_status part_open(part *p, const char *path, ps_diag *d)
     p->families_seen = get_u64(p);
     get(p, &p->marginal_at, sizeof p->marginal_at);
     p->detail = get_u64(p);
+    p->certify = get_u64(p);
+    p->certify_budget = get_u64(p);
     p->counts.entries = get_u64(p);
     p->counts.models = get_u64(p);
     p->counts.errors = get_u64(p);
@@ -305,7 +310,8 @@ static ps_status part_open(part *p, const char *path, ps_diag *d)
     uint64_t nc = get_u64(p);
     if (p->bad)
         return short_read(p, d);
-    if (p->k < 1 || p->k > p->n || p->n > PS_SHARD_MAX || nc > 1000000 || p->detail > PS_DETAIL_NONE)
+    if (p->k < 1 || p->k > p->n || p->n > PS_SHARD_MAX || nc > 1000000 || p->detail > PS_DETAIL_NONE ||
+        p->certify >= PS_CERTIFY_COUNT || p->certify_budget > 10000000)
         return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s: damaged header (shard %" PRIu64 " of %" PRIu64 ")", path,
                            p->k, p->n);
     if (nc && !(p->catalogs = calloc(nc, sizeof *p->catalogs)))
@@ -336,6 +342,11 @@ static bool same_str(const char *a, const char *b)
     return (!a && !b) || (a && b && strcmp(a, b) == 0);
 }
 
+static const char *certify_word(uint64_t which)
+{
+    return which == PS_CERTIFY_PASSING ? "passing" : which == PS_CERTIFY_JUDGED ? "judged" : "not given";
+}
+
 /* Whether q belongs with p (the first partial): the same run of the same catalogs. */
 static ps_status part_matches(const part *p, const part *q, ps_diag *d)
 {
@@ -347,6 +358,10 @@ static ps_status part_matches(const part *p, const part *q, ps_diag *d)
                            "%g against %g, --detail %s against %s)", q->path, p->path, q->marginal_at, p->marginal_at,
                            q->detail == 0 ? "all" : q->detail == 1 ? "flagged" : "none",
                            p->detail == 0 ? "all" : p->detail == 1 ? "flagged" : "none");
+    if (q->certify != p->certify || q->certify_budget != p->certify_budget)
+        return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s was screened with other options than %s (--certify %s "
+                           "against %s, --budget %" PRIu64 " against %" PRIu64 ")", q->path, p->path,
+                           certify_word(q->certify), certify_word(p->certify), q->certify_budget, p->certify_budget);
     if (q->n_catalogs != p->n_catalogs)
         return ps_diag_set(d, PS_ERR_INPUT, 0, 0, "", "%s was made from %zu catalogs but %s from %zu", q->path,
                            q->n_catalogs, p->path, p->n_catalogs);
@@ -505,6 +520,8 @@ static ps_status merge_parts(ps_run *r, part *parts, size_t n, ps_diag *d)
                                "every shard's partial result (%zu given)", i + 1, p0->n, n);
     r->opt.marginal_at = p0->marginal_at;
     r->opt.detail = (ps_detail)p0->detail;
+    r->opt.certify = (ps_cert_which)p0->certify;
+    r->opt.certify_budget = (size_t)p0->certify_budget;
     for (size_t i = 0; i < p0->n_catalogs; i++) {
         const ps_catalog_entry *c = &p0->catalogs[i];
         ps_diag fd = {0};

@@ -18,6 +18,7 @@ static const char plot_style[] =
     ".psplot line.required{stroke-width:1.2;stroke-dasharray:1.5 2.5}.psplot line.promise{stroke-width:1.8}"
     ".psplot .frame{fill:none;stroke:#000;stroke-width:1}.psplot .shade{fill:#e2e2e2;stroke:none}"
     ".psplot .curve{fill:none;stroke:#000;stroke-width:1.8}"
+    ".psplot .curve-alt{fill:none;stroke:#555;stroke-width:1.8;stroke-dasharray:7 3}"
     ".psplot .mark{fill:#fff;stroke:#000;stroke-width:1.5}.psplot .mark-solid{fill:#000;stroke:#000;stroke-width:1}"
     ".psplot .mark-cross{fill:none;stroke:#000;stroke-width:1.7}"
     ".psplot .bar-clear{fill:#c8c8c8;stroke:#000;stroke-width:.6}"

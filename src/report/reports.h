@@ -14,7 +14,7 @@
 
 /* Version of the screening JSON layout (the summary document and the plant
  * records of the JSON Lines file share it). */
-#define PS_SCREEN_SCHEMA_VERSION 5
+#define PS_SCREEN_SCHEMA_VERSION 6
 /* Significant digits of the numbers in a JSON Lines plant record (the CSV's
  * "%.9g" too); the summary document keeps 15. */
 #define PS_JSONL_DIGITS 9

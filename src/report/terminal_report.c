@@ -4,6 +4,7 @@
 #include "report/reports.h"
 #include "core/numfmt.h"
 #include "core/text.h"
+#include "report/certificate.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -158,6 +159,68 @@ static void note_and_flags(FILE *f, const ps_summary *s)
         wrap(f, ps_unstable_controller_text, "    ", 96);
 }
 
+static void more(FILE *f, size_t left, const char *full);
+
+/* The bracket of a plant, when the run asked for one. */
+static void certificate(FILE *f, const ps_run *r, const ps_summary *s)
+{
+    char text[1400], line[1440];
+    ps_bracket_text(s, &r->opt, text, sizeof text);
+    if (!text[0])
+        return;
+    snprintf(line, sizeof line, "certificate controller: %s", text);
+    wrap(f, line, "    ", 96);
+}
+
+/* screen --certify: the count of each outcome and a line a plant (the
+ * flagged and passing plants' sections above give the controllers). */
+static void bracket_section(FILE *f, const ps_run *r, size_t show, const char *full)
+{
+    if (r->opt.certify == PS_CERTIFY_NONE)
+        return;
+    const size_t *pb = r->per_bracket;
+    size_t n = pb[PS_BRACKET_RULED_OUT] + pb[PS_BRACKET_DEMONSTRATED] + pb[PS_BRACKET_UNDECIDED] +
+               pb[PS_BRACKET_NOT_ATTEMPTED];
+    fprintf(f, "\nBracket: floors (what no controller can do) against a verified controller (what one does), "
+               "%s plants, budget %zu loop evaluations a plant\n",
+            r->opt.certify == PS_CERTIFY_PASSING ? "passing" : "judged",
+            r->opt.certify_budget ? r->opt.certify_budget : (size_t)PS_CERT_BUDGET);
+    fprintf(f, "  %zu demonstrated, %zu undecided, %zu ruled out, %zu not attempted\n", pb[PS_BRACKET_DEMONSTRATED],
+            pb[PS_BRACKET_UNDECIDED], pb[PS_BRACKET_RULED_OUT], pb[PS_BRACKET_NOT_ATTEMPTED]);
+    fprintf(f, "  %-24s  %-13s  %9s  %9s  %9s  %9s  %s\n", "plant", "outcome", "Ms floor", "Ms found", "Mt floor",
+            "Mt found", "controller");
+    size_t told = 0;
+    for (size_t i = 0; i < r->n_rows && told < show; i++) {
+        ps_verdict v = ps_run_verdict(r, i);
+        if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
+            continue;
+        const ps_summary *s = ps_run_row(r, i);
+        ps_bracket b = ps_summary_bracket(s, &r->opt);
+        if (b == PS_BRACKET_NONE)
+            continue;
+        told++;
+        const ps_cert *c = &s->cert[0];
+        bool found = s->n_cert && c->found;
+        char msf[PS_NUMFMT_ROOM], mtf[PS_NUMFMT_ROOM], msc[PS_NUMFMT_ROOM], mtc[PS_NUMFMT_ROOM];
+        num_big(msf, sizeof msf, s->fl.ms, s->fl.ms_ln);
+        num_big(mtf, sizeof mtf, s->fl.mt, s->fl.mt_ln);
+        num(msc, sizeof msc, found ? c->chk.ms : NAN);
+        num(mtc, sizeof mtc, found ? c->chk.mt : NAN);
+        char what[96];
+        if (found)
+            snprintf(what, sizeof what, "%s, %zu roll-off pole%s", ps_ctrl_structure_name(c->ctrl.structure),
+                     c->ctrl.n_rolloff, c->ctrl.n_rolloff == 1 ? "" : "s");
+        else
+            snprintf(what, sizeof what, "%s",
+                     s->n_cert && c->status != PS_CERT_NOT_ATTEMPTED ? "none found" : "not searched");
+        fprintf(f, "  %-24.24s  %-13s  %9s  %9s  %9s  %9s  %s\n", s->id, ps_bracket_name(b), msf, msc, mtf, mtc,
+                what);
+    }
+    more(f, n - told, full);
+    wrap(f, "A found peak is an upper bound on the best achievable peak, not the optimum; undecided means no "
+            "controller was found within the budget, never that none exists.", "  ", 96);
+}
+
 static bool flagged(ps_verdict v)
 {
     return v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE;
@@ -230,6 +293,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
         wrap(f, line, "    ", 96);
         note_and_flags(f, s);
         digital(f, s);
+        certificate(f, r, s);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             ps_target_text(s, (ps_target_kind)k, line, sizeof line);
             if (line[0])
@@ -253,6 +317,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
                 ps_verdict_name(s->verdict), s->cause);
         note_and_flags(f, s);
         digital(f, s);
+        certificate(f, r, s);
         for (int k = 0; k < PS_TARGET_COUNT; k++) {
             ps_target_text(s, (ps_target_kind)k, line, sizeof line);
             if (line[0])
@@ -299,6 +364,7 @@ ps_status ps_write_terminal(FILE *f, const ps_run *r, bool colour, size_t show, 
     }
 
     ps_text_families(f, r);
+    bracket_section(f, r, show, full);
 
     fputs("\nCounts:", f);
     for (int v = 0; v < PS_VERDICT_COUNT; v++)

@@ -691,6 +691,51 @@ static void copy_roots(const ps_root *r, size_t n, ps_cplx *out, size_t *n_out)
         out[i] = r[i].v;
 }
 
+ps_bracket ps_summary_bracket(const ps_summary *s, const ps_screen_opts *opt)
+{
+    if (opt->certify == PS_CERTIFY_NONE)
+        return PS_BRACKET_NONE;
+    if (s->verdict == PS_VERDICT_REDESIGN || s->verdict == PS_VERDICT_UNSTABILIZABLE)
+        return PS_BRACKET_RULED_OUT;
+    if (!s->n_cert)
+        return PS_BRACKET_NONE;
+    switch (s->cert[0].status) {
+    case PS_CERT_DEMONSTRATED: return PS_BRACKET_DEMONSTRATED;
+    case PS_CERT_UNDECIDED: return PS_BRACKET_UNDECIDED;
+    default: return PS_BRACKET_NOT_ATTEMPTED;
+    }
+}
+
+static bool certify_wanted(ps_cert_which which, ps_verdict v)
+{
+    bool passes = v == PS_VERDICT_CLEAR || v == PS_VERDICT_MARGINAL;
+    bool ruled_out = v == PS_VERDICT_REDESIGN || v == PS_VERDICT_UNSTABILIZABLE;
+    return (which == PS_CERTIFY_PASSING && passes) || (which == PS_CERTIFY_JUDGED && (passes || ruled_out));
+}
+
+/* The certificate controller of the plant into s, and the figure of its loop:
+ * two decades either side of the peaks, the band edge and the roll-off start. */
+static void certify_plant(const ps_analysis *an, const ps_requirements *q, const ps_floors *fl, ps_summary *s,
+                          size_t budget)
+{
+    ps_cert *c = &s->cert[0];
+    ps_certify(an, q, fl, s->id, budget, c);
+    s->n_cert = 1;
+    if (!c->found)
+        return;
+    double lo = INFINITY, hi = 0;
+    const double at[] = {c->chk.w_ms, c->chk.w_mt, q->wb, q->wh};
+    for (size_t i = 0; i < sizeof at / sizeof at[0]; i++)
+        if (isfinite(at[i]) && at[i] > 0) {
+            lo = fmin(lo, at[i]);
+            hi = fmax(hi, at[i]);
+        }
+    if (!(hi > 0))
+        return;
+    ps_loop_curve(an, &c->ctrl, lo / 100, hi * 100, PS_CERT_CURVE_N, s->cert_w, s->cert_s, s->cert_t);
+    s->n_cert_curve = PS_CERT_CURVE_N;
+}
+
 void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opts *opt, ps_summary *s)
 {
     size_t order = s->order, file_index = s->file_index;
@@ -747,6 +792,8 @@ void ps_screen_assess(ps_screen_ws *ws, const ps_outcome *o, const ps_screen_opt
     s->compute_delay = an->compute_delay;
     s->in_z = an->in_z;
     s->hidden_unstable = an->hidden_unstable;
+    if (certify_wanted(opt->certify, s->verdict))
+        certify_plant(an, q, o->fl, s, opt->certify_budget);
     /* The band target and curve use the plant's attenuation, or the -3 dB
      * level that defines the sensitivity bandwidth (S&P 2nd ed. sec. 2.4.5, from memory). */
     s->band_eps = q->wb > 0 ? q->eps : M_SQRT1_2;
@@ -994,7 +1041,9 @@ static const span spans[] = {
     TEXT(target[2].why), TEXT(target[3].why), TEXT(target[4].why),  TEXT(target[5].why), TEXT(target[6].why),
     TEXT(target[7].why),
     LIST(curve_wb, n_curve), LIST(curve_ms, n_curve),
-    LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(growth, n_growth), TEXT(err_field), TEXT(err_text),
+    LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(growth, n_growth),
+    LIST(cert, n_cert), LIST(cert_w, n_cert_curve), LIST(cert_s, n_cert_curve), LIST(cert_t, n_cert_curve),
+    TEXT(err_field), TEXT(err_text),
 };
 _Static_assert(PS_TARGET_COUNT == 8, "one text span per target");
 
@@ -1302,6 +1351,7 @@ static void keep_row(ps_run *r, const ps_summary *s, const ps_plant *plant)
     if (r->store)
         store_put(r, s, plant);
     r->per_verdict[s->verdict]++;
+    r->per_bracket[ps_summary_bracket(s, &r->opt)]++;
     size_t len = strnlen(s->id, sizeof s->id);
     if (len > r->id_len_max)
         r->id_len_max = len;

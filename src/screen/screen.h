@@ -11,6 +11,7 @@
 #include <stdio.h>
 
 #include "batch/batch.h"
+#include "certify/certify.h"
 #include "limits/floors.h"
 #include "model/plant.h"
 #include "roots/roots.h"
@@ -70,7 +71,7 @@ typedef struct ps_target {
     char why[120];
 } ps_target;
 
-enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 440 };
+enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 440, PS_CERT_CURVE_N = 61 };
 
 /* What a report needs of one plant: a fixed record, no pointers into the
  * model (the model is gone once the next entry is read). */
@@ -105,6 +106,12 @@ typedef struct ps_summary {
     bool in_z;
     bool hidden_unstable;
     bool detail_deferred;       /* targets and curve not yet computed (PS_DETAIL_DEFERRED) */
+    /* the certificate controller (screen --certify): n_cert 1 when this plant was
+       taken, and then |S| and |T| of the loop found, when one was (n_cert_curve points) */
+    size_t n_cert;
+    ps_cert cert[1];
+    size_t n_cert_curve;
+    double cert_w[PS_CERT_CURVE_N], cert_s[PS_CERT_CURVE_N], cert_t[PS_CERT_CURVE_N];
     /* input errors */
     size_t err_line, err_col;
     char err_field[PS_DIAG_FIELD];
@@ -120,6 +127,24 @@ typedef enum ps_detail {
                           computes the detail of the rows it keeps once it is ranked (ps_run_rank) */
 } ps_detail;
 
+/* The three outcomes of a plant (and the cases the search does not take). */
+typedef enum ps_bracket {
+    PS_BRACKET_RULED_OUT = 0,  /* a floor exceeds what is allowed (verdict redesign or not stabilizable) */
+    PS_BRACKET_DEMONSTRATED,   /* a verified controller meets every requirement */
+    PS_BRACKET_UNDECIDED,      /* the floors pass; no controller found within the budget meets every requirement */
+    PS_BRACKET_NOT_ATTEMPTED,  /* the search does not take this plant (the reason says why) */
+    PS_BRACKET_COUNT,
+    PS_BRACKET_NONE = PS_BRACKET_COUNT /* no bracket: the run was not asked for one, or not for this plant */
+} ps_bracket;
+
+/* Which plants screen --certify gives a certificate controller. */
+typedef enum ps_cert_which {
+    PS_CERTIFY_NONE = 0,
+    PS_CERTIFY_PASSING,         /* the plants whose floors pass (clear, marginal) */
+    PS_CERTIFY_JUDGED,          /* those and the ones the floors rule out (redesign, not stabilizable) */
+    PS_CERTIFY_COUNT
+} ps_cert_which;
+
 typedef struct ps_screen_opts {
     double marginal_at;         /* default PS_MARGINAL_AT */
     size_t memory_rows;         /* summaries kept in memory before the run uses its file; 0: PS_RUN_MEMORY_ROWS */
@@ -129,6 +154,8 @@ typedef struct ps_screen_opts {
                                    the rows that can still be among the first keep_top of the ranking,
                                    of the redesign list, of the passing list or of the input errors,
                                    in memory, and writes no file; 0: every record is kept */
+    ps_cert_which certify;      /* plants given a certificate controller (ps_certify) */
+    size_t certify_budget;      /* its loop evaluations a plant; 0: PS_CERT_BUDGET */
 } ps_screen_opts;
 
 typedef struct ps_screen_ws ps_screen_ws;
@@ -236,12 +263,18 @@ typedef struct ps_run {
     struct ps_family_result *families; /* boundary and yield studies, catalog order */
     size_t n_families, cap_families;
     size_t per_verdict[PS_VERDICT_COUNT];
+    size_t per_bracket[PS_BRACKET_COUNT + 1]; /* rows by ps_summary_bracket (the last: none) */
     size_t id_len_max;          /* longest plant id among the rows */
     ps_batch_counts counts;
     ps_run_meta meta;
 } ps_run;
 
 void ps_run_init(ps_run *r, const ps_screen_opts *opt);
+
+/* The bracket of a row of a run made with opt: ruled out for a plant the
+ * floors rule out (searched or not), the search's outcome for a plant it
+ * took, PS_BRACKET_NONE without --certify or for a plant not selected. */
+ps_bracket ps_summary_bracket(const ps_summary *s, const ps_screen_opts *opt);
 void ps_run_free(ps_run *r);
 /* Add a catalog before reading it (fdiag NULL); summaries that follow belong
  * to it. ps_run_catalog_failed marks the last one as not read to the end. */

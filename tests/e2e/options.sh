@@ -14,7 +14,7 @@ cf="$src/tests/data/e2e/closed-form.yaml"
 
 # Every option each command has (README "Command line" and "Screening").
 opts_survey="--json -h --help"
-opts_screen="-o --gate --marginal-at --no-files --threads --quiet --show --detail --memory-rows --shard -h --help"
+opts_screen="-o --gate --marginal-at --no-files --threads --quiet --show --detail --memory-rows --shard -h --help --certify --budget"
 opts_merge="-o --gate --no-files --threads --show --memory-rows -h --help"
 opts_explain="--certify --budget -h --help"
 opts_certify="--budget --json --threads -h --help"

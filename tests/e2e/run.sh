@@ -506,13 +506,70 @@ check "band target and curve of a plant far faster than w_h stay below w_h" 0 $?
 # The committed demo reports are what the README's command writes now: the same command line
 # (the reports quote it), run where catalogs/ is the source's, without SOURCE_DATE_EPOCH.
 mkdir -p "$tmp/w" && ln -s "$src/catalogs" "$tmp/w/catalogs"
-(cd "$tmp/w" && env -u SOURCE_DATE_EPOCH "$ps" screen --gate never catalogs/demo-variants.yaml >/dev/null 2>&1)
+(cd "$tmp/w" && env -u SOURCE_DATE_EPOCH "$ps" screen --gate never --certify passing catalogs/demo-variants.yaml >/dev/null 2>&1)
 ln -s "$tmp/w/reports" "$tmp/demo"
 for ext in txt csv json md html families.csv plants.jsonl junit.xml; do
     cmp -s "$tmp/demo/demo-variants.screen/demo-variants.screen.$ext" "$src/reports/demo-variants.screen/demo-variants.screen.$ext"; check "committed demo report $ext is current" 0 $?
 done
 (cd "$tmp/w" && "$ps" certify catalogs/demo-variants.yaml >"$tmp/demo-certify.txt" 2>/dev/null)
 cmp -s "$tmp/demo-certify.txt" "$src/reports/demo-certify.txt"; check "committed demo certify report is current" 0 $?
+
+# screen --certify: the bracket of each plant is the certify command's search (same seed, same
+# controller; certify_scipy checks those controllers with scipy), the outcome counts agree across
+# the text, JSON, CSV and JSON Lines reports, and the reports are the same for 1 and 2 threads.
+(cd "$tmp/w" && "$ps" certify --json catalogs/demo-variants.yaml >"$tmp/demo-certify.json" 2>/dev/null)
+"$ps" screen --gate never --certify passing --threads 1 -o "$tmp/cert1" "$src/catalogs/demo-variants.yaml" >/dev/null 2>&1
+"$ps" screen --gate never --certify passing --threads 2 -o "$tmp/cert2" "$src/catalogs/demo-variants.yaml" >/dev/null 2>&1
+cmp -s "$tmp/cert1/demo-variants.screen/demo-variants.screen.plants.jsonl" "$tmp/cert2/demo-variants.screen/demo-variants.screen.plants.jsonl"
+check "screen --certify: the same records on 1 and 2 threads" 0 $?
+"$py" - "$tmp/demo-certify.json" "$tmp/cert1/demo-variants.screen/demo-variants.screen" <<'PY'
+import csv, json, re, sys
+cert = json.load(open(sys.argv[1]))
+base = sys.argv[2]
+plants = cert["plants"] if isinstance(cert, dict) else cert
+by_id = {p["id"]: p for p in plants}
+recs = [json.loads(l) for l in open(base + ".plants.jsonl")]
+doc = json.load(open(base + ".json"))
+bad = []
+counts = {"ruled out": 0, "demonstrated": 0, "undecided": 0, "not attempted": 0}
+compared = 0
+for r in recs:
+    c = r.get("certificate")
+    if r["verdict"] in ("clear", "marginal", "redesign", "not-stabilizable"):
+        if c is None:
+            bad.append("no certificate for " + r["id"]); continue
+        counts[c["outcome"]] += 1
+        if r["verdict"] in ("redesign", "not-stabilizable") and c["outcome"] != "ruled out":
+            bad.append("flagged plant not ruled out: " + r["id"])
+    if c is None or r["id"] not in by_id or "controller" not in c:
+        continue
+    other = by_id[r["id"]].get("controller")
+    if not other:
+        bad.append("certify found no controller for " + r["id"]); continue
+    for key in ("num", "den"):
+        a, b = c["controller"][key], other[key]
+        if len(a) != len(b) or any(abs(x - y) > 1e-12 * max(1.0, abs(y)) for x, y in zip(a, b)):
+            bad.append("%s %s differs: %s / %s" % (r["id"], key, a, b))
+    if c["outcome"] == "demonstrated" and by_id[r["id"]]["outcome"] != "demonstrated":
+        bad.append("outcome differs for " + r["id"])
+    compared += 1
+if counts != doc.get("bracket"):
+    bad.append("json bracket %s, records %s" % (doc.get("bracket"), counts))
+rows = list(csv.DictReader(open(base + ".csv", newline="", encoding="utf-8")))
+csv_counts = {k: sum(1 for x in rows if x["certificate"] == k) for k in counts}
+if csv_counts != counts:
+    bad.append("csv %s, records %s" % (csv_counts, counts))
+txt = open(base + ".txt", encoding="utf-8").read()
+m = re.search(r"(\d+) demonstrated, (\d+) undecided, (\d+) ruled out, (\d+) not attempted", txt)
+if not m or [int(g) for g in m.groups()] != [counts[k] for k in ("demonstrated", "undecided", "ruled out", "not attempted")]:
+    bad.append("txt counts line")
+if compared < 10:
+    bad.append("only %d controllers compared" % compared)
+print("\n".join(bad))
+sys.exit(1 if bad else 0)
+PY
+check "screen --certify: outcomes agree across formats and controllers are certify's" 0 $?
+"$ps" screen --budget 500 --no-files "$src/catalogs/demo-variants.yaml" >/dev/null 2>"$tmp/err"; check "screen --budget without --certify is a usage error" 2 $?
 
 # The screening JSON validates against its schemas (python3-jsonschema): the summary against
 # plantsieve-screening.schema.json, every line of its JSON Lines file against

@@ -63,7 +63,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
     }
     const char *path = ps_fuzz_file(data, size, name_for(data, size));
     screen_ctx c = {0};
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_ALL};
     ps_run_init(&c.run, &opt);
     c.ws = ps_screen_ws_new();
     c.study = ps_study_ws_new();

@@ -17,7 +17,7 @@ char *ps_test_temp_name(char *buf, size_t n, const char *stem);
 /* A CSV file read back by Debian's python3 csv module (strict mode): every
  * cell byte for byte (the script prints each field as hex). Fails the test
  * when the reader rejects the file or the table overflows. */
-enum { PS_CSV_ROWS = 16, PS_CSV_COLS = 96, PS_CSV_CELL = 512 };
+enum { PS_CSV_ROWS = 16, PS_CSV_COLS = 128, PS_CSV_CELL = 512 };
 typedef struct ps_csv_table {
     size_t n_rows;
     size_t n_cols[PS_CSV_ROWS];

@@ -174,7 +174,7 @@ Test(attribution, random_corpus_causes_match_recomputed_counterfactuals)
     static ps_analysis an, an2;
     static ps_summary sum;
     ps_floors fl;
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_NONE, 0};
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_NONE};
     size_t judged = 0, first_counts[PS_FACTOR_COUNT] = {0}, none_named = 0;
     for (int draws = 0; judged < 2000 && draws < 20000; draws++) {
         spec s;

@@ -38,7 +38,7 @@ static int one_family(void *ctx, const ps_ynode *node, const ps_plant *defaults)
     if (fam_status == PS_OK && study) {
         ps_study_ws *ws = ps_study_ws_new();
         cr_assert_not_null(ws);
-        ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
+        ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_ALL};
         ps_study_family(ws, &fam, &opt, &res);
         ps_study_ws_free(ws);
     }
@@ -578,7 +578,7 @@ static void split_and_add(size_t n, ps_yield *out)
 {
     ps_study_ws *ws = ps_study_ws_new();
     cr_assert_not_null(ws);
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_ALL};
     ps_yield_tally whole;
     ps_yield_tally_init(&whole);
     static ps_family_result part;

@@ -155,7 +155,7 @@ Test(noalloc, per_plant_path_allocates_nothing)
     ps_roots_ws *rws = ps_roots_ws_new();
     ps_screen_ws *sws = ps_screen_ws_new();
     cr_assert(rws && sws);
-    ps_screen_opts opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0};
+    ps_screen_opts opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_ALL};
     ps_analysis an;
     ps_floors fl;
     ps_summary s;

@@ -339,7 +339,7 @@ Test(reports_digital, json_sampling_object_floor_and_targets)
     json_error_t err;
     json_t *sum = json_loads(summary, 0, &err);
     cr_assert_not_null(sum, "%s", err.text);
-    cr_assert_eq(json_integer_value(json_object_get(sum, "schema_version")), 5);
+    cr_assert_eq(json_integer_value(json_object_get(sum, "schema_version")), 6);
     cr_assert_str_eq(json_string_value(json_object_get(sum, "plants_file")), "loops.screen.plants.jsonl");
     json_decref(sum);
     free(summary);
