@@ -1121,7 +1121,7 @@ static screen_args screen_defaults(void)
     return (screen_args){
         .outdir = "reports",
         .g = GATE_REDESIGN,
-        .opt = {PS_MARGINAL_AT, 0, PS_DETAIL_ALL, 0},
+        .opt = {.marginal_at = PS_MARGINAL_AT, .detail = PS_DETAIL_ALL},
         .files = true,
         .show = SHOW_DEFAULT,
         .threads = ncpu > 0 ? (size_t)(ncpu < PS_POOL_MAX_THREADS ? ncpu : PS_POOL_MAX_THREADS) : 1,
