@@ -167,7 +167,7 @@ static void same_value(double x, int prec)
     snprintf(b, sizeof b, "%.*g", prec, x);
     double want = strtod(b, NULL), got = ps_round_sig(x, prec);
     cr_assert(memcmp(&want, &got, sizeof want) == 0 || (isnan(want) && isnan(got)),
-              "%.*g of %a read back is %a, ps_round_sig %a", prec, x, want, got);
+              "%%.%dg of %a read back is %a, ps_round_sig %a", prec, x, want, got);
 }
 
 Test(numfmt, rounded_value_reads_back_the_same)
