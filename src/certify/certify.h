@@ -27,7 +27,12 @@ typedef enum ps_ctrl_structure {
                            pole, for a plant only an unstable controller stabilizes */
     PS_CTRL_NOTCH,      /* the PID times (s^2 + 2 zz wm s + wm^2) / (s^2 + 2 zp wm s + wm^2), wm near the plant's
                            most lightly damped pole pair (damping ratio below 0.2), roll-off poles */
-    PS_CTRL_COUNT
+    PS_CTRL_FIXED,      /* the last rung, a fixed-order controller of order 3: K (s^2/wz^2 + 2 zz s/wz + 1)(s/z3 + 1)
+                           / ((s^2/wp^2 + 2 zp s/wp + 1)(s/p3 + 1)), damping ratios 0.05 to 2 (real roots above 1),
+                           roll-off poles */
+    PS_CTRL_COUNT,
+    PS_CTRL_INTERPOLATION = PS_CTRL_COUNT /* not a rung: C = c / (k G(s)) times a far filter, the floors'
+                                             construction (ps_attain_floors) */
 } ps_ctrl_structure;
 
 const char *ps_ctrl_structure_name(ps_ctrl_structure s);
@@ -38,7 +43,7 @@ typedef struct ps_controller {
     size_t n_rolloff;                  /* roll-off poles (s/wf + 1) */
     size_t n_param;
     double param[PS_CTRL_MAX_PARAMS];  /* K, then the corner frequencies in rad/s (PID: wn, zeta; notch: wn, zeta,
-                                          wm, zz, zp), wf last */
+                                          wm, zz, zp; fixed order: wz, zz, wp, zp, z3, p3), wf last */
     size_t n_num, n_den;               /* coefficient counts (degree + 1) */
     double num[PS_CTRL_MAX_ORDER + 1], den[PS_CTRL_MAX_ORDER + 1];
 } ps_controller;
@@ -71,6 +76,29 @@ typedef enum ps_cert_status {
 
 const char *ps_cert_status_name(ps_cert_status s);
 
+/* Where no roll-off is required, the floors attained: for a plant without
+ * delay, P(s) = k (s - z)/(s - p) G(s) with one real RHP pole p, at most one
+ * real RHP zero z > p (below p only an unstable controller stabilizes) and G
+ * stable and minimum phase, the interpolation problem
+ * has the all-pass solutions S = g (s - p)/(s + p), g = (z + p)/(z - p), and
+ * T = -g (s - z)/(s + z) (|S| = |T| = |g|, the floor; without a zero S is
+ * (s - p)/(s + p) and T = (p + a)/(s + a), a = 200 p). Each comes from the
+ * controller C = c / (k G(s)) with c = (1 - g)/g, -g/(1 + g) (without a zero
+ * 2 p and p + a), which cancels only the stable G. A first-order filter
+ * (s/wf + 1)^-m, m = max(1, relative degree of P), wf raised a decade at a
+ * time, makes C proper and the loop strictly proper for the verification. */
+typedef struct ps_attain {
+    bool applies;
+    char why[200];          /* when it does not apply: why */
+    double floor_ms, floor_mt; /* the interpolation floors the peaks are measured against */
+    double wf;              /* the filter's corner, rad/s */
+    ps_controller for_ms, for_mt;
+    ps_loop_check chk_ms, chk_mt; /* verified without roll-off, band or effort requirement */
+    bool within;            /* both verified stable with peaks within 1 % of their floors */
+} ps_attain;
+
+void ps_attain_floors(const ps_analysis *an, const ps_requirements *q, const ps_floors *fl, ps_attain *out);
+
 typedef struct ps_cert {
     ps_cert_status status;
     bool found;            /* a stabilizing controller was found (ctrl, chk hold the best one) */
@@ -79,6 +107,7 @@ typedef struct ps_cert {
     size_t evaluations;    /* loop evaluations spent */
     uint64_t seed;         /* from the plant id */
     char reason[200];      /* not attempted or undecided: why */
+    ps_attain attain;      /* no roll-off requirement: the floors attained (attain.applies) */
 } ps_cert;
 
 /* Verify controller c on the analysed plant an under requirements q. */

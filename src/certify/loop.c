@@ -15,7 +15,9 @@
 
 const char *ps_ctrl_structure_name(ps_ctrl_structure s)
 {
-    static const char *const names[PS_CTRL_COUNT] = {"PI", "PID", "lead-lag", "unstable", "PID-notch"};
+    static const char *const names[PS_CTRL_COUNT] = {"PI", "PID", "lead-lag", "unstable", "PID-notch", "fixed-order"};
+    if (s == PS_CTRL_INTERPOLATION)
+        return "interpolation";
     return (unsigned)s < PS_CTRL_COUNT ? names[s] : "?";
 }
 

@@ -50,6 +50,8 @@ static size_t arm_dim(ps_ctrl_structure s)
         return 5; /* K, z1, z2 or p1, p2 or p1, wf */
     case PS_CTRL_NOTCH:
         return 7; /* K, wn, zeta, wm, zz, zp, wf */
+    case PS_CTRL_FIXED:
+        return 8; /* K, wz, zz, wp, zp, z3, p3, wf */
     default:
         return 0;
     }
@@ -137,6 +139,28 @@ static void build(const space *sp, const arm *a, const double *x, ps_controller 
             nd = pmul(den, nd, g1, 2, den);
             c->n_param = 5;
         }
+        break;
+    }
+    case PS_CTRL_FIXED: {
+        double wz = w * decade(x[1], -3, 5), zz = decade(x[2], -1.3, 1.6), wp = w * decade(x[3], -3, 5),
+               zp = decade(x[4], -1.3, 1.6), z3 = w * decade(x[5], -3, 5), p3 = w * decade(x[6], -3, 5);
+        double n2[3] = {1 / (wz * wz), 2 * zz / wz, 1}, d2[3] = {1 / (wp * wp), 2 * zp / wp, 1};
+        double n1[2] = {1 / z3, 1}, d1[2] = {1 / p3, 1};
+        num[0] = k, nn = 1;
+        nn = pmul(num, nn, n2, 3, num);
+        nn = pmul(num, nn, n1, 2, num);
+        den[0] = 1, nd = 1;
+        nd = pmul(den, nd, d2, 3, den);
+        nd = pmul(den, nd, d1, 2, den);
+        c->param[1] = wz;
+        c->param[2] = zz;
+        c->param[3] = wp;
+        c->param[4] = zp;
+        c->param[5] = z3;
+        c->param[6] = p3;
+        c->n_param = 8;
+        /* its roll-off corner: a decade above the largest of its own corners, times the coordinate */
+        wf = 10 * fmax(fmax(wz, wp), fmax(z3, p3)) * decade(x[7], 0, 2);
         break;
     }
     default:
@@ -499,6 +523,7 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
         snprintf(out->reason, sizeof out->reason, "no controller stabilizes this plant");
         return;
     }
+    ps_attain_floors(an, q, fl, &out->attain); /* where no roll-off is required: the floors reached */
     if (an->n_poles > ORDER_LIMIT) {
         snprintf(out->reason, sizeof out->reason, "order %zu is above the search's limit of %d", an->n_poles,
                  ORDER_LIMIT);
@@ -515,7 +540,7 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
     ps_controller unit = {.n_num = 1, .n_den = 1, .num = {1}, .den = {1}};
     ps_loop_at(an, &unit, ps_complex_make(0, sp.w_ref), &p0, &cv);
     sp.k0 = cabs(p0) > 0 && isfinite(cabs(p0)) ? 1 / cabs(p0) : 1;
-    static const int base_rel[PS_CTRL_COUNT] = {0, -1, 0, -1, -1};
+    static const int base_rel[PS_CTRL_COUNT] = {0, -1, 0, -1, -1, 0};
     for (size_t i = 0; i < an->n_poles; i++) { /* the most lightly damped pair, for the notch */
         double m = hypot(an->poles[i].v.re, an->poles[i].v.im);
         if (an->poles[i].v.im > 0 && m > 0 && -an->poles[i].v.re / m < 0.2 &&
@@ -540,7 +565,7 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
             continue; /* a stable controller can stabilize: the unstable rung is for plants that need it */
         if (s == PS_CTRL_NOTCH && sp.w_mode == 0)
             continue; /* no light mode to notch */
-        size_t order = (s == PS_CTRL_LEADLAG ? 2 : s == PS_CTRL_NOTCH ? 3 : 1) + sp.n_rolloff[s];
+        size_t order = (s == PS_CTRL_LEADLAG ? 2 : s == PS_CTRL_NOTCH || s == PS_CTRL_FIXED ? 3 : 1) + sp.n_rolloff[s];
         if (order > PS_CTRL_MAX_ORDER)
             continue;
         arms[n_arms++] = (arm){(ps_ctrl_structure)s, 1, arm_dim((ps_ctrl_structure)s)};

@@ -80,6 +80,15 @@ void ps_controller_words(const ps_controller *c, char *buf, size_t cap)
                      "at %.6g rad/s, damping ratios %.4g (zeros) and %.4g (poles)",
                      p[0], p[1], p[2], p[3], p[4], p[5]);
         break;
+    case PS_CTRL_FIXED:
+        w = snprintf(buf, cap,
+                     "fixed order 3: K %.6g, zeros at natural frequency %.6g rad/s with damping ratio %.4g and at "
+                     "-%.6g rad/s, poles at natural frequency %.6g rad/s with damping ratio %.4g and at -%.6g rad/s",
+                     p[0], p[1], p[2], p[5], p[3], p[4], p[6]);
+        break;
+    case PS_CTRL_INTERPOLATION:
+        w = snprintf(buf, cap, "from the interpolation solution: %.6g / G(s), filter at %.6g rad/s", p[0], p[1]);
+        break;
     default:
         w = snprintf(buf, cap, "?");
     }
@@ -88,7 +97,20 @@ void ps_controller_words(const ps_controller *c, char *buf, size_t cap)
                  c->n_rolloff == 1 ? "" : "s", p[c->n_param - 1]);
 }
 
+static void bracket_core(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n);
+
 void ps_bracket_text(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n)
+{
+    bracket_core(s, opt, buf, n);
+    const ps_attain *a = &s->cert[0].attain;
+    size_t len = strlen(buf);
+    if (len && s->n_cert && a->applies && a->within && len < n)
+        snprintf(buf + len, n - len, "; with no roll-off required the floors are reached: a controller built from "
+                 "the interpolation solution gives Ms %.4g (floor %.4g) and another Mt %.4g (floor %.4g)",
+                 a->chk_ms.ms, a->floor_ms, a->chk_mt.mt, a->floor_mt);
+}
+
+static void bracket_core(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n)
 {
     ps_bracket b = ps_summary_bracket(s, opt);
     const ps_cert *c = &s->cert[0];
@@ -142,6 +164,31 @@ static void ratio_words(double found, double floor, char *buf, size_t cap)
         snprintf(buf, cap, " (floor %.4g, not binding)", floor);
 }
 
+/* No roll-off required: the floors reached by the interpolation construction. */
+static void attain_text(FILE *out, const ps_cert *c)
+{
+    const ps_attain *a = &c->attain;
+    if (!a->applies)
+        return;
+    char num[400], den[400];
+    if (!a->within) {
+        fprintf(out, "  attained    the interpolation construction did not come within 1 %% of the floors (Ms %.4g "
+                     "against %.4g, Mt %.4g against %.4g)\n",
+                a->chk_ms.ms, a->floor_ms, a->chk_mt.mt, a->floor_mt);
+        return;
+    }
+    fprintf(out, "  attained    no roll-off is required, and the floors are reached: C = c / (k G(s)), G the plant "
+                 "without its RHP pole and zero, with a filter at %.4g rad/s\n", a->wf);
+    ps_poly_text(a->for_ms.num, a->for_ms.n_num, num, sizeof num);
+    ps_poly_text(a->for_ms.den, a->for_ms.n_den, den, sizeof den);
+    fprintf(out, "              Ms %.6g (%.5g x the floor %.6g), verified stable: C(s) = (%s) / (%s)\n",
+            a->chk_ms.ms, a->chk_ms.ms / a->floor_ms, a->floor_ms, num, den);
+    ps_poly_text(a->for_mt.num, a->for_mt.n_num, num, sizeof num);
+    ps_poly_text(a->for_mt.den, a->for_mt.n_den, den, sizeof den);
+    fprintf(out, "              Mt %.6g (%.5g x the floor %.6g), verified stable: C(s) = (%s) / (%s)\n",
+            a->chk_mt.mt, a->chk_mt.mt / a->floor_mt, a->floor_mt, num, den);
+}
+
 void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
 {
     ps_bracket b = ps_bracket_of(s, c);
@@ -156,6 +203,7 @@ void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
             fprintf(out, "  search      no stabilizing controller found within the budget (%zu loop evaluations); "
                          "this does not show that none exists\n",
                     c->evaluations);
+        attain_text(out, c);
         fputc('\n', out);
         return;
     }
@@ -193,8 +241,9 @@ void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
         fprintf(out, "              peak |C S| %.4g; |S| stays below 1 and tends to 1 at high frequency; |T| peaks at "
                      "%.4g rad/s\n",
                 k->effort, k->w_mt);
-    fprintf(out, "  search      %zu loop evaluations, seed %016llx\n\n", c->evaluations,
-            (unsigned long long)c->seed);
+    fprintf(out, "  search      %zu loop evaluations, seed %016llx\n", c->evaluations, (unsigned long long)c->seed);
+    attain_text(out, c);
+    fputc('\n', out);
 }
 
 static json_t *num_or_null(double v)
@@ -232,6 +281,23 @@ json_t *ps_certificate_json(const ps_summary *s, const ps_cert *c)
     char seed[24];
     snprintf(seed, sizeof seed, "%016llx", (unsigned long long)c->seed);
     json_object_set_new(o, "seed", json_string(seed));
+    const ps_attain *a = &c->attain;
+    if (a->applies) {
+        json_t *at = json_object();
+        json_object_set_new(at, "within_1_percent", json_boolean(a->within));
+        json_object_set_new(at, "filter_corner", num_or_null(a->wf));
+        json_object_set_new(at, "ms", num_or_null(a->chk_ms.ms));
+        json_object_set_new(at, "ms_floor", num_or_null(a->floor_ms));
+        json_object_set_new(at, "ms_stable", json_boolean(a->chk_ms.stable && a->chk_ms.roots_agree));
+        json_object_set_new(at, "ms_num", coeffs(a->for_ms.num, a->for_ms.n_num));
+        json_object_set_new(at, "ms_den", coeffs(a->for_ms.den, a->for_ms.n_den));
+        json_object_set_new(at, "mt", num_or_null(a->chk_mt.mt));
+        json_object_set_new(at, "mt_floor", num_or_null(a->floor_mt));
+        json_object_set_new(at, "mt_stable", json_boolean(a->chk_mt.stable && a->chk_mt.roots_agree));
+        json_object_set_new(at, "mt_num", coeffs(a->for_mt.num, a->for_mt.n_num));
+        json_object_set_new(at, "mt_den", coeffs(a->for_mt.den, a->for_mt.n_den));
+        json_object_set_new(o, "attained", at);
+    }
     if (!c->found) {
         json_object_set_new(o, "controller", json_null());
         return o;

@@ -582,6 +582,21 @@ static void certificate_part(jw *w, const ps_run *r, const ps_summary *s)
     char seed[24];
     snprintf(seed, sizeof seed, "%016llx", (unsigned long long)c->seed);
     jw_text(w, "seed", seed);
+    if (c->attain.applies) {
+        const ps_attain *a = &c->attain;
+        jw_open(w, "attained", '{');
+        jw_true(w, "within_1_percent", a->within);
+        jw_num(w, "filter_corner", a->wf);
+        jw_num(w, "ms", a->chk_ms.ms);
+        jw_num(w, "ms_floor", a->floor_ms);
+        jw_coeffs(w, "ms_num", a->for_ms.num, a->for_ms.n_num);
+        jw_coeffs(w, "ms_den", a->for_ms.den, a->for_ms.n_den);
+        jw_num(w, "mt", a->chk_mt.mt);
+        jw_num(w, "mt_floor", a->floor_mt);
+        jw_coeffs(w, "mt_num", a->for_mt.num, a->for_mt.n_num);
+        jw_coeffs(w, "mt_den", a->for_mt.den, a->for_mt.n_den);
+        jw_close(w, '}');
+    }
     if (c->found) {
         const ps_loop_check *k = &c->chk;
         jw_open(w, "controller", '{');

@@ -6,7 +6,8 @@
 # requirement of a "demonstrated" plant, the floors law. Two runs: the demo
 # catalog at the default budget, and 200 generated plants (seed 11) at
 # --budget 400. The minimum counts keep the test from passing by checking
-# nothing (a run that reports fewer controllers fails).
+# nothing (a run that reports fewer controllers fails). Then the interpolation construction
+# ("attained") on tests/data/oracle/attain.yaml, by tests/oracle/attain_check.py.
 # Skipped (77) where numpy, scipy or PyYAML is missing, except under CI=true.
 # Usage: certify_scipy.sh PLANTSIEVE SRCDIR
 ps=$1
@@ -36,6 +37,15 @@ certify_run() {
 }
 
 certify_run demo 15 1 "$src/catalogs/demo-variants.yaml"
+
+# The interpolation construction where no roll-off is required (certify's "attained"):
+# stability by closed-loop roots, the peaks of |S| and |T| on a dense grid, each within 1 %
+# of the floor recomputed from the plant's RHP pole and zero, never below it.
+"$ps" certify --json "$src/tests/data/oracle/attain.yaml" >attain.json 2>attain.err
+check "certify --json on the construction's plants exits 0" 0 $?
+"$py" "$src/tests/oracle/attain_check.py" attain.json 7 >attain.check 2>&1
+check "attain_check.py: the floors reached, checked with scipy" 0 $?
+grep -v '^ok ' attain.check
 if "$py" "$src/tests/bench/gen_catalog.py" 200 gen.yaml --seed 11 >/dev/null 2>gen.err; then
     certify_run gen 100 60 gen.yaml --budget 400 --threads 2
     # the searches are seeded from the plant ids: one thread gives the same document

@@ -298,3 +298,100 @@ Test(certify, a_slope_past_the_controller_order_is_not_attempted)
     cr_assert(!c.found && c.evaluations == 0);
     cr_assert(strstr(c.reason, "roll-off slope 8"), "%s", c.reason);
 }
+
+/* Stein, "Respect the unstable", IEEE Control Systems Magazine 23(4), 2003:
+ * the swept-wing example with an RHP pole at 6 and an RHP zero at 26 has
+ * Ms, Mt >= (26 + 6)/(26 - 6) = 1.6 whatever the controller. Without a
+ * roll-off requirement the interpolation construction reaches it: within
+ * 1 %, never below, verified stable; with a stable lag in the plant too. */
+Test(certify, interpolation_construction_reaches_the_swept_wing_floor)
+{
+    ps_cplx z = {26, 0}, p[2] = {{6, 0}, {-40, 0}};
+    for (size_t np = 1; np <= 2; np++) {
+        ps_analysis an;
+        plant(&an, np == 1 ? 1 : 40, &z, 1, p, np, 0);
+        ps_requirements q = loose();
+        ps_floors fl;
+        ps_floors_compute(lws, &an, &q, &fl);
+        cr_assert_float_eq(fl.ms_interpolation, 1.6, 1e-12);
+        cr_assert_float_eq(fl.mt_interpolation, 1.6, 1e-12);
+        ps_attain a;
+        ps_attain_floors(&an, &q, &fl, &a);
+        cr_assert(a.applies, "%s", a.why);
+        cr_assert(a.within);
+        cr_assert(a.chk_ms.stable && a.chk_ms.roots_checked && a.chk_ms.roots_agree);
+        cr_assert(a.chk_mt.stable && a.chk_mt.roots_checked && a.chk_mt.roots_agree);
+        cr_assert(a.chk_ms.ms >= 1.6 * (1 - 1e-9) && a.chk_ms.ms <= 1.6 * 1.01, "Ms %.9g", a.chk_ms.ms);
+        cr_assert(a.chk_mt.mt >= 1.6 * (1 - 1e-9) && a.chk_mt.mt <= 1.6 * 1.01, "Mt %.9g", a.chk_mt.mt);
+    }
+    /* a roll-off requirement: the construction does not apply, and says why */
+    ps_analysis an;
+    plant(&an, 1, &z, 1, p, 1, 0);
+    ps_requirements q = loose();
+    q.wh = 100;
+    ps_floors fl;
+    ps_floors_compute(lws, &an, &q, &fl);
+    ps_attain a;
+    ps_attain_floors(&an, &q, &fl, &a);
+    cr_assert(!a.applies && strstr(a.why, "roll-off"), "%s", a.why);
+    /* the zero below the pole: parity interlacing fails, the construction's stable controller cannot serve */
+    ps_cplx zlow = {3, 0};
+    plant(&an, 1, &zlow, 1, p, 1, 0);
+    q = loose();
+    ps_floors_compute(lws, &an, &q, &fl);
+    ps_attain_floors(&an, &q, &fl, &a);
+    cr_assert(!a.applies && strstr(a.why, "below the RHP pole"), "%s", a.why);
+}
+
+/* The construction over seeded plants with one real RHP pole, at most one
+ * real RHP zero and up to two stable poles and zeros: within 1 % of each
+ * interpolation floor, and never below it (a peak below a floor would mean
+ * the floor or the verification is wrong). */
+Test(certify, interpolation_construction_within_one_percent_never_below, .timeout = 300)
+{
+    uint64_t st = 12345;
+    size_t built = 0;
+    for (int trial = 0; trial < 300; trial++) {
+        double u[8];
+        for (int k = 0; k < 8; k++) {
+            st = st * 6364136223846793005ull + 1442695040888963407ull;
+            u[k] = (double)(st >> 11) * 0x1p-53;
+        }
+        double pp = pow(10.0, -1 + 3 * u[0]);
+        ps_cplx zs[2], ps[3];
+        size_t nz = 0, np = 0;
+        ps[np++] = (ps_cplx){pp, 0};
+        if (u[1] < 0.8) {
+            double zz = pp * pow(10.0, 0.05 + 1.5 * u[3]); /* above the pole: a stable controller stabilizes */
+            zs[nz++] = (ps_cplx){zz, 0};
+        }
+        if (u[4] < 0.6)
+            ps[np++] = (ps_cplx){-pow(10.0, -1 + 3 * u[5]), 0};
+        if (u[6] < 0.4)
+            ps[np++] = (ps_cplx){-pow(10.0, 3 * u[7]), 0};
+        if (u[6] > 0.7 && nz < 2)
+            zs[nz++] = (ps_cplx){-pow(10.0, 2 * u[5]), 0};
+        ps_analysis an;
+        plant(&an, 0.5 + u[7], zs, nz, ps, np, 0);
+        ps_requirements q = loose();
+        ps_floors fl;
+        ps_floors_compute(lws, &an, &q, &fl);
+        ps_attain a;
+        ps_attain_floors(&an, &q, &fl, &a);
+        if (an.rel_degree == 0 && an.n_rhp_zeros == 0) { /* biproper without an RHP zero: Ms floor 0, nothing to reach */
+            cr_assert(!a.applies && fl.ms_interpolation < 1, "trial %d: %s", trial, a.why);
+            continue;
+        }
+        cr_assert(a.applies, "trial %d: %s", trial, a.why);
+        built++;
+        cr_assert(a.chk_ms.stable && a.chk_ms.roots_agree && a.chk_mt.stable && a.chk_mt.roots_agree,
+                  "trial %d: not stable", trial);
+        cr_assert(a.chk_ms.ms >= fl.ms_interpolation * (1 - 1e-6), "trial %d: Ms %.9g below the floor %.9g", trial,
+                  a.chk_ms.ms, fl.ms_interpolation);
+        cr_assert(a.chk_mt.mt >= fl.mt_interpolation * (1 - 1e-6), "trial %d: Mt %.9g below the floor %.9g", trial,
+                  a.chk_mt.mt, fl.mt_interpolation);
+        cr_assert(a.within, "trial %d: Ms %.6g floor %.6g, Mt %.6g floor %.6g", trial, a.chk_ms.ms,
+                  fl.ms_interpolation, a.chk_mt.mt, fl.mt_interpolation);
+    }
+    cr_assert_geq(built, 250u);
+}
