@@ -155,11 +155,17 @@ void ps_attain_floors(const ps_analysis *an, const ps_requirements *q, const ps_
                      PS_CTRL_MAX_ORDER);
             return;
         }
-        verify(an, q, &out->for_ms, &out->chk_ms);
-        verify(an, q, &out->for_mt, &out->chk_mt);
+        ps_loop_check chk_ms, chk_mt;
+        verify(an, q, &out->for_ms, &chk_ms);
+        verify(an, q, &out->for_mt, &chk_mt);
         out->wf = wf;
-        bool ms_ok = out->chk_ms.stable && out->chk_ms.roots_agree && out->chk_ms.ms <= 1.01 * out->floor_ms;
-        bool mt_ok = out->chk_mt.stable && out->chk_mt.roots_agree && out->chk_mt.mt <= 1.01 * out->floor_mt;
+        out->ms = chk_ms.ms;
+        out->mt = chk_mt.mt;
+        out->ms_stable = chk_ms.stable && chk_ms.roots_agree;
+        out->mt_stable = chk_mt.stable && chk_mt.roots_agree;
+        out->roots_checked = chk_ms.roots_checked && chk_mt.roots_checked;
+        bool ms_ok = out->ms_stable && out->ms <= 1.01 * out->floor_ms;
+        bool mt_ok = out->mt_stable && out->mt <= 1.01 * out->floor_mt;
         if (ms_ok && mt_ok) {
             out->within = true;
             return;

@@ -89,12 +89,15 @@ const char *ps_cert_status_name(ps_cert_status s);
  * time, makes C proper and the loop strictly proper for the verification. */
 typedef struct ps_attain {
     bool applies;
-    char why[200];          /* when it does not apply: why */
+    bool within;            /* both verified stable with peaks within 1 % of their floors */
+    bool ms_stable, mt_stable; /* stable by the argument principle, the closed-loop roots agreeing */
+    bool roots_checked;     /* the closed-loop roots were computed for both */
+    char why[160];          /* when it does not apply: why */
     double floor_ms, floor_mt; /* the interpolation floors the peaks are measured against */
     double wf;              /* the filter's corner, rad/s */
+    double ms, mt;          /* verified peaks of |S| with for_ms and of |T| with for_mt (no roll-off, band or
+                               effort requirement) */
     ps_controller for_ms, for_mt;
-    ps_loop_check chk_ms, chk_mt; /* verified without roll-off, band or effort requirement */
-    bool within;            /* both verified stable with peaks within 1 % of their floors */
 } ps_attain;
 
 void ps_attain_floors(const ps_analysis *an, const ps_requirements *q, const ps_floors *fl, ps_attain *out);

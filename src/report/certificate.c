@@ -107,7 +107,7 @@ void ps_bracket_text(const ps_summary *s, const ps_screen_opts *opt, char *buf, 
     if (len && s->n_cert && a->applies && a->within && len < n)
         snprintf(buf + len, n - len, "; with no roll-off required the floors are reached: a controller built from "
                  "the interpolation solution gives Ms %.4g (floor %.4g) and another Mt %.4g (floor %.4g)",
-                 a->chk_ms.ms, a->floor_ms, a->chk_mt.mt, a->floor_mt);
+                 a->ms, a->floor_ms, a->mt, a->floor_mt);
 }
 
 static void bracket_core(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n)
@@ -174,7 +174,7 @@ static void attain_text(FILE *out, const ps_cert *c)
     if (!a->within) {
         fprintf(out, "  attained    the interpolation construction did not come within 1 %% of the floors (Ms %.4g "
                      "against %.4g, Mt %.4g against %.4g)\n",
-                a->chk_ms.ms, a->floor_ms, a->chk_mt.mt, a->floor_mt);
+                a->ms, a->floor_ms, a->mt, a->floor_mt);
         return;
     }
     fprintf(out, "  attained    no roll-off is required, and the floors are reached: C = c / (k G(s)), G the plant "
@@ -182,11 +182,11 @@ static void attain_text(FILE *out, const ps_cert *c)
     ps_poly_text(a->for_ms.num, a->for_ms.n_num, num, sizeof num);
     ps_poly_text(a->for_ms.den, a->for_ms.n_den, den, sizeof den);
     fprintf(out, "              Ms %.6g (%.5g x the floor %.6g), verified stable: C(s) = (%s) / (%s)\n",
-            a->chk_ms.ms, a->chk_ms.ms / a->floor_ms, a->floor_ms, num, den);
+            a->ms, a->ms / a->floor_ms, a->floor_ms, num, den);
     ps_poly_text(a->for_mt.num, a->for_mt.n_num, num, sizeof num);
     ps_poly_text(a->for_mt.den, a->for_mt.n_den, den, sizeof den);
     fprintf(out, "              Mt %.6g (%.5g x the floor %.6g), verified stable: C(s) = (%s) / (%s)\n",
-            a->chk_mt.mt, a->chk_mt.mt / a->floor_mt, a->floor_mt, num, den);
+            a->mt, a->mt / a->floor_mt, a->floor_mt, num, den);
 }
 
 void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
@@ -286,14 +286,14 @@ json_t *ps_certificate_json(const ps_summary *s, const ps_cert *c)
         json_t *at = json_object();
         json_object_set_new(at, "within_1_percent", json_boolean(a->within));
         json_object_set_new(at, "filter_corner", num_or_null(a->wf));
-        json_object_set_new(at, "ms", num_or_null(a->chk_ms.ms));
+        json_object_set_new(at, "ms", num_or_null(a->ms));
         json_object_set_new(at, "ms_floor", num_or_null(a->floor_ms));
-        json_object_set_new(at, "ms_stable", json_boolean(a->chk_ms.stable && a->chk_ms.roots_agree));
+        json_object_set_new(at, "ms_stable", json_boolean(a->ms_stable));
         json_object_set_new(at, "ms_num", coeffs(a->for_ms.num, a->for_ms.n_num));
         json_object_set_new(at, "ms_den", coeffs(a->for_ms.den, a->for_ms.n_den));
-        json_object_set_new(at, "mt", num_or_null(a->chk_mt.mt));
+        json_object_set_new(at, "mt", num_or_null(a->mt));
         json_object_set_new(at, "mt_floor", num_or_null(a->floor_mt));
-        json_object_set_new(at, "mt_stable", json_boolean(a->chk_mt.stable && a->chk_mt.roots_agree));
+        json_object_set_new(at, "mt_stable", json_boolean(a->mt_stable));
         json_object_set_new(at, "mt_num", coeffs(a->for_mt.num, a->for_mt.n_num));
         json_object_set_new(at, "mt_den", coeffs(a->for_mt.den, a->for_mt.n_den));
         json_object_set_new(o, "attained", at);

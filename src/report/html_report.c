@@ -1120,8 +1120,11 @@ static void cert_figure(FILE *f, const ps_summary *s)
     ps_plot p;
     ps_plot_open(&p, f, 400, 300, "cert-loop", buf);
     ps_plot_area(&p, 64, 34, 300, 200);
-    p.x = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = pow(10.0, floor(log10(s->cert_w[0]))),
-                         .hi = pow(10.0, ceil(log10(s->cert_w[n - 1]))), .minor = false, .label_every = 2,
+    double w[PS_CERT_CURVE_N];
+    for (size_t i = 0; i < n; i++) /* the grid of ps_loop_curve */
+        w[i] = exp(log(s->cert_w_from) + (log(s->cert_w_to) - log(s->cert_w_from)) * (double)i / (double)(n - 1));
+    p.x = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = pow(10.0, floor(log10(w[0]))),
+                         .hi = pow(10.0, ceil(log10(w[n - 1]))), .minor = false, .label_every = 2,
                          .title = "frequency w (rad/s, log)"};
     p.y = (ps_plot_axis){.scale = PS_SCALE_LOG, .lo = pow(10.0, floor(log10(ylo))), .hi = pow(10.0, log10(yhi) + 0.15),
                          .title = "|S|, |T| (ratio, log)"};
@@ -1131,8 +1134,8 @@ static void cert_figure(FILE *f, const ps_summary *s)
         ys[i] = s->cert_s[i] >= p.y.lo ? s->cert_s[i] : NAN; /* below the axis: not drawn */
         yt[i] = s->cert_t[i] >= p.y.lo ? s->cert_t[i] : NAN;
     }
-    ps_plot_series(&p, s->cert_w, ys, n, false, "curve");
-    ps_plot_series(&p, s->cert_w, yt, n, false, "curve-alt");
+    ps_plot_series(&p, w, ys, n, false, "curve");
+    ps_plot_series(&p, w, yt, n, false, "curve-alt");
     snprintf(buf, sizeof buf, "allowed Ms %.3g", s->req.ms_allowed);
     ps_plot_hline(&p, s->req.ms_allowed, "marginal", buf);
     if (s->req.mt_allowed != s->req.ms_allowed) {

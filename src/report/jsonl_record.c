@@ -587,11 +587,11 @@ static void certificate_part(jw *w, const ps_run *r, const ps_summary *s)
         jw_open(w, "attained", '{');
         jw_true(w, "within_1_percent", a->within);
         jw_num(w, "filter_corner", a->wf);
-        jw_num(w, "ms", a->chk_ms.ms);
+        jw_num(w, "ms", a->ms);
         jw_num(w, "ms_floor", a->floor_ms);
         jw_coeffs(w, "ms_num", a->for_ms.num, a->for_ms.n_num);
         jw_coeffs(w, "ms_den", a->for_ms.den, a->for_ms.n_den);
-        jw_num(w, "mt", a->chk_mt.mt);
+        jw_num(w, "mt", a->mt);
         jw_num(w, "mt_floor", a->floor_mt);
         jw_coeffs(w, "mt_num", a->for_mt.num, a->for_mt.n_num);
         jw_coeffs(w, "mt_den", a->for_mt.den, a->for_mt.n_den);
@@ -622,16 +622,16 @@ static void certificate_part(jw *w, const ps_run *r, const ps_summary *s)
         jw_close(w, '}');
         if (s->n_cert_curve) {
             jw_open(w, "loop_curve", '{');
-            jw_num(w, "w_from", s->cert_w[0]);
-            jw_num(w, "w_to", s->cert_w[s->n_cert_curve - 1]);
+            jw_num(w, "w_from", s->cert_w_from);
+            jw_num(w, "w_to", s->cert_w_to);
             jw_int(w, "points", (long long)s->n_cert_curve);
             jw_open(w, "s", '[');
             for (size_t i = 0; i < s->n_cert_curve; i++)
-                jw_item(w, isfinite(s->cert_s[i]) ? ps_round_sig(s->cert_s[i], 4) : s->cert_s[i]);
+                jw_item(w, isfinite(s->cert_s[i]) ? ps_round_sig(s->cert_s[i], 4) : (double)s->cert_s[i]);
             jw_close(w, ']');
             jw_open(w, "t", '[');
             for (size_t i = 0; i < s->n_cert_curve; i++)
-                jw_item(w, isfinite(s->cert_t[i]) ? ps_round_sig(s->cert_t[i], 4) : s->cert_t[i]);
+                jw_item(w, isfinite(s->cert_t[i]) ? ps_round_sig(s->cert_t[i], 4) : (double)s->cert_t[i]);
             jw_close(w, ']');
             jw_close(w, '}');
         }

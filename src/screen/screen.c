@@ -732,7 +732,14 @@ static void certify_plant(const ps_analysis *an, const ps_requirements *q, const
         }
     if (!(hi > 0))
         return;
-    ps_loop_curve(an, &c->ctrl, lo / 100, hi * 100, PS_CERT_CURVE_N, s->cert_w, s->cert_s, s->cert_t);
+    double w[PS_CERT_CURVE_N], sm[PS_CERT_CURVE_N], tm[PS_CERT_CURVE_N];
+    ps_loop_curve(an, &c->ctrl, lo / 100, hi * 100, PS_CERT_CURVE_N, w, sm, tm);
+    for (size_t i = 0; i < PS_CERT_CURVE_N; i++) {
+        s->cert_s[i] = (float)sm[i];
+        s->cert_t[i] = (float)tm[i];
+    }
+    s->cert_w_from = lo / 100;
+    s->cert_w_to = hi * 100;
     s->n_cert_curve = PS_CERT_CURVE_N;
 }
 
@@ -1042,7 +1049,7 @@ static const span spans[] = {
     TEXT(target[7].why),
     LIST(curve_wb, n_curve), LIST(curve_ms, n_curve),
     LIST(poles, n_poles), LIST(zeros, n_zeros), LIST(growth, n_growth),
-    LIST(cert, n_cert), LIST(cert_w, n_cert_curve), LIST(cert_s, n_cert_curve), LIST(cert_t, n_cert_curve),
+    LIST(cert, n_cert), LIST(cert_s, n_cert_curve), LIST(cert_t, n_cert_curve),
     TEXT(err_field), TEXT(err_text),
 };
 _Static_assert(PS_TARGET_COUNT == 8, "one text span per target");

@@ -71,7 +71,7 @@ typedef struct ps_target {
     char why[120];
 } ps_target;
 
-enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 440, PS_CERT_CURVE_N = 61 };
+enum { PS_MAP_MAX = 16, PS_CURVE_N = 33, PS_CAUSE_MAX = 440, PS_CERT_CURVE_N = 41 };
 
 /* What a report needs of one plant: a fixed record, no pointers into the
  * model (the model is gone once the next entry is read). */
@@ -110,8 +110,9 @@ typedef struct ps_summary {
        taken, and then |S| and |T| of the loop found, when one was (n_cert_curve points) */
     size_t n_cert;
     ps_cert cert[1];
-    size_t n_cert_curve;
-    double cert_w[PS_CERT_CURVE_N], cert_s[PS_CERT_CURVE_N], cert_t[PS_CERT_CURVE_N];
+    size_t n_cert_curve;        /* points log-spaced from cert_w_from to cert_w_to (rad/s) */
+    double cert_w_from, cert_w_to;
+    float cert_s[PS_CERT_CURVE_N], cert_t[PS_CERT_CURVE_N]; /* single precision: a figure's data */
     /* input errors */
     size_t err_line, err_col;
     char err_field[PS_DIAG_FIELD];
