@@ -155,6 +155,38 @@ static void bracket_core(const ps_summary *s, const ps_screen_opts *opt, char *b
                  c->evaluations, c->chk.ms, c->chk.mt, s->fl.ms, s->fl.mt, c->chk.why, cw);
 }
 
+size_t ps_bracket_rows(const ps_run *r, size_t max, void (*fn)(void *ctx, const ps_bracket_row *row), void *ctx)
+{
+    size_t told = 0;
+    for (size_t i = 0; i < r->n_rows && told < max; i++) {
+        ps_verdict v = ps_run_verdict(r, i);
+        if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
+            continue;
+        ps_bracket_row row = {.rank = i + 1, .s = ps_run_row(r, i)};
+        row.b = ps_summary_bracket(row.s, &r->opt);
+        if (row.b == PS_BRACKET_NONE)
+            continue;
+        const ps_cert *c = &row.s->cert[0];
+        row.found = row.s->n_cert && c->found;
+        if (row.found)
+            snprintf(row.what, sizeof row.what, "%s, %zu roll-off pole%s", ps_ctrl_structure_name(c->ctrl.structure),
+                     c->ctrl.n_rolloff, c->ctrl.n_rolloff == 1 ? "" : "s");
+        else
+            snprintf(row.what, sizeof row.what, "%s",
+                     row.s->n_cert && c->status != PS_CERT_NOT_ATTEMPTED ? "none found" : "not searched");
+        told++;
+        fn(ctx, &row);
+    }
+    return told;
+}
+
+size_t ps_bracket_count(const ps_run *r)
+{
+    const size_t *pb = r->per_bracket;
+    return pb[PS_BRACKET_RULED_OUT] + pb[PS_BRACKET_DEMONSTRATED] + pb[PS_BRACKET_UNDECIDED] +
+           pb[PS_BRACKET_NOT_ATTEMPTED];
+}
+
 /* " (1.15 x the floor)" when the floor binds (>= 1), else "". */
 static void ratio_words(double found, double floor, char *buf, size_t cap)
 {

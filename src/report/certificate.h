@@ -18,6 +18,22 @@ const char *ps_bracket_name(ps_bracket b);
  * floors, the controller in words, or why nothing was found. */
 void ps_bracket_text(const ps_summary *s, const ps_screen_opts *opt, char *buf, size_t n);
 
+/* One row of a bracket table: a plant with a bracket, in rank order. */
+typedef struct ps_bracket_row {
+    size_t rank;          /* 1-based */
+    const ps_summary *s;
+    ps_bracket b;
+    bool found;           /* a controller was found: cert[0].chk holds its peaks */
+    char what[96];        /* "PID, 1 roll-off pole", "none found" or "not searched" */
+} ps_bracket_row;
+
+/* Call fn for at most max plants of r with a bracket, in rank order (input
+ * errors and plants not judged have none); the number of calls. */
+size_t ps_bracket_rows(const ps_run *r, size_t max, void (*fn)(void *ctx, const ps_bracket_row *row), void *ctx);
+
+/* The number of plants of r with a bracket. */
+size_t ps_bracket_count(const ps_run *r);
+
 /* The controller in words: "PID: K 3.2, ...; 2 roll-off poles at -150 rad/s". */
 void ps_controller_words(const ps_controller *c, char *buf, size_t cap);
 

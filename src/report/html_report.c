@@ -1340,6 +1340,54 @@ static void meanings(FILE *f)
     fprintf(f, "</dl>\n</section>\n");
 }
 
+static void bracket_row(void *ctx, const ps_bracket_row *row)
+{
+    FILE *f = ctx;
+    const ps_summary *s = row->s;
+    fprintf(f, "<tr><td>%zu</td><td>", row->rank);
+    h_text(f, s->id);
+    fprintf(f, "</td><td>%s</td><td>", ps_bracket_name(row->b));
+    h_big(f, s->fl.ms, s->fl.ms_ln);
+    fprintf(f, "</td><td>");
+    h_num(f, row->found ? s->cert[0].chk.ms : NAN);
+    fprintf(f, "</td><td>");
+    h_big(f, s->fl.mt, s->fl.mt_ln);
+    fprintf(f, "</td><td>");
+    h_num(f, row->found ? s->cert[0].chk.mt : NAN);
+    fprintf(f, "</td><td>");
+    h_text(f, row->what);
+    fprintf(f, "</td></tr>\n");
+}
+
+/* screen --certify: the count of each outcome and a table of the plants
+ * with a bracket (the first PS_HTML_RANK_ROWS in rank order). */
+static void bracket_section(FILE *f, const ps_run *r)
+{
+    if (r->opt.certify == PS_CERTIFY_NONE)
+        return;
+    const size_t *pb = r->per_bracket;
+    size_t n = ps_bracket_count(r);
+    fprintf(f, "<section id=\"bracket\">\n<h2>Bracket: floors against a verified controller</h2>\n<p>The floors "
+               "say what no controller can do; a controller searched within %zu loop evaluations a plant and "
+               "verified shows what one controller does. Searched: the %s plants. <strong>%zu demonstrated, %zu "
+               "undecided, %zu ruled out, %zu not attempted.</strong> A found peak is an upper bound on the best "
+               "achievable peak, not the optimum; undecided means no controller was found within the budget, never "
+               "that none exists.</p>\n",
+            r->opt.certify_budget ? r->opt.certify_budget : (size_t)PS_CERT_BUDGET,
+            r->opt.certify == PS_CERTIFY_PASSING ? "passing" : "judged", pb[PS_BRACKET_DEMONSTRATED],
+            pb[PS_BRACKET_UNDECIDED], pb[PS_BRACKET_RULED_OUT], pb[PS_BRACKET_NOT_ATTEMPTED]);
+    if (n > PS_HTML_RANK_ROWS)
+        fprintf(f, "<p><span class=\"cap\">Showing %d of %zu plants.</span> All of them are in the CSV and JSON Lines "
+                   "files.</p>\n",
+                PS_HTML_RANK_ROWS, n);
+    fprintf(f, "<table class=\"stack\">\n<caption>Plants with a bracket, worst first</caption>\n<thead><tr>"
+               "<th scope=\"col\">Rank</th><th scope=\"col\">Plant</th><th scope=\"col\">Outcome</th>"
+               "<th scope=\"col\">Ms floor</th><th scope=\"col\">Ms found</th><th scope=\"col\">Mt floor</th>"
+               "<th scope=\"col\">Mt found</th><th scope=\"col\">Controller</th></tr></thead>\n<tbody>\n");
+    ps_bracket_rows(r, PS_HTML_RANK_ROWS, bracket_row, f);
+    fprintf(f, "</tbody>\n</table>\n</section>\n");
+}
+
 ps_status ps_write_html(FILE *f, const ps_run *r)
 {
     fprintf(f, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
@@ -1351,6 +1399,7 @@ ps_status ps_write_html(FILE *f, const ps_run *r)
     ps_html_board(f, r);
     ranking(f, r);
     severity_figure(f, r);
+    bracket_section(f, r);
     families(f, r);
     plant_sections(f, r);
     input_errors(f, r);

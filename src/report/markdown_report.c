@@ -420,6 +420,23 @@ static void details(FILE *f, const ps_run *r)
     fprintf(f, "\n");
 }
 
+static void bracket_row(void *ctx, const ps_bracket_row *row)
+{
+    FILE *f = ctx;
+    const ps_summary *s = row->s;
+    fprintf(f, "| %zu | ", row->rank);
+    md_cell(f, s->id);
+    fprintf(f, " | %s | ", ps_bracket_name(row->b));
+    md_big(f, s->fl.ms, s->fl.ms_ln);
+    fprintf(f, " | ");
+    md_num(f, false, row->found ? s->cert[0].chk.ms : NAN, "inf");
+    fprintf(f, " | ");
+    md_big(f, s->fl.mt, s->fl.mt_ln);
+    fprintf(f, " | ");
+    md_num(f, false, row->found ? s->cert[0].chk.mt : NAN, "inf");
+    fprintf(f, " | %s |\n", row->what);
+}
+
 /* screen --certify: the outcome counts and, in rank order, at most
  * PS_MD_TABLE_MAX plants with a bracket. */
 static void bracket(FILE *f, const ps_run *r)
@@ -427,8 +444,7 @@ static void bracket(FILE *f, const ps_run *r)
     if (r->opt.certify == PS_CERTIFY_NONE)
         return;
     const size_t *pb = r->per_bracket;
-    size_t n = pb[PS_BRACKET_RULED_OUT] + pb[PS_BRACKET_DEMONSTRATED] + pb[PS_BRACKET_UNDECIDED] +
-               pb[PS_BRACKET_NOT_ATTEMPTED];
+    size_t n = ps_bracket_count(r);
     fprintf(f, "## Bracket: floors against a verified controller\n\n");
     fprintf(f, "The floors say what no controller can do; a controller searched within %zu loop evaluations a plant "
                "and verified (stability by the argument principle and, for a loop without delay, the closed-loop roots; peaks and "
@@ -444,34 +460,7 @@ static void bracket(FILE *f, const ps_run *r)
                 PS_MD_TABLE_MAX, n);
     fprintf(f, "| rank | plant | outcome | Ms floor | Ms found | Mt floor | Mt found | controller |\n");
     fprintf(f, "|---:|---|---|---:|---:|---:|---:|---|\n");
-    size_t told = 0;
-    for (size_t i = 0; i < r->n_rows && told < PS_MD_TABLE_MAX; i++) {
-        ps_verdict v = ps_run_verdict(r, i);
-        if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
-            continue;
-        const ps_summary *s = ps_run_row(r, i);
-        ps_bracket b = ps_summary_bracket(s, &r->opt);
-        if (b == PS_BRACKET_NONE)
-            continue;
-        told++;
-        const ps_cert *c = &s->cert[0];
-        bool found = s->n_cert && c->found;
-        fprintf(f, "| %zu | ", i + 1);
-        md_cell(f, s->id);
-        fprintf(f, " | %s | ", ps_bracket_name(b));
-        md_big(f, s->fl.ms, s->fl.ms_ln);
-        fprintf(f, " | ");
-        md_num(f, false, found ? c->chk.ms : NAN, "inf");
-        fprintf(f, " | ");
-        md_big(f, s->fl.mt, s->fl.mt_ln);
-        fprintf(f, " | ");
-        md_num(f, false, found ? c->chk.mt : NAN, "inf");
-        if (found)
-            fprintf(f, " | %s, %zu roll-off pole%s |\n", ps_ctrl_structure_name(c->ctrl.structure), c->ctrl.n_rolloff,
-                    c->ctrl.n_rolloff == 1 ? "" : "s");
-        else
-            fprintf(f, " | %s |\n", s->n_cert && c->status != PS_CERT_NOT_ATTEMPTED ? "none found" : "not searched");
-    }
+    ps_bracket_rows(r, PS_MD_TABLE_MAX, bracket_row, f);
     fprintf(f, "\n");
 }
 

@@ -172,6 +172,19 @@ static void certificate(FILE *f, const ps_run *r, const ps_summary *s)
     wrap(f, line, "    ", 96);
 }
 
+static void bracket_row(void *ctx, const ps_bracket_row *row)
+{
+    FILE *f = ctx;
+    const ps_summary *s = row->s;
+    char msf[PS_NUMFMT_ROOM], mtf[PS_NUMFMT_ROOM], msc[PS_NUMFMT_ROOM], mtc[PS_NUMFMT_ROOM];
+    num_big(msf, sizeof msf, s->fl.ms, s->fl.ms_ln);
+    num_big(mtf, sizeof mtf, s->fl.mt, s->fl.mt_ln);
+    num(msc, sizeof msc, row->found ? s->cert[0].chk.ms : NAN);
+    num(mtc, sizeof mtc, row->found ? s->cert[0].chk.mt : NAN);
+    fprintf(f, "  %-24.24s  %-13s  %9s  %9s  %9s  %9s  %s\n", s->id, ps_bracket_name(row->b), msf, msc, mtf, mtc,
+            row->what);
+}
+
 /* screen --certify: the count of each outcome and a line a plant (the
  * flagged and passing plants' sections above give the controllers). */
 static void bracket_section(FILE *f, const ps_run *r, size_t show, const char *full)
@@ -179,8 +192,7 @@ static void bracket_section(FILE *f, const ps_run *r, size_t show, const char *f
     if (r->opt.certify == PS_CERTIFY_NONE)
         return;
     const size_t *pb = r->per_bracket;
-    size_t n = pb[PS_BRACKET_RULED_OUT] + pb[PS_BRACKET_DEMONSTRATED] + pb[PS_BRACKET_UNDECIDED] +
-               pb[PS_BRACKET_NOT_ATTEMPTED];
+    size_t n = ps_bracket_count(r);
     fprintf(f, "\nBracket: floors (what no controller can do) against a verified controller (what one does), "
                "%s plants, budget %zu loop evaluations a plant\n",
             r->opt.certify == PS_CERTIFY_PASSING ? "passing" : "judged",
@@ -189,33 +201,7 @@ static void bracket_section(FILE *f, const ps_run *r, size_t show, const char *f
             pb[PS_BRACKET_UNDECIDED], pb[PS_BRACKET_RULED_OUT], pb[PS_BRACKET_NOT_ATTEMPTED]);
     fprintf(f, "  %-24s  %-13s  %9s  %9s  %9s  %9s  %s\n", "plant", "outcome", "Ms floor", "Ms found", "Mt floor",
             "Mt found", "controller");
-    size_t told = 0;
-    for (size_t i = 0; i < r->n_rows && told < show; i++) {
-        ps_verdict v = ps_run_verdict(r, i);
-        if (v == PS_VERDICT_UNREAD || v == PS_VERDICT_NEEDS_BANDWIDTH)
-            continue;
-        const ps_summary *s = ps_run_row(r, i);
-        ps_bracket b = ps_summary_bracket(s, &r->opt);
-        if (b == PS_BRACKET_NONE)
-            continue;
-        told++;
-        const ps_cert *c = &s->cert[0];
-        bool found = s->n_cert && c->found;
-        char msf[PS_NUMFMT_ROOM], mtf[PS_NUMFMT_ROOM], msc[PS_NUMFMT_ROOM], mtc[PS_NUMFMT_ROOM];
-        num_big(msf, sizeof msf, s->fl.ms, s->fl.ms_ln);
-        num_big(mtf, sizeof mtf, s->fl.mt, s->fl.mt_ln);
-        num(msc, sizeof msc, found ? c->chk.ms : NAN);
-        num(mtc, sizeof mtc, found ? c->chk.mt : NAN);
-        char what[96];
-        if (found)
-            snprintf(what, sizeof what, "%s, %zu roll-off pole%s", ps_ctrl_structure_name(c->ctrl.structure),
-                     c->ctrl.n_rolloff, c->ctrl.n_rolloff == 1 ? "" : "s");
-        else
-            snprintf(what, sizeof what, "%s",
-                     s->n_cert && c->status != PS_CERT_NOT_ATTEMPTED ? "none found" : "not searched");
-        fprintf(f, "  %-24.24s  %-13s  %9s  %9s  %9s  %9s  %s\n", s->id, ps_bracket_name(b), msf, msc, mtf, mtc,
-                what);
-    }
+    size_t told = ps_bracket_rows(r, show, bracket_row, f);
     more(f, n - told, full);
     wrap(f, "A found peak is an upper bound on the best achievable peak, not the optimum; undecided means no "
             "controller was found within the budget, never that none exists.", "  ", 96);
