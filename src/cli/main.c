@@ -525,6 +525,7 @@ typedef enum gate { GATE_REDESIGN, GATE_MARGINAL, GATE_NEVER } gate;
 typedef struct progress {
     size_t total, done;
     double start, last;
+    const char *verb;    /* "screened" (NULL) or "searched" */
 } progress;
 
 static double now_s(void)
@@ -534,18 +535,28 @@ static double now_s(void)
     return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
 }
 
+static void progress_show(progress *pg, bool final);
+
 static void progress_tick(progress *pg, bool final)
 {
     if (!final)
         pg->done++;
+    progress_show(pg, final);
+}
+
+static void progress_show(progress *pg, bool final)
+{
     double t = now_s();
     if (!final && t - pg->last < 0.5)
         return;
     pg->last = t;
     double rate = (double)pg->done / fmax(t - pg->start, 1e-9);
     double left = pg->total > pg->done ? (double)(pg->total - pg->done) / fmax(rate, 1e-9) : 0.0;
-    fprintf(stderr, "\r  screened %zu of %zu plants, %.0f plants/s, about %.1f s left   ", pg->done, pg->total, rate,
-            left);
+    if (pg->verb) /* a family's grid plants count one entry in total: no total, no time left */
+        fprintf(stderr, "\r  %s %zu plants, %.*f plants/s   ", pg->verb, pg->done, rate < 10 ? 1 : 0, rate);
+    else
+        fprintf(stderr, "\r  screened %zu of %zu plants, %.0f plants/s, about %.1f s left   ", pg->done, pg->total,
+                rate, left);
     if (final)
         fputc('\n', stderr);
 }
@@ -794,7 +805,7 @@ static bool want_colour(void)
     return isatty(STDOUT_FILENO) && !(nc && nc[0]);
 }
 
-static size_t count_entries(char **files, int n);
+static size_t count_entries(char **files, int n, size_t *families);
 
 /* The report set of a screen run and what an interrupt prints, static so
  * that the handler reaches them; it uses only async-signal-safe calls. */
@@ -1173,7 +1184,10 @@ static int cmd_screen(int argc, char **argv)
     c.pool = ps_pool_new(a.threads, &c.run, say_entry_error, &c);
     progress pg = {0};
     if (!a.quiet && isatty(STDERR_FILENO)) {
-        pg.total = count_entries(cats, n);
+        size_t families = 0;
+        pg.total = count_entries(cats, n, &families);
+        if (families) /* the grids' plants are not counted ahead: no total, no time left */
+            pg.verb = "screened";
         pg.start = pg.last = now_s();
         c.prog = &pg;
     }
@@ -1468,7 +1482,7 @@ static int cmd_explain(int argc, char **argv)
 /* ---- read: the reading cost alone ---- */
 
 typedef struct read_count {
-    size_t entries, errors;
+    size_t entries, errors, families;
 } read_count;
 
 static int count_entry(void *ctx, ps_plant *p, const ps_diag *err)
@@ -1484,10 +1498,14 @@ static int count_family(void *ctx, const ps_ynode *family, const ps_plant *defau
 {
     (void)family, (void)defaults;
     ((read_count *)ctx)->entries++;
+    ((read_count *)ctx)->families++;
     return 0;
 }
 
-static size_t count_entries(char **files, int n)
+/* The catalogs' entries, a family counting one; *families: how many are
+ * families (their grid plants are screened too, so the entries are then no
+ * total of the plants). */
+static size_t count_entries(char **files, int n, size_t *families)
 {
     ps_plant *scratch = malloc(sizeof *scratch);
     read_count c = {0};
@@ -1496,6 +1514,8 @@ static size_t count_entries(char **files, int n)
         ps_catalog_read_families(files[i], scratch, count_entry, count_family, &c, &fd);
     }
     free(scratch);
+    if (families)
+        *families = c.families;
     return c.entries;
 }
 
@@ -1522,6 +1542,7 @@ typedef struct certify_ctx {
     json_t *plants;
     size_t per_bracket[PS_BRACKET_COUNT];
     bool nomem;
+    progress *prog;     /* on a terminal: plants searched so far */
 } certify_ctx;
 
 static void *certify_worker(void *arg)
@@ -1559,6 +1580,10 @@ static void certify_flush(certify_ctx *c)
         json_t *pl = ps_certificate_plant_json(&j->an);
         if (!o || !pl || json_object_set_new(o, "plant", pl) != 0 || json_array_append_new(c->plants, o) != 0)
             c->nomem = true;
+    }
+    if (c->prog) {
+        c->prog->done += c->n_jobs;
+        progress_show(c->prog, false);
     }
     c->n_jobs = 0;
 }
@@ -1618,6 +1643,11 @@ static int cmd_certify(int argc, char **argv)
     c.ws = ps_screen_ws_new();
     c.jobs = malloc(CERT_CHUNK * sizeof *c.jobs);
     c.plants = json_array();
+    progress pg = {.verb = "searched"};
+    if (isatty(STDERR_FILENO)) { /* a line on stderr that tells how far the search is */
+        pg.start = pg.last = now_s();
+        c.prog = &pg;
+    }
     ps_batch *b = c.ws && c.jobs && c.plants ? ps_batch_new(certify_entry, &c) : NULL;
     rc = EXIT_CLEAN;
     if (!b) {
@@ -1633,6 +1663,8 @@ static int cmd_certify(int argc, char **argv)
     }
     if (b) {
         certify_flush(&c);
+        if (c.prog && pg.done)
+            progress_show(&pg, true);
         const ps_batch_counts *counts = ps_batch_counts_get(b);
         if (rc == EXIT_CLEAN && counts->errors)
             rc = EXIT_ENTRIES;

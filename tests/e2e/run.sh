@@ -571,6 +571,18 @@ PY
 check "screen --certify: outcomes agree across formats and controllers are certify's" 0 $?
 "$ps" screen --budget 500 --no-files "$src/catalogs/demo-variants.yaml" >/dev/null 2>"$tmp/err"; check "screen --budget without --certify is a usage error" 2 $?
 
+# The progress line on a terminal (script(1) from bsdutils gives one) says nothing false: a
+# catalog with families has more plants than entries, so no "N of M" there, and certify
+# counts the plants it searched.
+if command -v script >/dev/null 2>&1; then
+    script -qc "'$ps' screen --no-files --gate never '$src/catalogs/demo-variants.yaml' >/dev/null" /dev/null </dev/null \
+        | tr '\r' '\n' >"$tmp/prog.screen"
+    grep -q "screened 31 plants" "$tmp/prog.screen" && ! grep -q " of 26 plants" "$tmp/prog.screen"
+    check "screen's progress line with families counts the plants screened, no total" 0 $?
+    script -qc "'$ps' certify '$src/catalogs/demo-variants.yaml' >/dev/null" /dev/null </dev/null | tr '\r' '\n' >"$tmp/prog.cert"
+    grep -q "searched 31 plants" "$tmp/prog.cert"; check "certify's progress line counts the plants searched" 0 $?
+fi
+
 # The screening JSON validates against its schemas (python3-jsonschema): the summary against
 # plantsieve-screening.schema.json, every line of its JSON Lines file against
 # plantsieve-screening-plant.schema.json; the references are all inside each schema (nothing is
