@@ -596,31 +596,48 @@ void ps_certify(const ps_analysis *an, const ps_requirements *q, const ps_floors
     sp.lo = fmin(sp.lo, sp.w_ref * 1e-4);
     sp.hi = fmax(sp.hi, sp.w_ref * 1e4);
     uint64_t rng = out->seed;
-    point keep[KEEP];
+    /* the best point of each arm (structure and sign), then the best KEEP of all others:
+       the local stage starts from every structure, not only the one that sampled best */
+    point keep[2 * PS_CTRL_COUNT + KEEP];
     size_t n_keep = 0;
+    point rest[KEEP];
+    size_t n_rest = 0;
     size_t global = budget / 2, per_arm = n_arms ? global / n_arms : 0;
-    for (size_t a = 0; a < n_arms; a++)
+    for (size_t a = 0; a < n_arms; a++) {
+        point top = {a, {0}, INFINITY};
         for (size_t i = 0; i < per_arm; i++) {
             point p = {a, {0}, 0};
             for (size_t k = 0; k < arms[a].dim; k++)
                 p.x[k] = uniform(&rng);
             p.j = cost(&sp, &arms[a], p.x);
-            /* keep the KEEP best, best first */
-            size_t at = n_keep < KEEP ? n_keep++ : KEEP;
-            if (at == KEEP && p.j >= keep[KEEP - 1].j)
+            point loser = p;
+            if (p.j < top.j) {
+                loser = top;
+                top = p;
+            }
+            if (!isfinite(loser.j))
+                continue;
+            /* keep the KEEP best of the rest, best first */
+            size_t at = n_rest < KEEP ? n_rest++ : KEEP;
+            if (at == KEEP && loser.j >= rest[KEEP - 1].j)
                 continue;
             if (at == KEEP)
                 at = KEEP - 1;
-            while (at > 0 && keep[at - 1].j > p.j) {
-                keep[at] = keep[at - 1];
+            while (at > 0 && rest[at - 1].j > loser.j) {
+                rest[at] = rest[at - 1];
                 at--;
             }
-            keep[at] = p;
+            rest[at] = loser;
         }
+        if (isfinite(top.j))
+            keep[n_keep++] = top;
+    }
+    for (size_t i = 0; i < n_rest; i++)
+        keep[n_keep++] = rest[i];
     size_t left = budget > sp.evaluations ? budget - sp.evaluations : 0;
     for (size_t i = 0; i < n_keep; i++)
         nelder_mead(&sp, &arms[keep[i].arm], &keep[i], left / n_keep);
-    /* best first again after the local stage; verify in that order until one is stable */
+    /* best first again after the local stage */
     for (size_t i = 1; i < n_keep; i++)
         for (size_t j = i; j > 0 && keep[j].j < keep[j - 1].j; j--) {
             point t = keep[j];
