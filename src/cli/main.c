@@ -163,7 +163,7 @@ static const cli_option screen_opts[] = {
     {"certify", OPT_CERTIFY, "WHICH", "search and verify a certificate controller for the\n"
                                       "plants whose floors pass (passing) or for every\n"
                                       "judged plant (judged): ruled out, demonstrated or\n"
-                                      "undecided in every report; about 0.1-0.2 s of CPU a\n"
+                                      "undecided in every report; about 0.1 s of CPU a\n"
                                       "plant"},
     {"budget", OPT_BUDGET, "N", "loop evaluations a plant for --certify, 100 to\n"
                                 "10000000 (default " PS_CERT_BUDGET_TEXT ")"},
