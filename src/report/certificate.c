@@ -151,7 +151,8 @@ static void bracket_core(const ps_summary *s, const ps_screen_opts *opt, char *b
                  c->chk.ms, c->chk.mt, s->fl.ms, s->fl.mt, cw);
     else
         snprintf(buf, n, "undecided: the floors pass; the best controller found in %zu loop evaluations reaches Ms "
-                         "%.4g and Mt %.4g (floors %.4g and %.4g) but %s; this does not show that none exists: %s",
+                         "%.4g and Mt %.4g (floors %.4g and %.4g, which hold for loops that meet every requirement) "
+                         "but %s; this does not show that none exists: %s",
                  c->evaluations, c->chk.ms, c->chk.mt, s->fl.ms, s->fl.mt, c->chk.why, cw);
 }
 
@@ -169,8 +170,9 @@ size_t ps_bracket_rows(const ps_run *r, size_t max, void (*fn)(void *ctx, const 
         const ps_cert *c = &row.s->cert[0];
         row.found = row.s->n_cert && c->found;
         if (row.found)
-            snprintf(row.what, sizeof row.what, "%s, %zu roll-off pole%s", ps_ctrl_structure_name(c->ctrl.structure),
-                     c->ctrl.n_rolloff, c->ctrl.n_rolloff == 1 ? "" : "s");
+            snprintf(row.what, sizeof row.what, "%s, %zu roll-off pole%s%s%s%s", ps_ctrl_structure_name(c->ctrl.structure),
+                     c->ctrl.n_rolloff, c->ctrl.n_rolloff == 1 ? "" : "s", c->chk.meets ? "" : " (misses ",
+                     c->chk.meets ? "" : ps_loop_miss_word(&c->chk), c->chk.meets ? "" : ")");
         else
             snprintf(row.what, sizeof row.what, "%s",
                      row.s->n_cert && c->status != PS_CERT_NOT_ATTEMPTED ? "none found" : "not searched");
@@ -185,6 +187,23 @@ size_t ps_bracket_count(const ps_run *r)
     const size_t *pb = r->per_bracket;
     return pb[PS_BRACKET_RULED_OUT] + pb[PS_BRACKET_DEMONSTRATED] + pb[PS_BRACKET_UNDECIDED] +
            pb[PS_BRACKET_NOT_ATTEMPTED];
+}
+
+const char *ps_loop_miss_word(const ps_loop_check *k)
+{
+    if (k->meets)
+        return "";
+    if (strstr(k->why, "on the band"))
+        return "band";
+    if (strstr(k->why, "roll-off"))
+        return "roll-off";
+    if (strstr(k->why, "|C S|"))
+        return "effort";
+    if (strstr(k->why, "peak |S|"))
+        return "Ms";
+    if (strstr(k->why, "peak |T|"))
+        return "Mt";
+    return "a check";
 }
 
 /* " (1.15 x the floor)" when the floor binds (>= 1), else "". */

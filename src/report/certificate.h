@@ -34,6 +34,10 @@ size_t ps_bracket_rows(const ps_run *r, size_t max, void (*fn)(void *ctx, const 
 /* The number of plants of r with a bracket. */
 size_t ps_bracket_count(const ps_run *r);
 
+/* The first requirement a verified loop misses, in a word ("band",
+ * "roll-off", "effort", "Ms", "Mt"); "" when it meets every one. */
+const char *ps_loop_miss_word(const ps_loop_check *k);
+
 /* The controller in words: "PID: K 3.2, ...; 2 roll-off poles at -150 rad/s". */
 void ps_controller_words(const ps_controller *c, char *buf, size_t cap);
 

@@ -1372,7 +1372,8 @@ static void bracket_section(FILE *f, const ps_run *r)
                "verified shows what one controller does. Searched: the %s plants. <strong>%zu demonstrated, %zu "
                "undecided, %zu ruled out, %zu not attempted.</strong> A found peak is an upper bound on the best "
                "achievable peak, not the optimum; undecided means no controller was found within the budget, never "
-               "that none exists.</p>\n",
+               "that none exists. The floors hold for loops that meet every stated requirement: a controller that "
+               "misses the band or the roll-off may show a peak below them.</p>\n",
             r->opt.certify_budget ? r->opt.certify_budget : (size_t)PS_CERT_BUDGET,
             r->opt.certify == PS_CERTIFY_PASSING ? "passing" : "judged", pb[PS_BRACKET_DEMONSTRATED],
             pb[PS_BRACKET_UNDECIDED], pb[PS_BRACKET_RULED_OUT], pb[PS_BRACKET_NOT_ATTEMPTED]);
