@@ -565,6 +565,20 @@ if not m or [int(g) for g in m.groups()] != [counts[k] for k in ("demonstrated",
     bad.append("txt counts line")
 if compared < 10:
     bad.append("only %d controllers compared" % compared)
+# a found peak below a floor only where the controller misses a requirement the floor assumes
+for r in recs:
+    c = r.get("certificate") or {}
+    f = c.get("found")
+    if f and not f.get("meets") and (f["ms"] < r["floors"]["ms"] or f["mt"] < r["floors"]["mt"]):
+        if not re.search(r"band|roll-off", f.get("why", "")):
+            bad.append("%s: found peaks below the floors, missing %s" % (r["id"], f.get("why")))
+    if f and f.get("meets") and (f["ms"] < r["floors"]["ms"] * (1 - 1e-9) or f["mt"] < r["floors"]["mt"] * (1 - 1e-9)):
+        bad.append("%s: a controller meeting every requirement below the floors" % r["id"])
+for line in txt.splitlines():
+    if re.match(r"  \S+ +undecided ", line) and "none found" not in line and "(misses " not in line:
+        bad.append("txt bracket row without the requirement missed: " + line.strip())
+if "The floors hold for loops that meet" not in " ".join(txt.split()):
+    bad.append("txt: the floors' condition is not stated")
 print("\n".join(bad))
 sys.exit(1 if bad else 0)
 PY
