@@ -60,6 +60,8 @@ typedef struct ps_loop_check {
     double rolloff_ratio;  /* max over w >= wh of |L| / (delta (wh/w)^(1+k)); NAN without a roll-off start */
     double band_peak;      /* max |S| on [0, wb]; NAN without a band */
     bool meets;            /* stable, agreed, and every requirement met with the margin PS_CERT_MARGIN */
+    bool shape_met;        /* stable, and roll-off, band and effort met (all but the allowed peaks): only then
+                              are its peaks an upper bound on the best peaks achievable under the requirements */
     char why[200];         /* the first requirement not met, or "" */
 } ps_loop_check;
 

@@ -437,6 +437,9 @@ void ps_loop_verify(const ps_analysis *an, const ps_requirements *q, const ps_co
         }
     }
     double m = 1.0 + PS_CERT_MARGIN;
+    out->shape_met = out->stable && out->roots_agree && !(q->wh > 0 && out->rolloff_ratio * m > 1.0) &&
+                     !(q->wb > 0 && out->band_peak * m > q->eps) &&
+                     !(q->effort_allowed > 0 && out->effort * m > q->effort_allowed);
     if (out->ms * m > q->ms_allowed)
         snprintf(out->why, sizeof out->why, "peak |S| %.4g is above the allowed %.4g", out->ms, q->ms_allowed);
     else if (out->mt * m > q->mt_allowed)

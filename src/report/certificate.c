@@ -263,7 +263,11 @@ void ps_certificate_text(FILE *out, const ps_summary *s, const ps_cert *c)
     ratio_words(k->ms, s->fl.ms, rs, sizeof rs);
     ratio_words(k->mt, s->fl.mt, rt, sizeof rt);
     fprintf(out, "  best found  Ms %.4g%s  Mt %.4g%s\n", k->ms, rs, k->mt, rt);
-    fprintf(out, "              an upper bound on the best achievable peaks, not the optimum\n");
+    if (k->shape_met)
+        fprintf(out, "              an upper bound on the best achievable peaks, not the optimum\n");
+    else
+        fprintf(out, "              it misses a requirement the floors assume (roll-off, band or effort), so its "
+                     "peaks bound nothing\n");
     if (b == PS_BRACKET_UNDECIDED || (b == PS_BRACKET_RULED_OUT && !k->meets))
         fprintf(out, "              does not meet the requirements: %s\n", k->why);
     ps_controller_words(&c->ctrl, cw, sizeof cw);
@@ -373,6 +377,7 @@ json_t *ps_certificate_json(const ps_summary *s, const ps_cert *c)
     json_object_set_new(ck, "decay_min", num_or_null(k->decay_min));
     json_object_set_new(ck, "roots_checked", json_boolean(k->roots_checked));
     json_object_set_new(ck, "meets", json_boolean(k->meets));
+    json_object_set_new(ck, "upper_bound", json_boolean(k->shape_met));
     json_object_set_new(ck, "why", json_string(k->why));
     json_object_set_new(o, "found", ck);
     return o;

@@ -1136,32 +1136,35 @@ static void cert_figure(FILE *f, const ps_summary *s)
     }
     ps_plot_series(&p, w, ys, n, false, "curve");
     ps_plot_series(&p, w, yt, n, false, "curve-alt");
-    snprintf(buf, sizeof buf, "allowed Ms %.3g", s->req.ms_allowed);
-    ps_plot_hline(&p, s->req.ms_allowed, "marginal", buf);
-    if (s->req.mt_allowed != s->req.ms_allowed) {
-        snprintf(buf, sizeof buf, "allowed Mt %.3g", s->req.mt_allowed);
-        ps_plot_hline(&p, s->req.mt_allowed, "marginal", buf);
-    }
-    bool floors = false;
-    if (isfinite(s->fl.ms) && s->fl.ms > 1) {
-        floors = true;
-        snprintf(buf, sizeof buf, "Ms floor %.3g", s->fl.ms);
-        ps_plot_hline(&p, s->fl.ms, "required", buf);
-    }
-    if (isfinite(s->fl.mt) && s->fl.mt > 1 && !(fabs(s->fl.mt / s->fl.ms - 1) <= 0.05)) {
-        floors = true;
-        snprintf(buf, sizeof buf, "Mt floor %.3g", s->fl.mt);
-        ps_plot_hline(&p, s->fl.mt, "required", buf);
-    }
+    /* the lines unlabelled (they lie close together on a log axis); the caption gives their values */
+    char lines[200];
+    int at = snprintf(lines, sizeof lines, "dashed: the allowed peaks (Ms %.3g, Mt %.3g)", s->req.ms_allowed,
+                      s->req.mt_allowed);
+    ps_plot_hline(&p, s->req.ms_allowed, "marginal", NULL);
+    if (s->req.mt_allowed != s->req.ms_allowed)
+        ps_plot_hline(&p, s->req.mt_allowed, "marginal", NULL);
+    bool ms_floor = isfinite(s->fl.ms) && s->fl.ms > 1;
+    bool mt_floor = isfinite(s->fl.mt) && s->fl.mt > 1 && !(ms_floor && fabs(s->fl.mt / s->fl.ms - 1) <= 0.005);
+    if (ms_floor)
+        ps_plot_hline(&p, s->fl.ms, "required", NULL);
+    if (mt_floor)
+        ps_plot_hline(&p, s->fl.mt, "required", NULL);
+    if (ms_floor && mt_floor)
+        snprintf(lines + at, sizeof lines - (size_t)at, "; dotted: the floors above 1, which no controller meeting "
+                 "every requirement goes below (Ms %.3g, Mt %.3g)", s->fl.ms, s->fl.mt);
+    else if (ms_floor || mt_floor)
+        snprintf(lines + at, sizeof lines - (size_t)at, "; dotted: the %s floor %.3g, which no controller meeting "
+                 "every requirement goes below", ms_floor ? "Ms" : "Mt", ms_floor ? s->fl.ms : s->fl.mt);
     static const ps_plot_key keys[] = {{PS_KEY_LINE, PS_MARK_CROSS, "curve", "|S|"},
                                        {PS_KEY_LINE, PS_MARK_CROSS, "curve-alt", "|T|"}};
     ps_plot_legend(&p, 64, 290, keys, 2);
     ps_plot_close(&p);
     fprintf(f, "<figcaption>The loop of the controller found for ");
     h_text(f, s->id);
-    fprintf(f, ": |S| solid, |T| dashed; dashed lines: the allowed peaks%s. Peaks found: Ms %.4g, Mt %.4g (an upper "
-               "bound on the best achievable, not the optimum).</figcaption>\n</figure>\n",
-            floors ? "; dotted: the floors above 1, which no controller can go below" : "", k->ms, k->mt);
+    fprintf(f, ": |S| solid, |T| dashed grey; %s. Peaks found: Ms %.4g, Mt %.4g (%s).</figcaption>\n</figure>\n",
+            lines, k->ms, k->mt,
+            k->shape_met ? "an upper bound on the best achievable, not the optimum"
+                         : "this controller misses a requirement the floors assume, so its peaks bound nothing");
 }
 
 static void plant_section(FILE *f, const ps_run *r, size_t i, const ps_summary *s)
@@ -1370,8 +1373,9 @@ static void bracket_section(FILE *f, const ps_run *r)
     fprintf(f, "<section id=\"bracket\">\n<h2>Bracket: floors against a verified controller</h2>\n<p>The floors "
                "say what no controller can do; a controller searched within %zu loop evaluations a plant and "
                "verified shows what one controller does. Searched: the %s plants. <strong>%zu demonstrated, %zu "
-               "undecided, %zu ruled out, %zu not attempted.</strong> A found peak is an upper bound on the best "
-               "achievable peak, not the optimum; undecided means no controller was found within the budget, never "
+               "undecided, %zu ruled out, %zu not attempted.</strong> A found peak of a controller that meets the "
+               "roll-off, band and effort requirements is an upper bound on the best achievable peak, not the "
+               "optimum; undecided means no controller was found within the budget, never "
                "that none exists. The floors hold for loops that meet every stated requirement: a controller that "
                "misses the band or the roll-off may show a peak below them.</p>\n",
             r->opt.certify_budget ? r->opt.certify_budget : (size_t)PS_CERT_BUDGET,

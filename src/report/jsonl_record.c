@@ -618,6 +618,7 @@ static void certificate_part(jw *w, const ps_run *r, const ps_summary *s)
         jw_num(w, "decay_min", k->decay_min);
         jw_true(w, "roots_checked", k->roots_checked);
         jw_true(w, "meets", k->meets);
+        jw_true(w, "upper_bound", k->shape_met);
         jw_str(w, "why", k->why);
         jw_close(w, '}');
         if (s->n_cert_curve) {

@@ -449,8 +449,9 @@ static void bracket(FILE *f, const ps_run *r)
     fprintf(f, "The floors say what no controller can do; a controller searched within %zu loop evaluations a plant "
                "and verified (stability by the argument principle and, for a loop without delay, the closed-loop roots; peaks and "
                "requirements on a dense grid) shows what one controller does. Searched: the %s plants. %zu demonstrated, %zu "
-               "undecided, %zu ruled out, %zu not attempted. A found peak is an upper bound on the best achievable "
-               "peak, not the optimum; undecided means no controller was found within the budget, never that none "
+               "undecided, %zu ruled out, %zu not attempted. A found peak of a controller that meets the roll-off, "
+               "band and effort requirements is an upper bound on the best achievable peak, not the optimum; "
+               "undecided means no controller was found within the budget, never that none "
                "exists. The floors hold for loops that meet every stated requirement: a controller that misses the "
                "band or the roll-off may show a peak below them.\n\n",
             r->opt.certify_budget ? r->opt.certify_budget : (size_t)PS_CERT_BUDGET,

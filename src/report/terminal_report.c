@@ -203,7 +203,8 @@ static void bracket_section(FILE *f, const ps_run *r, size_t show, const char *f
             "Mt found", "controller");
     size_t told = ps_bracket_rows(r, show, bracket_row, f);
     more(f, n - told, full);
-    wrap(f, "A found peak is an upper bound on the best achievable peak, not the optimum; undecided means no "
+    wrap(f, "A found peak of a controller that meets the roll-off, band and effort requirements is an upper "
+            "bound on the best achievable peak, not the optimum; undecided means no "
             "controller was found within the budget, never that none exists. The floors hold for loops that meet "
             "every stated requirement: a controller that misses the band or the roll-off may show a peak below "
             "them.", "  ", 96);

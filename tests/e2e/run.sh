@@ -572,8 +572,10 @@ for r in recs:
     if f and not f.get("meets") and (f["ms"] < r["floors"]["ms"] or f["mt"] < r["floors"]["mt"]):
         if not re.search(r"band|roll-off", f.get("why", "")):
             bad.append("%s: found peaks below the floors, missing %s" % (r["id"], f.get("why")))
-    if f and f.get("meets") and (f["ms"] < r["floors"]["ms"] * (1 - 1e-9) or f["mt"] < r["floors"]["mt"] * (1 - 1e-9)):
-        bad.append("%s: a controller meeting every requirement below the floors" % r["id"])
+    if f and f.get("meets") and not f.get("upper_bound"):
+        bad.append("%s: meets every requirement but is not marked an upper bound" % r["id"])
+    if f and f.get("upper_bound") and (f["ms"] < r["floors"]["ms"] * (1 - 1e-9) or f["mt"] < r["floors"]["mt"] * (1 - 1e-9)):
+        bad.append("%s: a controller meeting roll-off, band and effort below the floors" % r["id"])
 for line in txt.splitlines():
     if re.match(r"  \S+ +undecided ", line) and "none found" not in line and "(misses " not in line:
         bad.append("txt bracket row without the requirement missed: " + line.strip())
