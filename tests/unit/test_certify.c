@@ -346,7 +346,9 @@ Test(certify, interpolation_construction_reaches_the_swept_wing_floor)
  * real RHP zero and up to two stable poles and zeros: within 1 % of each
  * interpolation floor, and never below it (a peak below a floor would mean
  * the floor or the verification is wrong). */
-Test(certify, interpolation_construction_within_one_percent_never_below, .timeout = 300)
+/* No .timeout (it takes about a second): with two timed tests of this suite running at once,
+ * Criterion 2.4.1 leaves a 48-byte allocation that LeakSanitizer reports under the ASan job. */
+Test(certify, interpolation_construction_within_one_percent_never_below)
 {
     uint64_t st = 12345;
     size_t built = 0;
